@@ -1,0 +1,57 @@
+"""The gammatrace exception tree.
+
+Every error the project raises derives from :class:`GammatraceError`. Classes that mean
+"the input is bad" also derive from :class:`ValueError`, so ordinary ``except ValueError``
+handlers keep working. The Rust core's ``Error`` variants map onto exactly one class each
+(see ``rust/lib.rs``).
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "GammatraceError",
+    "InputError",
+    "StructureError",
+    "ReadError",
+    "ToleranceError",
+    "SymmetryError",
+    "ReductionError",
+    "TableError",
+    "BasisError",
+]
+
+
+class GammatraceError(Exception):
+    """Base class of every error gammatrace raises."""
+
+
+class InputError(GammatraceError, ValueError):
+    """An argument of the wrong type, shape or value."""
+
+
+class StructureError(InputError):
+    """A structure that cannot be analysed: empty, NaN, unknown element, overlapping atoms."""
+
+
+class ReadError(InputError):
+    """A malformed or unreadable structure file; the message names file, frame and line."""
+
+
+class ToleranceError(GammatraceError):
+    """The tolerance is inconsistent with the structure (operations do not close into a group)."""
+
+
+class SymmetryError(GammatraceError):
+    """A symmetry operation does not hold, or detected operations do not match the table."""
+
+
+class ReductionError(GammatraceError):
+    """A representation does not reduce to integer multiplicities (shows the residuals)."""
+
+
+class TableError(InputError):
+    """An unknown or malformed point-group name, or an unsupported n."""
+
+
+class BasisError(InputError):
+    """A basis specification naming an unknown element, angular momentum, atom or shape."""
