@@ -89,6 +89,13 @@ pub enum Error {
         /// The operating system's message.
         reason: String,
     },
+    /// A bug: the core panicked while working on one structure of a batch.
+    Internal {
+        /// Zero-based structure index in the batch.
+        structure: usize,
+        /// The panic message.
+        reason: String,
+    },
     /// An argument of the wrong shape or value (names the argument).
     InvalidArgument {
         /// Argument name.
@@ -142,6 +149,10 @@ impl fmt::Display for Error {
             }
             Error::Io { source, reason } => write!(f, "{source}: {reason}"),
             Error::InvalidArgument { name, reason } => write!(f, "{name}: {reason}"),
+            Error::Internal { structure, reason } => write!(
+                f,
+                "internal error while analysing structure {structure} (please report): {reason}"
+            ),
         }
     }
 }

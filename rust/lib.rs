@@ -3,9 +3,527 @@
 //! Every module except this file is plain Rust (no pyo3, no numpy), unit-tested with
 //! `cargo test`. This file holds the crate root and, behind the `python` feature that
 //! maturin switches on, the only Python-aware code: array conversion and error mapping.
+//! Each glue function (1) borrows read-only views and checks shapes with the GIL held,
+//! (2) releases the GIL and calls exactly one core function, (3) moves the result into
+//! numpy and maps the error.
 #![cfg_attr(not(test), deny(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
 #![warn(missing_docs)]
 
+pub mod batch;
+pub mod count;
+pub mod detect;
 pub mod error;
+pub mod lookup;
+pub mod ops;
+pub mod readers;
+pub mod structure;
 
 pub use error::{Error, Result};
+
+#[cfg(feature = "python")]
+mod glue {
+    use crate::error::Error;
+    use crate::{batch, count, detect, readers, structure};
+    use numpy::ndarray::{Array1, Array2, Array3};
+    use numpy::{
+        IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2,
+        PyReadonlyArray3,
+    };
+    use pyo3::exceptions::{PyException, PyValueError};
+    use pyo3::prelude::*;
+    use pyo3::types::{PyDict, PyList};
+
+    /// The Python class (in gammatrace.errors) that each core error becomes.
+    fn exception_class(err: &Error) -> &'static str {
+        match err {
+            Error::EmptyStructure
+            | Error::LengthMismatch { .. }
+            | Error::NonFiniteCoordinate { .. }
+            | Error::CoordinateTooLarge { .. }
+            | Error::UnknownAtomicNumber { .. }
+            | Error::UnknownElement { .. }
+            | Error::OverlappingAtoms { .. } => "StructureError",
+            Error::BadTolerance { .. } | Error::InvalidArgument { .. } => "InputError",
+            Error::NotASymmetry { .. } => "SymmetryError",
+            Error::GroupClosure { .. } => "ToleranceError",
+            Error::MalformedXyz { .. } | Error::Io { .. } => "ReadError",
+            Error::Internal { .. } => "GammatraceError",
+        }
+    }
+
+    fn to_pyerr(py: Python<'_>, err: &Error) -> PyErr {
+        let message = err.to_string();
+        let class = py
+            .import("gammatrace.errors")
+            .and_then(|m| m.getattr(exception_class(err)));
+        match class {
+            Ok(cls) => match cls.call1((message.clone(),)) {
+                Ok(instance) => PyErr::from_value(instance),
+                Err(_) => PyException::new_err(message),
+            },
+            Err(_) => PyException::new_err(message),
+        }
+    }
+
+    /// Wrapper so that `?` maps core errors through the one place above.
+    struct CoreError(Error);
+
+    impl From<Error> for CoreError {
+        fn from(e: Error) -> Self {
+            CoreError(e)
+        }
+    }
+
+    impl From<CoreError> for PyErr {
+        fn from(e: CoreError) -> PyErr {
+            Python::attach(|py| to_pyerr(py, &e.0))
+        }
+    }
+
+    fn error_pair(err: &Error) -> (&'static str, String) {
+        (exception_class(err), err.to_string())
+    }
+
+    fn rows3<'a>(data: &'a [f64], name: &str) -> PyResult<&'a [[f64; 3]]> {
+        let (chunks, rest) = data.as_chunks::<3>();
+        if !rest.is_empty() {
+            return Err(PyValueError::new_err(format!(
+                "{name}: expected shape (n, 3), got {} values",
+                data.len()
+            )));
+        }
+        Ok(chunks)
+    }
+
+    fn mats3<'a>(data: &'a [f64], name: &str) -> PyResult<&'a [[[f64; 3]; 3]]> {
+        let rows = rows3(data, name)?;
+        let (mats, rest) = rows.as_chunks::<3>();
+        if !rest.is_empty() {
+            return Err(PyValueError::new_err(format!(
+                "{name}: expected shape (k, 3, 3)"
+            )));
+        }
+        Ok(mats)
+    }
+
+    fn slice2<'a>(a: &'a PyReadonlyArray2<'_, f64>, name: &str) -> PyResult<&'a [f64]> {
+        if a.shape()[1] != 3 {
+            return Err(PyValueError::new_err(format!(
+                "{name}: expected shape (n, 3), got {:?}",
+                a.shape()
+            )));
+        }
+        a.as_slice()
+            .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))
+    }
+
+    fn slice3<'a>(a: &'a PyReadonlyArray3<'_, f64>, name: &str) -> PyResult<&'a [f64]> {
+        let s = a.shape();
+        if s[1] != 3 || s[2] != 3 {
+            return Err(PyValueError::new_err(format!(
+                "{name}: expected shape (k, 3, 3), got {s:?}"
+            )));
+        }
+        a.as_slice()
+            .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))
+    }
+
+    fn slice1<'a, T: numpy::Element>(
+        a: &'a PyReadonlyArray1<'_, T>,
+        name: &str,
+    ) -> PyResult<&'a [T]> {
+        a.as_slice()
+            .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))
+    }
+
+    fn flat_mats(mats: &[[[f64; 3]; 3]]) -> Vec<f64> {
+        mats.iter().flat_map(|m| m.iter().flatten().copied()).collect()
+    }
+
+    /// Point-group detection: returns a dict of numpy arrays (see _core.pyi).
+    #[pyfunction]
+    #[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit))]
+    fn find_point_group<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        numbers: PyReadonlyArray1<'py, i64>,
+        tol: f64,
+        linear_n: usize,
+        verify_all_limit: usize,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let num = slice1(&numbers, "numbers")?;
+        let opts = detect::DetectOptions {
+            tol,
+            linear_n,
+            verify_all_limit,
+        };
+        let sym = py
+            .detach(|| detect::find_point_group(pos, num, &opts))
+            .map_err(CoreError)?;
+        let h = sym.ops.len();
+        let n = pos.len();
+        let out = PyDict::new(py);
+        out.set_item("point_group", &sym.point_group)?;
+        out.set_item("center", Array1::from(sym.center.to_vec()).into_pyarray(py))?;
+        out.set_item("frame", Array2::from(sym.frame.to_vec()).into_pyarray(py))?;
+        let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
+        let ops_arr = Array3::from_shape_vec((h, 3, 3), flat_mats(&mats))
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        out.set_item("operations", ops_arr.into_pyarray(py))?;
+        let proper: Vec<bool> = sym.ops.iter().map(|o| o.proper).collect();
+        let angle: Vec<f64> = sym.ops.iter().map(|o| o.angle).collect();
+        let axis: Vec<[f64; 3]> = sym.ops.iter().map(|o| o.axis).collect();
+        out.set_item("proper", Array1::from(proper).into_pyarray(py))?;
+        out.set_item("angle", Array1::from(angle).into_pyarray(py))?;
+        out.set_item("axis", Array2::from(axis).into_pyarray(py))?;
+        out.set_item("classes", PyList::new(py, &sym.classes)?)?;
+        out.set_item("generators", PyList::new(py, &sym.generators)?)?;
+        out.set_item("verified", PyList::new(py, &sym.verified)?)?;
+        let flat: Vec<i64> = sym
+            .permutations
+            .iter()
+            .flat_map(|p| p.iter().map(|&j| j as i64))
+            .collect();
+        let perms = Array2::from_shape_vec((sym.permutations.len(), n), flat)
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        out.set_item("permutations", perms.into_pyarray(py))?;
+        out.set_item("max_deviation", sym.max_deviation)?;
+        Ok(out)
+    }
+
+    /// Unshifted atoms per operation.
+    #[pyfunction]
+    fn count_unshifted<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        center: [f64; 3],
+        operations: PyReadonlyArray3<'py, f64>,
+        tol: f64,
+    ) -> PyResult<Bound<'py, PyArray1<u64>>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let out = py.detach(|| count::count_unshifted(pos, center, ops, tol));
+        Ok(out.into_pyarray(py))
+    }
+
+    /// Characters of a basis of angular-momentum shells on the atoms, per operation.
+    #[pyfunction]
+    #[allow(clippy::too_many_arguments)]
+    fn shell_characters<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        center: [f64; 3],
+        operations: PyReadonlyArray3<'py, f64>,
+        proper: PyReadonlyArray1<'py, bool>,
+        angle: PyReadonlyArray1<'py, f64>,
+        shell_counts: PyReadonlyArray2<'py, u32>,
+        tol: f64,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let prop = slice1(&proper, "proper")?;
+        let ang = slice1(&angle, "angle")?;
+        let n_l = shell_counts.shape()[1];
+        let shells = shell_counts
+            .as_slice()
+            .map_err(|_| PyValueError::new_err("shell_counts: array must be C-contiguous"))?;
+        let out = py
+            .detach(|| count::shell_characters(pos, center, ops, prop, ang, shells, n_l, tol))
+            .map_err(CoreError)?;
+        Ok(out.into_pyarray(py))
+    }
+
+    /// Characters of one p orbital per atom perpendicular to the molecular plane.
+    #[pyfunction]
+    fn pi_characters<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        center: [f64; 3],
+        operations: PyReadonlyArray3<'py, f64>,
+        normal: [f64; 3],
+        tol: f64,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let out = py.detach(|| count::pi_characters(pos, center, ops, normal, tol));
+        Ok(out.into_pyarray(py))
+    }
+
+    /// Bonds from covalent radii: (n_bonds, 2) int64 atom pairs.
+    #[pyfunction]
+    fn find_bonds<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        radii: PyReadonlyArray1<'py, f64>,
+        scale: f64,
+    ) -> PyResult<Bound<'py, PyArray2<i64>>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let rad = slice1(&radii, "radii")?;
+        let bonds = py
+            .detach(|| count::find_bonds(pos, rad, scale))
+            .map_err(CoreError)?;
+        let flat: Vec<i64> = bonds.iter().flat_map(|b| [b[0] as i64, b[1] as i64]).collect();
+        let arr = Array2::from_shape_vec((bonds.len(), 2), flat)
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        Ok(arr.into_pyarray(py))
+    }
+
+    /// Characters of bond stretches (oriented=False) or vectors along bonds (oriented=True).
+    #[pyfunction]
+    fn bond_characters<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        center: [f64; 3],
+        operations: PyReadonlyArray3<'py, f64>,
+        bonds: PyReadonlyArray2<'py, i64>,
+        oriented: bool,
+        tol: f64,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        if bonds.ndim() != 2 || (bonds.shape()[1] != 2 && bonds.shape()[0] != 0) {
+            return Err(PyValueError::new_err(format!(
+                "bonds: expected shape (n_bonds, 2), got {:?}",
+                bonds.shape()
+            )));
+        }
+        let raw = bonds
+            .as_slice()
+            .map_err(|_| PyValueError::new_err("bonds: array must be C-contiguous"))?;
+        let mut pairs = Vec::with_capacity(raw.len() / 2);
+        for (k, p) in raw.chunks_exact(2).enumerate() {
+            let ok = |v: i64| v >= 0 && v <= u32::MAX as i64;
+            if !ok(p[0]) || !ok(p[1]) {
+                return Err(PyValueError::new_err(format!(
+                    "bonds: bond {k} names atom indices ({}, {}), which do not exist",
+                    p[0], p[1]
+                )));
+            }
+            pairs.push([p[0] as u32, p[1] as u32]);
+        }
+        let out = py
+            .detach(|| count::bond_characters(pos, center, ops, &pairs, oriented, tol))
+            .map_err(CoreError)?;
+        Ok(out.into_pyarray(py))
+    }
+
+    /// Characters of a user's own set of 3-vectors at every atom.
+    #[pyfunction]
+    fn vector_set_characters<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        center: [f64; 3],
+        operations: PyReadonlyArray3<'py, f64>,
+        vectors: PyReadonlyArray2<'py, f64>,
+        per_atom: usize,
+        tol: f64,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let vec = rows3(slice2(&vectors, "vectors")?, "vectors")?;
+        let out = py
+            .detach(|| count::vector_set_characters(pos, center, ops, vec, per_atom, tol))
+            .map_err(CoreError)?;
+        Ok(out.into_pyarray(py))
+    }
+
+    /// Orbit index of each atom under the group generated by the permutations.
+    #[pyfunction]
+    fn orbits<'py>(
+        py: Python<'py>,
+        n_atoms: usize,
+        permutations: PyReadonlyArray2<'py, i64>,
+    ) -> PyResult<Bound<'py, PyArray1<u32>>> {
+        let shape = permutations.shape().to_vec();
+        let raw = permutations
+            .as_slice()
+            .map_err(|_| PyValueError::new_err("permutations: array must be C-contiguous"))?;
+        let mut perms = Vec::with_capacity(shape[0]);
+        for row in raw.chunks(shape[1].max(1)).take(shape[0]) {
+            let mut p = Vec::with_capacity(row.len());
+            for &v in row {
+                if v < 0 || v > u32::MAX as i64 {
+                    return Err(PyValueError::new_err(format!(
+                        "permutations: entry {v} is not an atom index"
+                    )));
+                }
+                p.push(v as u32);
+            }
+            perms.push(p);
+        }
+        let out = py
+            .detach(|| count::orbits(n_atoms, &perms))
+            .map_err(CoreError)?;
+        Ok(out.into_pyarray(py))
+    }
+
+    fn frames_to_dict<'py>(
+        py: Python<'py>,
+        frames: readers::XyzFrames,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        let out = PyDict::new(py);
+        let n = frames.positions.len();
+        let flat: Vec<f64> = frames.positions.iter().flatten().copied().collect();
+        let pos = Array2::from_shape_vec((n, 3), flat)
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        out.set_item("positions", pos.into_pyarray(py))?;
+        out.set_item("numbers", Array1::from(frames.numbers).into_pyarray(py))?;
+        let offsets: Vec<i64> = frames.offsets.iter().map(|&o| o as i64).collect();
+        out.set_item("offsets", Array1::from(offsets).into_pyarray(py))?;
+        out.set_item("comments", PyList::new(py, &frames.comments)?)?;
+        out.set_item("info", PyList::new(py, &frames.info)?)?;
+        let errors: Vec<Option<(&'static str, String)>> =
+            frames.errors.iter().map(|e| e.as_ref().map(error_pair)).collect();
+        out.set_item("errors", PyList::new(py, &errors)?)?;
+        Ok(out)
+    }
+
+    fn element_number(symbol: &str) -> Option<i64> {
+        structure::atomic_number(symbol).ok()
+    }
+
+    /// Read a (multi-frame, extended) XYZ file; bad frames carry an error, the rest are read.
+    #[pyfunction]
+    fn read_xyz_path<'py>(py: Python<'py>, path: &str, source: &str) -> PyResult<Bound<'py, PyDict>> {
+        let p = std::path::PathBuf::from(path);
+        let frames = py
+            .detach(|| readers::read_xyz_path(&p, source, &element_number))
+            .map_err(CoreError)?;
+        frames_to_dict(py, frames)
+    }
+
+    /// Read XYZ text held in memory (for standard input).
+    #[pyfunction]
+    fn read_xyz_bytes<'py>(py: Python<'py>, data: &[u8], source: &str) -> PyResult<Bound<'py, PyDict>> {
+        let frames = py.detach(|| readers::read_xyz_bytes(data, source, &element_number));
+        frames_to_dict(py, frames)
+    }
+
+    /// Atomic numbers of element symbols (error names the position of a bad one).
+    #[pyfunction]
+    fn atomic_numbers<'py>(
+        py: Python<'py>,
+        symbols: Vec<String>,
+    ) -> PyResult<Bound<'py, PyArray1<i64>>> {
+        let mut out = Vec::with_capacity(symbols.len());
+        for (i, s) in symbols.iter().enumerate() {
+            match structure::atomic_number(s) {
+                Ok(z) => out.push(z),
+                Err(e) => {
+                    let err = to_pyerr(py, &e);
+                    let msg = format!("atom {i}: {}", e);
+                    let class = py
+                        .import("gammatrace.errors")?
+                        .getattr(exception_class(&e))?;
+                    let _ = err;
+                    return Err(PyErr::from_value(class.call1((msg,))?));
+                }
+            }
+        }
+        Ok(Array1::from(out).into_pyarray(py))
+    }
+
+    /// Element data for atomic numbers: (masses, covalent radii, symbols).
+    #[pyfunction]
+    fn element_data<'py>(
+        py: Python<'py>,
+        numbers: PyReadonlyArray1<'py, i64>,
+    ) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<f64>>, Vec<String>)> {
+        let num = slice1(&numbers, "numbers")?;
+        let mut masses = Vec::with_capacity(num.len());
+        let mut radii = Vec::with_capacity(num.len());
+        let mut symbols = Vec::with_capacity(num.len());
+        for (i, &z) in num.iter().enumerate() {
+            match (structure::mass(z), structure::covalent_radius(z), structure::symbol(z)) {
+                (Some(m), Some(r), Some(s)) => {
+                    masses.push(m);
+                    radii.push(r);
+                    symbols.push(s.to_string());
+                }
+                _ => {
+                    return Err(CoreError(Error::UnknownAtomicNumber { atom: i, number: z }).into())
+                }
+            }
+        }
+        Ok((
+            Array1::from(masses).into_pyarray(py),
+            Array1::from(radii).into_pyarray(py),
+            symbols,
+        ))
+    }
+
+    /// Detect many structures at once (ragged: concatenated positions + offsets), in parallel.
+    #[pyfunction]
+    #[pyo3(signature = (positions, numbers, offsets, tol, linear_n, n_threads))]
+    fn find_point_groups_batch<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        numbers: PyReadonlyArray1<'py, i64>,
+        offsets: PyReadonlyArray1<'py, i64>,
+        tol: f64,
+        linear_n: usize,
+        n_threads: usize,
+    ) -> PyResult<Bound<'py, PyDict>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let num = slice1(&numbers, "numbers")?;
+        let off_raw = slice1(&offsets, "offsets")?;
+        let mut off = Vec::with_capacity(off_raw.len());
+        for &o in off_raw {
+            if o < 0 {
+                return Err(PyValueError::new_err(format!("offsets: negative entry {o}")));
+            }
+            off.push(o as usize);
+        }
+        let opts = detect::DetectOptions {
+            tol,
+            linear_n,
+            ..Default::default()
+        };
+        let res = py
+            .detach(|| batch::summarize_batch(pos, num, &off, &opts, n_threads))
+            .map_err(CoreError)?;
+        let out = PyDict::new(py);
+        out.set_item("point_group", PyList::new(py, &res.point_group)?)?;
+        out.set_item("order", Array1::from(res.order).into_pyarray(py))?;
+        out.set_item("max_deviation", Array1::from(res.max_deviation).into_pyarray(py))?;
+        out.set_item("n_proper", Array1::from(res.n_proper).into_pyarray(py))?;
+        let n_struct = res.frames.len();
+        let flat: Vec<f64> = res.frames.iter().flatten().flatten().copied().collect();
+        let frames = Array3::from_shape_vec((n_struct, 3, 3), flat)
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        out.set_item("frame", frames.into_pyarray(py))?;
+        let op_flat: Vec<f64> = res.operations.iter().flatten().flatten().copied().collect();
+        let ops = Array3::from_shape_vec((res.operations.len(), 3, 3), op_flat)
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        out.set_item("operations", ops.into_pyarray(py))?;
+        let op_off: Vec<i64> = res.op_offsets.iter().map(|&o| o as i64).collect();
+        out.set_item("op_offsets", Array1::from(op_off).into_pyarray(py))?;
+        out.set_item("proper", Array1::from(res.proper).into_pyarray(py))?;
+        out.set_item("angle", Array1::from(res.angle).into_pyarray(py))?;
+        out.set_item("unshifted", Array1::from(res.unshifted).into_pyarray(py))?;
+        let errors: Vec<Option<(&'static str, String)>> =
+            res.errors.iter().map(|e| e.as_ref().map(error_pair)).collect();
+        out.set_item("errors", PyList::new(py, &errors)?)?;
+        Ok(out)
+    }
+
+    /// The compiled core of gammatrace (private: use the gammatrace package).
+    #[pymodule]
+    fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
+        m.add_function(wrap_pyfunction!(find_point_group, m)?)?;
+        m.add_function(wrap_pyfunction!(count_unshifted, m)?)?;
+        m.add_function(wrap_pyfunction!(shell_characters, m)?)?;
+        m.add_function(wrap_pyfunction!(pi_characters, m)?)?;
+        m.add_function(wrap_pyfunction!(find_bonds, m)?)?;
+        m.add_function(wrap_pyfunction!(bond_characters, m)?)?;
+        m.add_function(wrap_pyfunction!(vector_set_characters, m)?)?;
+        m.add_function(wrap_pyfunction!(orbits, m)?)?;
+        m.add_function(wrap_pyfunction!(read_xyz_path, m)?)?;
+        m.add_function(wrap_pyfunction!(read_xyz_bytes, m)?)?;
+        m.add_function(wrap_pyfunction!(atomic_numbers, m)?)?;
+        m.add_function(wrap_pyfunction!(element_data, m)?)?;
+        m.add_function(wrap_pyfunction!(find_point_groups_batch, m)?)?;
+        Ok(())
+    }
+}

@@ -1,7 +1,20 @@
-"""gammatrace: molecular point groups, characters and vibrational symmetry at scale."""
+"""gammatrace: molecular point groups, characters and vibrational symmetry at scale.
+
+The public API is this module's ``__all__``:
+
+- :func:`analyze` one structure -> :class:`Analysis` (point group, operations, classes,
+  representations, vibrations, symmetry number, chirality, orbits);
+- :func:`analyze_many` many structures (files, frames, objects), failures kept in place;
+- :func:`get_table` the character table of any point group;
+- :class:`Basis` the bases representations are built on;
+- :func:`read_xyz`, :class:`Structure` input.
+
+Everything else, ``gammatrace._core`` included, is private.
+"""
 
 from __future__ import annotations
 
+from .analysis import DEFAULT_TOL, Analysis, Operation, Orbit, analyze, analyze_many
 from .errors import (
     BasisError,
     GammatraceError,
@@ -13,18 +26,37 @@ from .errors import (
     TableError,
     ToleranceError,
 )
+from .io import FrameError, Structure, read_structures, read_xyz
+from .representations import Basis, Representation
+from .spectroscopy import Vibrations
+from .tables import CharacterTable, get_table
 
 __version__ = "0.1.0"
 
 __all__ = [
+    "DEFAULT_TOL",
+    "Analysis",
+    "Basis",
     "BasisError",
+    "CharacterTable",
+    "FrameError",
     "GammatraceError",
     "InputError",
+    "Operation",
+    "Orbit",
     "ReadError",
     "ReductionError",
+    "Representation",
+    "Structure",
     "StructureError",
     "SymmetryError",
     "TableError",
     "ToleranceError",
+    "Vibrations",
+    "analyze",
+    "analyze_many",
+    "get_table",
+    "read_structures",
+    "read_xyz",
     "__version__",
 ]

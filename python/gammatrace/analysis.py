@@ -1,0 +1,510 @@
+"""One structure, analysed: point group, operations, classes, representations, vibrations.
+
+:func:`analyze` is the front door. It calls the Rust core once to find the point group (with the
+operations, their permutations and the standard frame), assigns every operation to a class of the
+character table by its matrix in the standard frame (one source of truth for class names, see
+DEVELOPERS.md), and then builds whatever representations are asked for, lazily.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from functools import cached_property
+from typing import Any, Iterable, Iterator, Sequence
+
+import numpy as np
+
+from .errors import BasisError, GammatraceError, InputError, SymmetryError
+from .io import FrameError, Structure, as_structure, element_data, read_structures
+from .representations import Basis, Representation, build_representation, parse_basis
+from .tables import ClassInfo, get_table, LINEAR_SUBGROUP_N
+
+__all__ = [
+    "DEFAULT_TOL",
+    "Analysis",
+    "Operation",
+    "Orbit",
+    "analyze",
+    "analyze_many",
+]
+
+#: Default distance tolerance in ångström (see DEVELOPERS.md, "Tolerance").
+DEFAULT_TOL = 0.01
+#: Verify every operation (and keep its permutation) while n_atoms * order stays below this.
+VERIFY_ALL_LIMIT = 20_000_000
+#: Group name reported for a single atom.
+ATOM_GROUP = "K_h"
+DEFAULT_BASES = ("atoms", "cartesian")
+
+
+@dataclass(frozen=True)
+class Operation:
+    """One symmetry operation of a structure.
+
+    Attributes
+    ----------
+    index : int
+        Position in :attr:`Analysis.operations`.
+    matrix : numpy.ndarray
+        3×3 matrix acting on coordinates centred on :attr:`Analysis.center`, input frame.
+    proper : bool
+        True for a rotation C(angle), False for σh·C(angle).
+    angle : float
+        Degrees in [0, 180].
+    axis : numpy.ndarray
+        Unit axis (plane normal for a reflection) in the input frame.
+    class_label : str
+        The class of the character table it belongs to.
+    """
+
+    index: int
+    matrix: np.ndarray
+    proper: bool
+    angle: float
+    axis: np.ndarray
+    class_label: str
+
+
+@dataclass(frozen=True)
+class Orbit:
+    """A set of symmetry-equivalent atoms.
+
+    Attributes
+    ----------
+    atoms : list of int
+        Zero-based atom indices, ascending.
+    size : int
+        Number of atoms.
+    site_order : int
+        Order of the site group (the stabiliser of one atom): group order / orbit size.
+    site_group : str or None
+        Schoenflies name of the site group, when known.
+    """
+
+    atoms: list
+    size: int
+    site_order: int | None
+    site_group: str | None
+
+    def to_dict(self) -> dict:
+        """``{"size", "site_group", "atoms"}`` as in shared/INTERFACE.md."""
+        return {"size": self.size, "site_group": self.site_group, "atoms": self.atoms}
+
+
+def _check_tol(tol: Any) -> float:
+    try:
+        t = float(tol)
+    except (TypeError, ValueError):
+        raise InputError(f"tol: expected a distance in Å, got {tol!r}") from None
+    if not math.isfinite(t) or t <= 0:
+        raise InputError(f"tol: must be a positive finite distance in Å, got {tol!r}")
+    return t
+
+
+class Analysis:
+    """The symmetry of one structure. Build it with :func:`analyze`.
+
+    Everything beyond the point group is computed on first use and cached.
+    """
+
+    def __init__(self, structure: Structure, raw: dict, tol: float):
+        self.structure = structure
+        self.tol = tol
+        self._raw = raw
+        self.point_group: str = raw["point_group"]
+        self.center: np.ndarray = np.asarray(raw["center"], dtype=np.float64)
+        self.frame: np.ndarray = np.asarray(raw["frame"], dtype=np.float64)
+        self.operation_matrices: np.ndarray = np.ascontiguousarray(raw["operations"])
+        self.proper: np.ndarray = np.asarray(raw["proper"], dtype=bool)
+        self.angle: np.ndarray = np.asarray(raw["angle"], dtype=np.float64)
+        self.axis: np.ndarray = np.asarray(raw["axis"], dtype=np.float64)
+        self.max_deviation: float = float(raw["max_deviation"])
+        if self.point_group == ATOM_GROUP:
+            self.table = None
+            self.op_class = np.zeros(len(self.operation_matrices), dtype=np.int64)
+            self.classes = [ClassInfo("E", 1, True, 0.0)]
+            return
+        self.table = get_table(self.point_group)
+        std = np.einsum("ij,kjl,ml->kim", self.frame, self.operation_matrices, self.frame)
+        self.op_class = np.asarray(self.table.assign_classes(std), dtype=np.int64)
+        self.classes = list(self.table.classes)
+        self._check_classes(raw["classes"])
+
+    def _check_classes(self, core_classes: list) -> None:
+        """The core's conjugacy classes must coincide with the table's classes."""
+        sizes = np.bincount(self.op_class, minlength=len(self.classes))
+        expected = np.array([c.size for c in self.classes])
+        if len(self.operation_matrices) != len(self.table.operations) or not np.array_equal(
+            sizes, expected
+        ):
+            raise SymmetryError(
+                f"{self.point_group}: detected operations fall into classes of sizes "
+                f"{sizes.tolist()}, the table has {expected.tolist()}"
+            )
+        for members in core_classes:
+            labels = {int(self.op_class[m]) for m in members}
+            if len(labels) != 1:
+                raise SymmetryError(
+                    f"{self.point_group}: one conjugacy class of the detector (operations "
+                    f"{list(members)}) spans table classes "
+                    f"{[self.classes[i].label for i in sorted(labels)]}"
+                )
+
+    # ---------------------------------------------------------------- basic facts
+    @property
+    def n_atoms(self) -> int:
+        """Number of atoms."""
+        return self.structure.n_atoms
+
+    @property
+    def is_linear(self) -> bool:
+        """True for C∞v and D∞h."""
+        return self.table is not None and self.table.is_linear
+
+    @property
+    def order(self) -> int | None:
+        """Group order; None for the infinite groups (linear molecules, a single atom)."""
+        if self.table is None or self.table.is_linear:
+            return None
+        return len(self.operation_matrices)
+
+    @cached_property
+    def operations(self) -> list[Operation]:
+        """All operations (for linear groups: those of the finite subgroup reported)."""
+        labels = [c.label for c in self.classes]
+        return [
+            Operation(
+                k,
+                self.operation_matrices[k],
+                bool(self.proper[k]),
+                float(self.angle[k]),
+                self.axis[k],
+                labels[int(self.op_class[k])],
+            )
+            for k in range(len(self.operation_matrices))
+        ]
+
+    @cached_property
+    def permutations(self) -> np.ndarray:
+        """``int64 (h, n_atoms)``: atom i goes to atom ``permutations[k, i]`` under op k.
+
+        Raises
+        ------
+        SymmetryError
+            For structures so large that only the generators were verified (their
+            permutations are in :attr:`generator_permutations`).
+        """
+        verified = list(self._raw["verified"])
+        perms = np.asarray(self._raw["permutations"], dtype=np.int64)
+        h = len(self.operation_matrices)
+        if sorted(verified) != list(range(h)):
+            raise SymmetryError(
+                f"only {len(verified)} of {h} operations were verified for this "
+                f"{self.n_atoms}-atom structure (n_atoms·order above {VERIFY_ALL_LIMIT}); "
+                "use generator_permutations"
+            )
+        out = np.empty_like(perms)
+        out[verified] = perms
+        return out
+
+    @property
+    def generator_permutations(self) -> np.ndarray:
+        """Permutations of the verified operations (all, or the generators for huge inputs)."""
+        return np.asarray(self._raw["permutations"], dtype=np.int64)
+
+    @property
+    def symmetry_number(self) -> int:
+        """Rotational symmetry number σ: the number of proper operations.
+
+        1 for C∞v, 2 for D∞h, 1 for a single atom.
+        """
+        if self.table is None:
+            return 1
+        if self.table.is_linear:
+            return 2 if self.point_group == "D∞h" else 1
+        return int(np.count_nonzero(self.proper))
+
+    @property
+    def chiral(self) -> bool:
+        """True when the group has no improper operation (no σ, i or S_n)."""
+        if self.table is None:
+            return False
+        return bool(np.all(self.proper))
+
+    @cached_property
+    def masses(self) -> np.ndarray:
+        """Standard atomic masses (u)."""
+        return element_data(self.structure.numbers)[0]
+
+    def bonds(self, scale: float = 1.2) -> np.ndarray:
+        """Bonded atom pairs ``(n_bonds, 2)`` from covalent radii: d ≤ scale·(r_i + r_j)."""
+        from . import _core
+
+        radii = element_data(self.structure.numbers)[1]
+        return _core.find_bonds(self.structure.positions, radii, float(scale))
+
+    # ---------------------------------------------------------------- representations
+    def representation(self, basis: Any = "cartesian") -> Representation:
+        """The reducible representation on a basis, with its reduction.
+
+        Parameters
+        ----------
+        basis : str or Basis
+            ``"atoms"``, ``"cartesian"``, ``"pi"``, ``"bonds"``, ``"bond_vectors"``,
+            ``"orbitals:Fe=spd,H=s"`` or a :class:`Basis`.
+
+        Raises
+        ------
+        BasisError
+            For an unknown basis or one that does not fit the structure.
+        SymmetryError
+            When characters disagree within a class.
+        ReductionError
+            When the characters do not reduce to integer multiplicities.
+        """
+        b = parse_basis(basis)
+        key = None if b.kind in ("vectors",) or b.bonds is not None else repr(
+            (b.kind, sorted((str(k), v) for k, v in (b.shells or {}).items()), b.bond_scale)
+        )
+        cache = self.__dict__.setdefault("_rep_cache", {})
+        if key is not None and key in cache:
+            return cache[key]
+        if self.table is None:
+            rep = _atom_representation(self, b)
+        else:
+            rep = build_representation(self, b)
+        if key is not None:
+            cache[key] = rep
+        return rep
+
+    def vibrations(self):
+        """Γ_vib with IR/Raman activity (see :mod:`gammatrace.spectroscopy`)."""
+        from .spectroscopy import vibrations
+
+        return vibrations(self)
+
+    # ---------------------------------------------------------------- orbits
+    @cached_property
+    def orbits(self) -> list[Orbit]:
+        """Sets of symmetry-equivalent atoms, in order of their first atom."""
+        from . import _core
+
+        perms = self.generator_permutations
+        ids = np.asarray(_core.orbits(self.n_atoms, np.ascontiguousarray(perms)), dtype=np.int64)
+        order = np.argsort(ids, kind="stable")
+        counts = np.bincount(ids)
+        splits = np.split(order, np.cumsum(counts)[:-1])
+        h = self.order
+        out = []
+        for atoms in splits:
+            size = len(atoms)
+            site_order = h // size if h else None
+            out.append(Orbit(atoms.tolist(), size, site_order, self._site_group(atoms[0], size)))
+        return out
+
+    def _site_group(self, atom: int, size: int) -> str | None:
+        if self.table is None:
+            return ATOM_GROUP
+        try:
+            perms = self.permutations
+        except SymmetryError:
+            return None
+        stab = np.flatnonzero(perms[:, atom] == atom)
+        from .identify import identify_operations
+
+        std = np.einsum("ij,kjl,ml->kim", self.frame, self.operation_matrices[stab], self.frame)
+        return identify_operations(std)
+
+    # ---------------------------------------------------------------- output
+    def to_dict(self, bases: Sequence[Any] = DEFAULT_BASES, orbits: bool = False) -> dict:
+        """The JSON object of shared/INTERFACE.md for this structure.
+
+        Parameters
+        ----------
+        bases
+            Which representations to include (``"atoms"`` and ``"cartesian"`` by default).
+        orbits : bool
+            Include the symmetry-distinct atoms (``orbits``).
+        """
+        out: dict[str, Any] = {
+            "source": self.structure.source,
+            "index": self.structure.index,
+            "n_atoms": self.n_atoms,
+            "point_group": self.point_group,
+            "order": self.order,
+            "tolerance": self.tol,
+            "max_deviation": float(self.max_deviation),
+            "classes": [
+                {"label": c.label, "size": c.size, "proper": c.proper, "angle": float(c.angle)}
+                for c in self.classes
+            ],
+            "representations": {},
+        }
+        for spec in bases:
+            b = parse_basis(spec)
+            out["representations"][b.name] = self.representation(b).to_dict()
+        out["vibrations"] = self.vibrations().to_dict()
+        out["symmetry_number"] = self.symmetry_number
+        out["chiral"] = self.chiral
+        if orbits:
+            out["orbits"] = [o.to_dict() for o in self.orbits]
+        return out
+
+    def report(self, bases: Sequence[Any] = DEFAULT_BASES, worked: bool = True) -> str:
+        """A readable text report: group, classes, representations, vibrations."""
+        from .spectroscopy import format_irreps
+
+        s = self.structure
+        lines = [
+            f"{s.source} [frame {s.index}]: {self.n_atoms} atoms",
+            f"  point group   {self.point_group}"
+            + (f"  (order {self.order})" if self.order else "")
+            + f"   tolerance {self.tol} Å, largest deviation {self.max_deviation:.2e} Å",
+            f"  symmetry number σ = {self.symmetry_number}, "
+            + ("chiral" if self.chiral else "not chiral"),
+        ]
+        for spec in bases:
+            rep = self.representation(spec)
+            lines.append(f"  Γ({rep.basis.name}) = {format_irreps(rep.irreps)}")
+            if worked:
+                lines.extend("      " + row for row in rep.worked_table().splitlines())
+        vib = self.vibrations()
+        lines.append(f"  Γ_vib = {format_irreps(vib.irreps)}   ({vib.modes} modes)")
+        lines.append(
+            f"  IR active: {format_irreps(vib.ir_active)}   "
+            f"Raman active: {format_irreps(vib.raman_active)}"
+        )
+        lines.append(
+            f"  distinct fundamentals {vib.n_fundamentals}: {vib.n_ir} IR, {vib.n_raman} Raman"
+            + ("; mutual exclusion (centrosymmetric)" if vib.mutual_exclusion else "")
+        )
+        return "\n".join(lines)
+
+    def __repr__(self) -> str:
+        return (
+            f"<Analysis {self.structure.source}[{self.structure.index}]: {self.point_group}, "
+            f"{self.n_atoms} atoms, max deviation {self.max_deviation:.1e} Å>"
+        )
+
+
+_L_LABELS = "SPDFGHI"
+
+
+def _atom_representation(analysis: Analysis, b: Basis) -> Representation:
+    """A single atom (K_h): label representations by angular momentum and parity."""
+    from .representations import ORBITAL_LETTERS, _shell_counts
+
+    def label(l: int) -> str:
+        return _L_LABELS[l] + ("g" if l % 2 == 0 else "u")
+
+    irreps: dict[str, int] = {}
+    if b.kind == "atoms":
+        irreps = {"Sg": 1}
+    elif b.kind == "cartesian":
+        irreps = {"Pu": 1}
+    elif b.kind == "orbitals":
+        counts = _shell_counts(analysis, b.shells or {})[0]
+        for l, c in enumerate(counts):
+            if c:
+                irreps[label(l)] = int(c)
+        del ORBITAL_LETTERS
+    elif b.kind in ("bonds", "bond_vectors"):
+        irreps = {}
+    else:
+        raise BasisError(f"basis '{b.kind}' has no meaning for a single atom")
+    dim = sum((2 * "SPDFGHI".index(k[0]) + 1) * v for k, v in irreps.items())
+    return Representation(
+        b, np.array([float(dim)]), np.array([float(dim)]), irreps, np.array([1.0]), [None], ("E",)
+    )
+
+
+def analyze(
+    obj: Any, positions: Any = None, *, tol: float = DEFAULT_TOL, frame: int | None = None
+) -> Analysis:
+    """Find the point group of one structure and make its symmetry available.
+
+    Parameters
+    ----------
+    obj
+        Element symbols or atomic numbers (with ``positions``), an XYZ path, a
+        :class:`~gammatrace.io.Structure`, an ``ase.Atoms`` or an RDKit ``Mol``.
+    positions : array_like, optional
+        ``(n_atoms, 3)`` in ångström; a C-contiguous float64 array is not copied.
+    tol : float
+        Distance tolerance in ångström (default 0.01): an operation holds when every atom has
+        an image of its element within ``tol``.
+    frame : int, optional
+        Frame of a multi-frame file.
+
+    Returns
+    -------
+    Analysis
+
+    Raises
+    ------
+    StructureError, ReadError, InputError
+        Bad input (empty, NaN, unknown element, overlapping atoms, malformed file).
+    ToleranceError, SymmetryError
+        When the operations found do not form a consistent group.
+
+    Examples
+    --------
+    >>> import gammatrace as gt
+    >>> water = gt.analyze(["O", "H", "H"], [[0, 0, 0.1173], [0, 0.7572, -0.4692],
+    ...                                      [0, -0.7572, -0.4692]])
+    >>> water.point_group
+    'C2v'
+    >>> water.vibrations().irreps
+    {'A1': 2, 'B2': 1}
+    """
+    t = _check_tol(tol)
+    s = as_structure(obj, positions, frame=frame)
+    return analyze_structure(s, t)
+
+
+def analyze_structure(s: Structure, tol: float) -> Analysis:
+    """Analyse a :class:`Structure` (no input coercion)."""
+    from . import _core
+
+    raw = _core.find_point_group(
+        s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT
+    )
+    return Analysis(s, raw, tol)
+
+
+def analyze_many(
+    inputs: Iterable[Any], *, tol: float = DEFAULT_TOL, catch: bool = True
+) -> Iterator[Analysis | FrameError]:
+    """Analyse every structure of every input (paths, Structures, ase.Atoms...), in order.
+
+    A structure that fails becomes a :class:`~gammatrace.io.FrameError` in its place (with
+    ``catch=True``); the others go on.
+    """
+    t = _check_tol(tol)
+    for item in inputs:
+        if isinstance(item, (str, bytes)) or hasattr(item, "__fspath__"):
+            try:
+                frames = read_structures(item)
+            except GammatraceError as exc:
+                if not catch:
+                    raise
+                yield FrameError(str(item), 0, type(exc).__name__, str(exc))
+                continue
+        else:
+            frames = [item]
+        for fr in frames:
+            if isinstance(fr, FrameError):
+                if not catch:
+                    raise InputError(fr.message)
+                yield fr
+                continue
+            try:
+                s = as_structure(fr)
+                yield analyze_structure(s, t)
+            except GammatraceError as exc:
+                if not catch:
+                    raise
+                src = getattr(fr, "source", "<input>")
+                idx = getattr(fr, "index", 0)
+                yield FrameError(src, idx, type(exc).__name__, str(exc))

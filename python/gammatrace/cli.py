@@ -1,0 +1,184 @@
+"""The ``gammatrace`` command line.
+
+Commands: ``analyze`` (structures -> point group, representations, vibrations), ``table``
+(character tables), ``correlate`` (descent in symmetry), ``demo`` (the bundled scenario).
+Machine-readable output follows shared/INTERFACE.md. Exit status: 0 when everything was analysed,
+1 when anything failed (the rest is still written), 2 for a bad command line.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import traceback
+from typing import Any, Sequence
+
+from .errors import GammatraceError
+
+__all__ = ["main"]
+
+
+def _write(text: str) -> None:
+    sys.stdout.buffer.write(text.encode("utf-8"))
+
+
+def _dump(obj: Any) -> str:
+    return json.dumps(obj, ensure_ascii=False, allow_nan=False)
+
+
+def _fail(exc: BaseException, show_traceback: bool) -> None:
+    if show_traceback:
+        traceback.print_exception(type(exc), exc, exc.__traceback__, file=sys.stderr)
+    print(f"gammatrace: {type(exc).__name__}: {exc}", file=sys.stderr)
+
+
+def _cmd_analyze(args: argparse.Namespace) -> int:
+    from .analysis import analyze_many
+    from .io import FrameError
+    from .representations import parse_basis
+
+    bases = ["atoms", "cartesian"] + [b for b in (args.basis or []) if b not in ("atoms", "cartesian")]
+    try:
+        for spec in bases:
+            parse_basis(spec)
+    except GammatraceError as exc:
+        _fail(exc, args.traceback)
+        return 2
+    status = 0
+    for result in analyze_many(args.paths, tol=args.tol):
+        if isinstance(result, FrameError):
+            status = 1
+            if args.format == "json":
+                _write(_dump(result.to_dict()) + "\n")
+            print(
+                f"gammatrace: {result.type}: {result.source} [frame {result.index}]: "
+                f"{result.message}",
+                file=sys.stderr,
+            )
+            continue
+        try:
+            if args.format == "json":
+                _write(_dump(result.to_dict(bases, orbits=args.orbits)) + "\n")
+            else:
+                _write(result.report(bases, worked=not args.brief) + "\n")
+                if args.orbits:
+                    for o in result.orbits:
+                        _write(f"    orbit of {o.size} ({o.site_group}): atoms {o.atoms}\n")
+                _write("\n")
+        except GammatraceError as exc:
+            status = 1
+            err = FrameError(result.structure.source, result.structure.index,
+                             type(exc).__name__, str(exc))
+            if args.format == "json":
+                _write(_dump(err.to_dict()) + "\n")
+            _fail(exc, args.traceback)
+        sys.stdout.flush()
+    return status
+
+
+def _cmd_table(args: argparse.Namespace) -> int:
+    from .tables import get_table
+
+    try:
+        table = get_table(args.group)
+    except GammatraceError as exc:
+        _fail(exc, args.traceback)
+        return 1
+    if args.format == "json":
+        _write(_dump(table.to_dict()) + "\n")
+    else:
+        _write(table.to_text() + "\n")
+    return 0
+
+
+def _cmd_correlate(args: argparse.Namespace) -> int:
+    try:
+        from .tables import correlate
+    except ImportError:
+        print("gammatrace: correlate is not available in this build", file=sys.stderr)
+        return 1
+    try:
+        result = correlate(args.group, args.subgroup)
+    except GammatraceError as exc:
+        _fail(exc, args.traceback)
+        return 1
+    if args.format == "json":
+        _write(_dump(result) + "\n")
+    else:
+        _write(f"{result['group']} -> {result['subgroup']}\n")
+        for emb in result["embeddings"]:
+            _write(f"  {emb['description']}\n")
+            for irrep, parts in emb["correlation"].items():
+                rhs = " + ".join(f"{n if n != 1 else ''}{k}" for k, n in parts.items())
+                _write(f"    {irrep:>6s} -> {rhs}\n")
+    return 0
+
+
+def _cmd_demo(args: argparse.Namespace) -> int:
+    from .demo import run_demo
+
+    return run_demo(out=args.out)
+
+
+def _parser() -> argparse.ArgumentParser:
+    from .analysis import DEFAULT_TOL
+
+    p = argparse.ArgumentParser(
+        prog="gammatrace",
+        description="Molecular point groups, characters and vibrational symmetry.",
+    )
+    p.add_argument("--traceback", action="store_true", help="print full tracebacks on errors")
+    sub = p.add_subparsers(dest="command", required=True)
+
+    a = sub.add_parser("analyze", help="point group, representations and vibrations")
+    a.add_argument("paths", nargs="+", metavar="PATH", help="XYZ file(s), '-' for stdin")
+    a.add_argument("--tol", type=float, default=DEFAULT_TOL,
+                   help=f"distance tolerance in Å (default {DEFAULT_TOL})")
+    a.add_argument("--format", choices=("text", "json"), default="text")
+    a.add_argument("--basis", action="append", metavar="SPEC",
+                   help="extra basis: pi, bonds, bond_vectors, orbitals:Fe=spd,H=s "
+                        "(repeatable; atoms and cartesian are always included)")
+    a.add_argument("--orbits", action="store_true", help="list symmetry-distinct atoms")
+    a.add_argument("--brief", action="store_true", help="text: omit the per-class tables")
+    a.set_defaults(func=_cmd_analyze)
+
+    t = sub.add_parser("table", help="the character table of a point group")
+    t.add_argument("group", metavar="GROUP", help="e.g. C2v, D6h, Td, Ih, C7v, D12d, D∞h")
+    t.add_argument("--format", choices=("text", "json"), default="text")
+    t.set_defaults(func=_cmd_table)
+
+    c = sub.add_parser("correlate", help="how irreps split in a subgroup")
+    c.add_argument("group", metavar="GROUP")
+    c.add_argument("subgroup", metavar="SUBGROUP")
+    c.add_argument("--format", choices=("text", "json"), default="text")
+    c.set_defaults(func=_cmd_correlate)
+
+    d = sub.add_parser("demo", help="run the bundled (invented) demo scenario")
+    d.add_argument("--out", default=None, help="folder for the demo's files and pictures")
+    d.set_defaults(func=_cmd_demo)
+    return p
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; returns the exit status (0, 1 or 2)."""
+    parser = _parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # argparse: 2 for a bad command line, 0 for --help
+        return int(exc.code or 0)
+    if getattr(args, "tol", 1.0) is not None and getattr(args, "tol", 1.0) <= 0:
+        print(f"gammatrace: --tol must be a positive distance in Å, got {args.tol}",
+              file=sys.stderr)
+        return 2
+    try:
+        return int(args.func(args))
+    except GammatraceError as exc:
+        _fail(exc, args.traceback)
+        return 1
+    except BrokenPipeError:
+        return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

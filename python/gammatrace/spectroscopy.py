@@ -1,0 +1,127 @@
+"""Vibrational symmetry: Γ_vib = Γ_3N − Γ_trans − Γ_rot, IR and Raman activity, selection rules.
+
+IR-active irreps transform as x, y or z; Raman-active ones as a quadratic function (read from the
+character table's basis functions). For linear molecules only Rx and Ry are rotations (3N − 5
+modes). Centrosymmetric structures obey mutual exclusion: no fundamental is both IR and Raman
+active.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+if TYPE_CHECKING:  # pragma: no cover
+    from .analysis import Analysis
+
+__all__ = ["Vibrations", "vibrations", "format_irreps"]
+
+
+@dataclass(frozen=True)
+class Vibrations:
+    """The vibrational representation of a structure.
+
+    Attributes
+    ----------
+    irreps : dict
+        Γ_vib: Mulliken label -> multiplicity.
+    modes : int
+        Number of vibrational degrees of freedom (3N − 6, or 3N − 5 when linear).
+    ir_active, raman_active : dict
+        The IR- and Raman-active part of Γ_vib.
+    n_fundamentals : int
+        Distinct fundamentals (a degenerate set counts once): Σ multiplicities.
+    n_ir, n_raman : int
+        Distinct IR-active and Raman-active fundamentals.
+    mutual_exclusion : bool
+        True for centrosymmetric structures (no fundamental both IR and Raman active).
+    characters : numpy.ndarray
+        Characters of Γ_vib per class.
+    """
+
+    irreps: dict
+    modes: int
+    ir_active: dict
+    raman_active: dict
+    n_fundamentals: int
+    n_ir: int
+    n_raman: int
+    mutual_exclusion: bool
+    characters: np.ndarray
+
+    def to_dict(self) -> dict:
+        """The ``vibrations`` object of shared/INTERFACE.md (plus counts)."""
+        return {
+            "irreps": self.irreps,
+            "modes": self.modes,
+            "ir_active": self.ir_active,
+            "raman_active": self.raman_active,
+            "n_fundamentals": self.n_fundamentals,
+            "n_ir_active": self.n_ir,
+            "n_raman_active": self.n_raman,
+            "mutual_exclusion": self.mutual_exclusion,
+        }
+
+
+def format_irreps(irreps: dict) -> str:
+    """``{"A1": 2, "B2": 1}`` -> ``"2A1 + B2"``; empty -> ``"0"``."""
+    if not irreps:
+        return "0"
+    return " + ".join(f"{n if n != 1 else ''}{label}" for label, n in irreps.items())
+
+
+def vibrations(analysis: "Analysis") -> Vibrations:
+    """Γ_vib of an analysed structure, with IR and Raman activity.
+
+    Raises
+    ------
+    ReductionError
+        If Γ_vib does not reduce to non-negative integers (a bug or a tolerance problem).
+    """
+    n = analysis.n_atoms
+    table = analysis.table
+    if table is None:  # a single atom: no vibrations
+        return Vibrations({}, 0, {}, {}, 0, 0, 0, False, np.zeros(1))
+    gamma_3n = analysis.representation("cartesian").characters
+    trans = np.asarray(table.vector_characters, dtype=np.float64)
+    rot = np.asarray(table.rotation_characters, dtype=np.float64)
+    if table.is_linear:
+        # Rotation about the molecular axis is not a degree of freedom: drop the Rz irrep.
+        rz = [ir for ir in table.irreps if "Rz" in ir.functions]
+        rot = rot - np.asarray(rz[0].characters, dtype=np.float64)
+        modes = 3 * n - 5
+    else:
+        modes = 3 * n - 6
+    if n == 1:
+        modes = 0
+    chars = gamma_3n - trans - rot
+    irreps = table.reduce(chars, what="Γ_vib")
+    negative = {k: v for k, v in irreps.items() if v < 0}
+    if negative:
+        from .errors import ReductionError
+
+        raise ReductionError(f"Γ_vib has negative multiplicities {negative}: characters {chars}")
+    dims = {ir.label: ir.dim for ir in table.irreps}
+    total = sum(dims[k] * v for k, v in irreps.items())
+    if total != modes:
+        from .errors import ReductionError
+
+        raise ReductionError(f"Γ_vib spans {total} modes, expected {modes}: {irreps}")
+    ir_set = set(table.ir_active_irreps)
+    raman_set = set(table.raman_active_irreps)
+    ir = {k: v for k, v in irreps.items() if k in ir_set}
+    raman = {k: v for k, v in irreps.items() if k in raman_set}
+    centro = any(c.label == "i" for c in table.classes)
+    return Vibrations(
+        irreps,
+        modes,
+        ir,
+        raman,
+        int(sum(irreps.values())),
+        int(sum(ir.values())),
+        int(sum(raman.values())),
+        centro,
+        chars,
+    )

@@ -1,0 +1,230 @@
+//! Many structures at once: detection plus unshifted-atom counts for every operation, in
+//! parallel on a rayon pool of its own, results in input order for any thread count.
+//!
+//! Structures arrive as ragged arrays: all positions concatenated, with `offsets` (length
+//! n_structures + 1) marking where each starts. One bad structure never stops the batch: its
+//! slot carries the error, and a panic in the core (a bug) is caught and reported the same way.
+
+use crate::count;
+use crate::detect::{self, DetectOptions};
+use crate::error::{Error, Result};
+
+/// Per-structure results of [`summarize_batch`], all vectors in input order.
+#[derive(Debug, Default)]
+pub struct BatchSummary {
+    /// Schoenflies name, empty for a failed structure.
+    pub point_group: Vec<String>,
+    /// Number of operations found (of the finite subgroup for linear molecules); 0 on error.
+    pub order: Vec<i64>,
+    /// Largest image distance over the verified operations, Å (NaN on error).
+    pub max_deviation: Vec<f64>,
+    /// Number of proper operations.
+    pub n_proper: Vec<i64>,
+    /// Standard frame of each structure (rows = x, y, z axes in input coordinates).
+    pub frames: Vec<[[f64; 3]; 3]>,
+    /// All operations of all structures, concatenated (input frame).
+    pub operations: Vec<[[f64; 3]; 3]>,
+    /// Proper/improper flag of each operation.
+    pub proper: Vec<bool>,
+    /// Angle of each operation, degrees in [0, 180].
+    pub angle: Vec<f64>,
+    /// Where each structure's operations start in `operations` (length n_structures + 1).
+    pub op_offsets: Vec<usize>,
+    /// Unshifted atoms of each operation.
+    pub unshifted: Vec<u64>,
+    /// The error of each failed structure.
+    pub errors: Vec<Option<Error>>,
+}
+
+struct One {
+    point_group: String,
+    max_deviation: f64,
+    frame: [[f64; 3]; 3],
+    ops: Vec<crate::ops::PointOp>,
+    unshifted: Vec<u64>,
+}
+
+fn analyse_one(positions: &[[f64; 3]], numbers: &[i64], opts: &DetectOptions) -> Result<One> {
+    let sym = detect::find_point_group(positions, numbers, opts)?;
+    let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
+    let unshifted = count::count_unshifted(positions, sym.center, &mats, opts.tol);
+    Ok(One {
+        point_group: sym.point_group,
+        max_deviation: sym.max_deviation,
+        frame: sym.frame,
+        ops: sym.ops,
+        unshifted,
+    })
+}
+
+fn panic_message(payload: &(dyn std::any::Any + Send)) -> String {
+    if let Some(s) = payload.downcast_ref::<&str>() {
+        (*s).to_string()
+    } else if let Some(s) = payload.downcast_ref::<String>() {
+        s.clone()
+    } else {
+        "unknown panic".to_string()
+    }
+}
+
+/// Detect the point group of every structure and count unshifted atoms per operation.
+///
+/// `positions` (Å) and `numbers` hold all structures concatenated; structure k is
+/// `offsets[k]..offsets[k+1]`. `n_threads = 0` uses all cores. Errors: `InvalidArgument`
+/// when the offsets do not describe the arrays (the whole call fails); per-structure problems
+/// land in `errors` and the rest go on.
+pub fn summarize_batch(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    offsets: &[usize],
+    opts: &DetectOptions,
+    n_threads: usize,
+) -> Result<BatchSummary> {
+    if positions.len() != numbers.len() {
+        return Err(Error::LengthMismatch {
+            n_positions: positions.len(),
+            n_numbers: numbers.len(),
+        });
+    }
+    if offsets.is_empty() {
+        return Ok(BatchSummary {
+            op_offsets: vec![0],
+            ..Default::default()
+        });
+    }
+    for (k, w) in offsets.windows(2).enumerate() {
+        if w[1] < w[0] {
+            return Err(Error::InvalidArgument {
+                name: "offsets".into(),
+                reason: format!("entry {} ({}) is smaller than entry {k} ({})", k + 1, w[1], w[0]),
+            });
+        }
+    }
+    let last = offsets[offsets.len() - 1];
+    if last > positions.len() {
+        return Err(Error::InvalidArgument {
+            name: "offsets".into(),
+            reason: format!("last offset {last} beyond the {} atoms given", positions.len()),
+        });
+    }
+    let pool = rayon::ThreadPoolBuilder::new()
+        .num_threads(n_threads)
+        .build()
+        .map_err(|e| Error::InvalidArgument {
+            name: "n_threads".into(),
+            reason: e.to_string(),
+        })?;
+    let n = offsets.len() - 1;
+    let results: Vec<Result<One>> = pool.install(|| {
+        use rayon::prelude::*;
+        (0..n)
+            .into_par_iter()
+            .map(|k| {
+                let (a, b) = (offsets[k], offsets[k + 1]);
+                let run = std::panic::AssertUnwindSafe(|| {
+                    analyse_one(&positions[a..b], &numbers[a..b], opts)
+                });
+                match std::panic::catch_unwind(run) {
+                    Ok(r) => r,
+                    Err(payload) => Err(Error::Internal {
+                        structure: k,
+                        reason: panic_message(payload.as_ref()),
+                    }),
+                }
+            })
+            .collect()
+    });
+    let mut out = BatchSummary {
+        op_offsets: Vec::with_capacity(n + 1),
+        ..Default::default()
+    };
+    out.op_offsets.push(0);
+    for r in results {
+        match r {
+            Ok(one) => {
+                out.point_group.push(one.point_group);
+                out.order.push(one.ops.len() as i64);
+                out.max_deviation.push(one.max_deviation);
+                out.n_proper
+                    .push(one.ops.iter().filter(|o| o.proper).count() as i64);
+                out.frames.push(one.frame);
+                for o in &one.ops {
+                    out.operations.push(o.matrix);
+                    out.proper.push(o.proper);
+                    out.angle.push(o.angle);
+                }
+                out.unshifted.extend_from_slice(&one.unshifted);
+                out.errors.push(None);
+            }
+            Err(e) => {
+                out.point_group.push(String::new());
+                out.order.push(0);
+                out.max_deviation.push(f64::NAN);
+                out.n_proper.push(0);
+                out.frames.push([[0.0; 3]; 3]);
+                out.errors.push(Some(e));
+            }
+        }
+        out.op_offsets.push(out.operations.len());
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn water() -> (Vec<[f64; 3]>, Vec<i64>) {
+        (
+            vec![[0.0, 0.0, 0.1173], [0.0, 0.7572, -0.4692], [0.0, -0.7572, -0.4692]],
+            vec![8, 1, 1],
+        )
+    }
+
+    #[test]
+    fn bad_structure_does_not_stop_the_batch() {
+        let (mut pos, mut num) = water();
+        let (p2, n2) = water();
+        pos.push([f64::NAN, 0.0, 0.0]);
+        num.push(6);
+        pos.extend(p2);
+        num.extend(n2);
+        let offsets = [0, 3, 4, 7];
+        let res = summarize_batch(&pos, &num, &offsets, &DetectOptions::default(), 2).unwrap();
+        assert_eq!(res.point_group, vec!["C2v".to_string(), String::new(), "C2v".into()]);
+        assert!(res.errors[1].is_some());
+        assert_eq!(res.op_offsets, vec![0, 4, 4, 8]);
+        // water: unshifted atoms under E, C2 and the two mirrors are 3, 1, 1, 3 in some order
+        let mut u = res.unshifted[0..4].to_vec();
+        u.sort();
+        assert_eq!(u, vec![1, 1, 3, 3]);
+    }
+
+    #[test]
+    fn results_do_not_depend_on_thread_count() {
+        let (p, n) = water();
+        let mut pos = Vec::new();
+        let mut num = Vec::new();
+        let mut offsets = vec![0];
+        for k in 0..40 {
+            let shift = k as f64;
+            pos.extend(p.iter().map(|x| [x[0] + shift, x[1], x[2]]));
+            num.extend(n.iter().copied());
+            offsets.push(pos.len());
+        }
+        let a = summarize_batch(&pos, &num, &offsets, &DetectOptions::default(), 1).unwrap();
+        let b = summarize_batch(&pos, &num, &offsets, &DetectOptions::default(), 2).unwrap();
+        assert_eq!(a.point_group, b.point_group);
+        assert_eq!(a.unshifted, b.unshifted);
+        assert_eq!(a.op_offsets, b.op_offsets);
+    }
+
+    #[test]
+    fn offsets_are_checked() {
+        let (p, n) = water();
+        assert!(summarize_batch(&p, &n, &[0, 5], &DetectOptions::default(), 1).is_err());
+        assert!(summarize_batch(&p, &n, &[2, 1], &DetectOptions::default(), 1).is_err());
+        let empty = summarize_batch(&p, &n, &[], &DetectOptions::default(), 1).unwrap();
+        assert!(empty.point_group.is_empty());
+    }
+}
