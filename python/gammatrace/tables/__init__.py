@@ -11,7 +11,7 @@ are found by transforming candidate functions under the canonical operations
 
 from __future__ import annotations
 
-from functools import lru_cache
+from functools import cache
 
 from ._types import ClassInfo, Irrep
 from .axial import axial_spec
@@ -21,18 +21,18 @@ from .polyhedral import polyhedral_spec
 from .table import CharacterTable
 
 __all__ = [
-    "get_table",
-    "CharacterTable",
-    "ClassInfo",
-    "Irrep",
-    "GroupName",
     "LINEAR_SUBGROUP_N",
     "MAX_N",
+    "CharacterTable",
+    "ClassInfo",
+    "GroupName",
+    "Irrep",
+    "get_table",
     "parse_group_name",
 ]
 
 
-@lru_cache(maxsize=None)
+@cache
 def _build(name: str) -> CharacterTable:
     parsed = parse_group_name(name)
     fam = parsed.family

@@ -14,17 +14,17 @@ from fractions import Fraction
 import numpy as np
 
 __all__ = [
-    "rotation",
-    "mirror",
-    "rot_z",
-    "SIGMA_H",
-    "INVERSION",
     "IDENTITY",
-    "describe",
-    "nearest",
-    "lookup",
+    "INVERSION",
+    "SIGMA_H",
     "close",
+    "describe",
+    "lookup",
+    "mirror",
+    "nearest",
     "real_classes",
+    "rot_z",
+    "rotation",
     "rotation_label",
 ]
 
@@ -99,7 +99,11 @@ def describe(ops: np.ndarray):
     proper = det > 0
     q = np.where(proper[:, None, None], ops, -ops)  # proper part
     tr = np.trace(q, axis1=1, axis2=2)
-    ang_q = np.degrees(np.arccos(np.clip((tr - 1.0) / 2.0, -1.0, 1.0)))
+    # θ = atan2(sinθ, cosθ) keeps full precision near 0° and 180°, where arccos does not:
+    # the antisymmetric part of Q is sinθ·[a]x.
+    anti = 0.5 * (q - np.transpose(q, (0, 2, 1)))
+    sin_q = np.sqrt(anti[:, 0, 1] ** 2 + anti[:, 0, 2] ** 2 + anti[:, 1, 2] ** 2)
+    ang_q = np.degrees(np.arctan2(sin_q, (tr - 1.0) / 2.0))
     angle = np.where(proper, ang_q, 180.0 - ang_q)
     # Axis of the proper part: from the symmetric part S = cosθ I + (1 − cosθ) a aᵀ.
     c = np.cos(np.radians(ang_q))
@@ -108,7 +112,11 @@ def describe(ops: np.ndarray):
     axis = sym[np.arange(len(ops)), :, col]
     norm = np.linalg.norm(axis, axis=1)
     undefined = norm < 1e-9
-    axis = np.where(undefined[:, None], np.array([0.0, 0.0, 1.0]), axis / np.where(undefined, 1.0, norm)[:, None])
+    axis = np.where(
+        undefined[:, None],
+        np.array([0.0, 0.0, 1.0]),
+        axis / np.where(undefined, 1.0, norm)[:, None],
+    )
     return proper, angle, axis
 
 

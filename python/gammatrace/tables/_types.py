@@ -3,11 +3,11 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import NamedTuple, Optional, Tuple
+from typing import NamedTuple
 
 import numpy as np
 
-__all__ = ["ClassInfo", "Irrep", "TableSpec", "snap", "GOLDEN_PLUS", "GOLDEN_MINUS"]
+__all__ = ["GOLDEN_MINUS", "GOLDEN_PLUS", "ClassInfo", "Irrep", "TableSpec", "snap"]
 
 
 class ClassInfo(NamedTuple):
@@ -48,8 +48,8 @@ class Irrep(NamedTuple):
 
     label: str
     dim: int
-    characters: Tuple[float, ...]
-    functions: Tuple[str, ...]
+    characters: tuple[float, ...]
+    functions: tuple[str, ...]
 
 
 @dataclass
@@ -65,10 +65,10 @@ class TableSpec:
     name: str
     ops: np.ndarray
     op_class: np.ndarray
-    classes: Tuple[ClassInfo, ...]
-    irrep_labels: Tuple[str, ...]
+    classes: tuple[ClassInfo, ...]
+    irrep_labels: tuple[str, ...]
     characters: np.ndarray
-    order: Optional[int]
+    order: int | None
     is_linear: bool = False
 
 

@@ -32,7 +32,7 @@ import numpy as np
 from ._ops import INVERSION, SIGMA_H, describe, lookup, real_classes, rot_z, rotation_label
 from ._types import ClassInfo, TableSpec, snap
 
-__all__ = ["axial_spec", "axial_ops"]
+__all__ = ["axial_ops", "axial_spec"]
 
 
 def _perp(beta, z_sign: float) -> np.ndarray:
@@ -89,9 +89,7 @@ def axial_ops(family: str, n: int):
         return np.concatenate([dn, SIGMA_H @ dn]), gens + [SIGMA_H]
     if family == "Dd":
         s2n, _ = axial_ops("S", 2 * n)
-        ops = np.concatenate(
-            [s2n, _perp(np.pi * k / n, -1.0), _perp(np.pi * (k + 0.5) / n, 1.0)]
-        )
+        ops = np.concatenate([s2n, _perp(np.pi * k / n, -1.0), _perp(np.pi * (k + 0.5) / n, 1.0)])
         return ops, [s2n[1], _perp(0.0, -1.0)]
     raise ValueError(f"internal: unknown axial family {family!r}")
 
@@ -316,10 +314,12 @@ def axial_spec(family: str, n: int, name: str) -> TableSpec:
     # Renumber: class index in print order for every operation.
     new_index = np.empty(len(ops), dtype=np.int64)
     classes = []
+    position = np.empty(len(reps), dtype=np.int64)
+    position[np.asarray(order)] = np.arange(len(order))
+    new_index[:] = position[np.searchsorted(reps, cls)]
+    sizes = np.bincount(new_index, minlength=len(reps))
     for pos, j in enumerate(order):
-        members = cls == reps[j]
-        new_index[members] = pos
-        size = int(members.sum())
+        size = int(sizes[pos])
         label = (f"{size}" if size > 1 else "") + names[j]
         classes.append(ClassInfo(label, size, bool(proper[j]), float(np.round(angle[j], 10))))
     # Parameters of the planar image M: of the operation itself for the families that are
@@ -333,16 +333,13 @@ def axial_spec(family: str, n: int, name: str) -> TableSpec:
     d = np.linalg.det(planar[:, :2, :2])
     ang = np.arctan2(planar[:, 1, 0], planar[:, 0, 0])
     labels, rows = [], []
+    rep_of_class = np.unique(new_index, return_index=True)[1]
     for label, fn in _irreps(family, n):
         per_op = np.broadcast_to(fn(s, d, ang), s.shape).astype(np.float64)
-        row = np.zeros(len(classes))
-        for c in range(len(classes)):
-            vals = per_op[new_index == c]
-            if np.ptp(vals) > 1e-8:
-                raise RuntimeError(f"internal: {name} irrep {label} is not a class function")
-            row[c] = vals[0]
+        if np.abs(per_op - per_op[rep_of_class[new_index]]).max() > 1e-8:
+            raise RuntimeError(f"internal: {name} irrep {label} is not a class function")
         labels.append(label)
-        rows.append(row)
+        rows.append(per_op[rep_of_class])
     chars = snap(np.array(rows))
     return TableSpec(
         name=name,

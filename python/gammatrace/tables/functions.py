@@ -69,13 +69,10 @@ def _characters_of(name: str, ops: np.ndarray):
 
 def _single_irrep(chi_ops, op_class, char_matrix, sizes, h, kappa):
     """Index of the irrep that the per-operation character chi_ops is, or None."""
-    n_cls = char_matrix.shape[1]
-    chi = np.zeros(n_cls)
-    for c in range(n_cls):
-        vals = chi_ops[op_class == c]
-        if np.ptp(vals) > 1e-8:
-            return None
-        chi[c] = vals[0]
+    reps = np.unique(op_class, return_index=True)[1]
+    chi = chi_ops[reps]
+    if np.abs(chi_ops - chi[op_class]).max() > 1e-8:
+        return None
     n = (char_matrix * sizes) @ chi / (h * kappa)
     if np.abs(n - np.round(n)).max() > 1e-6:
         return None
@@ -118,7 +115,10 @@ def match_functions(ops, op_class, char_matrix, sizes, kappa):
 
     def irreducible(name):
         chi = _characters_of(name, ops)
-        return chi is not None and _single_irrep(chi, op_class, char_matrix, sizes, h, kappa) is not None
+        return (
+            chi is not None
+            and _single_irrep(chi, op_class, char_matrix, sizes, h, kappa) is not None
+        )
 
     if irreducible("(x,y,z)"):
         for name in ("(x,y,z)", "(Rx,Ry,Rz)", "x2+y2+z2"):

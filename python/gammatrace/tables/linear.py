@@ -14,8 +14,8 @@ except that ``order`` is reported as None: the group itself is infinite.
 
 from __future__ import annotations
 
-from .axial import axial_spec
 from ._types import TableSpec
+from .axial import axial_spec
 
 __all__ = ["LINEAR_SUBGROUP_N", "MAX_ABS_M", "linear_spec"]
 
@@ -45,8 +45,12 @@ def _linear_labels(spec: TableSpec):
     rank = {"+": 0, "-": 1}
     order = sorted(
         range(len(labels)),
-        key=lambda j: (labels[j][-1] == "u" or labels[j][-2:] in ("u+", "u-"),
-                       labels[j][0] != "Σ", rank.get(labels[j][-1], 0), j),
+        key=lambda j: (
+            labels[j][-1] == "u" or labels[j][-2:] in ("u+", "u-"),
+            labels[j][0] != "Σ",
+            rank.get(labels[j][-1], 0),
+            j,
+        ),
     )
     return [labels[j] for j in order], order
 

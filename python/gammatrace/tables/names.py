@@ -18,11 +18,11 @@ that one group has exactly one spelling everywhere.
 from __future__ import annotations
 
 import re
-from typing import NamedTuple, Optional
+from typing import NamedTuple
 
 from ..errors import TableError
 
-__all__ = ["GroupName", "parse_group_name", "MAX_N", "ACCEPTED_FORMS"]
+__all__ = ["ACCEPTED_FORMS", "MAX_N", "GroupName", "parse_group_name"]
 
 #: Largest n accepted for the axial families (Cn, Cnv, Cnh, Dn, Dnh, Dnd; S2n up to S2000).
 MAX_N = 1000
@@ -50,7 +50,7 @@ class GroupName(NamedTuple):
 
     name: str
     family: str
-    n: Optional[int]
+    n: int | None
 
 
 _FIXED = {

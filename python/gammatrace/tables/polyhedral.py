@@ -19,7 +19,7 @@ import numpy as np
 from ._ops import INVERSION, close, describe, mirror, real_classes, rotation
 from ._types import GOLDEN_MINUS, GOLDEN_PLUS, ClassInfo, TableSpec, snap
 
-__all__ = ["polyhedral_spec", "POLYHEDRAL"]
+__all__ = ["POLYHEDRAL", "polyhedral_spec"]
 
 _C2X = np.diag([1.0, -1.0, -1.0])
 _C2Z = np.diag([-1.0, -1.0, 1.0])

@@ -14,8 +14,6 @@ which equals the complex formula n_i = (1/h) Σ g χ χ_i* for each member of th
 
 from __future__ import annotations
 
-from typing import Dict, List, Optional
-
 import numpy as np
 
 from ..errors import ReductionError, SymmetryError
@@ -61,9 +59,9 @@ class CharacterTable:
 
     def __init__(self, spec: TableSpec):
         self.name: str = spec.name
-        self.order: Optional[int] = spec.order
+        self.order: int | None = spec.order
         self.is_linear: bool = spec.is_linear
-        self.classes: List[ClassInfo] = list(spec.classes)
+        self.classes: list[ClassInfo] = list(spec.classes)
         chars = np.array(spec.characters, dtype=np.float64)
         self.character_matrix = chars
         self.class_sizes = np.array([c.size for c in self.classes], dtype=np.int64)
@@ -79,12 +77,12 @@ class CharacterTable:
         functions = match_functions(
             self.operations, self.operation_class, chars, self.class_sizes, self._kappa
         )
-        self.irreps: List[Irrep] = [
-            Irrep(label, int(round(row[0])), tuple(float(v) for v in row), funcs)
+        self.irreps: list[Irrep] = [
+            Irrep(label, round(row[0]), tuple(row.tolist()), funcs)
             for label, row, funcs in zip(spec.irrep_labels, chars, functions)
         ]
         self._labels = [ir.label for ir in self.irreps]
-        reps = np.array([np.flatnonzero(self.operation_class == c)[0] for c in range(len(self.classes))])
+        reps = np.unique(self.operation_class, return_index=True)[1]
         self._rep_ops = self.operations[reps]
         squares = self._rep_ops @ self._rep_ops
         self._square_class = self.operation_class[lookup(self.operations, squares)]
@@ -100,7 +98,7 @@ class CharacterTable:
         return self._kappa.copy()
 
     @property
-    def labels(self) -> List[str]:
+    def labels(self) -> list[str]:
         """Irrep labels in table order."""
         return list(self._labels)
 
@@ -210,7 +208,7 @@ class CharacterTable:
             f"characters [{cols}] give {parts}"
         )
 
-    def reduce(self, chars_per_class, what: str = "representation") -> Dict[str, int]:
+    def reduce(self, chars_per_class, what: str = "representation") -> dict[str, int]:
         """Reduce a representation into irreps with the reduction formula.
 
         Parameters
@@ -283,7 +281,7 @@ class CharacterTable:
             out = out * self.character_matrix[self.index(lab)]
         return out
 
-    def decompose_product(self, *labels: str) -> Dict[str, int]:
+    def decompose_product(self, *labels: str) -> dict[str, int]:
         """Irreps in the direct product of the named irreps, e.g. E ⊗ E = A1 + A2 + E."""
         return self.reduce(self.direct_product(*labels), what=" x ".join(labels))
 
@@ -291,11 +289,11 @@ class CharacterTable:
         chi = self.character_matrix[self.index(label)]
         return (chi**2 + sign * chi[self._square_class]) / 2.0
 
-    def symmetric_square(self, label: str) -> Dict[str, int]:
+    def symmetric_square(self, label: str) -> dict[str, int]:
         """Irreps in the symmetric square [Γ²]: χ(R) = (χ(R)² + χ(R²)) / 2."""
         return self.reduce(self._square_chars(label, 1.0), what=f"[{label}]^2")
 
-    def antisymmetric_square(self, label: str) -> Dict[str, int]:
+    def antisymmetric_square(self, label: str) -> dict[str, int]:
         """Irreps in the antisymmetric square {Γ²}: χ(R) = (χ(R)² − χ(R²)) / 2."""
         return self.reduce(self._square_chars(label, -1.0), what=f"{{{label}}}^2")
 
