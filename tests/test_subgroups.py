@@ -1,12 +1,12 @@
 """Tests of gammatrace.tables.subgroups: enumeration, identification, frames, correlation."""
 
 import doctest
+import importlib
 
 import numpy as np
 import pytest
 from gammatrace.errors import TableError
 from gammatrace.tables import get_table
-from gammatrace.tables import subgroups as subgroups_mod
 from gammatrace.tables._ops import lookup, nearest
 from gammatrace.tables.subgroups import SubgroupEmbedding, correlate, identify_group, subgroups
 
@@ -63,13 +63,11 @@ PUBLISHED = [
         "Oh",
         "D4h",
         {
-            
-                "A1g": {"A1g": 1},
-                "A2g": {"B1g": 1},
-                "Eg": {"A1g": 1, "B1g": 1},
-                "T1g": {"A2g": 1, "Eg": 1},
-                "T2g": {"B2g": 1, "Eg": 1}
-            ,
+            "A1g": {"A1g": 1},
+            "A2g": {"B1g": 1},
+            "Eg": {"A1g": 1, "B1g": 1},
+            "T1g": {"A2g": 1, "Eg": 1},
+            "T2g": {"B2g": 1, "Eg": 1},
             **_u(
                 {
                     "A1g": {"A1g": 1},
@@ -86,13 +84,11 @@ PUBLISHED = [
         "Oh",
         "D3d",
         {
-            
-                "A1g": {"A1g": 1},
-                "A2g": {"A2g": 1},
-                "Eg": {"Eg": 1},
-                "T1g": {"A2g": 1, "Eg": 1},
-                "T2g": {"A1g": 1, "Eg": 1}
-            ,
+            "A1g": {"A1g": 1},
+            "A2g": {"A2g": 1},
+            "Eg": {"Eg": 1},
+            "T1g": {"A2g": 1, "Eg": 1},
+            "T2g": {"A1g": 1, "Eg": 1},
             **_u(
                 {
                     "A1g": {"A1g": 1},
@@ -145,13 +141,11 @@ PUBLISHED = [
         "Ih",
         "D5d",
         {
-            
-                "Ag": {"A1g": 1},
-                "T1g": {"A2g": 1, "E1g": 1},
-                "T2g": {"A2g": 1, "E2g": 1},
-                "Gg": {"E1g": 1, "E2g": 1},
-                "Hg": {"A1g": 1, "E1g": 1, "E2g": 1}
-            ,
+            "Ag": {"A1g": 1},
+            "T1g": {"A2g": 1, "E1g": 1},
+            "T2g": {"A2g": 1, "E2g": 1},
+            "Gg": {"E1g": 1, "E2g": 1},
+            "Hg": {"A1g": 1, "E1g": 1, "E2g": 1},
             **_u(
                 {
                     "Ag": {"A1g": 1},
@@ -168,13 +162,11 @@ PUBLISHED = [
         "Ih",
         "D3d",
         {
-            
-                "Ag": {"A1g": 1},
-                "T1g": {"A2g": 1, "Eg": 1},
-                "T2g": {"A2g": 1, "Eg": 1},
-                "Gg": {"A1g": 1, "A2g": 1, "Eg": 1},
-                "Hg": {"A1g": 1, "Eg": 2}
-            ,
+            "Ag": {"A1g": 1},
+            "T1g": {"A2g": 1, "Eg": 1},
+            "T2g": {"A2g": 1, "Eg": 1},
+            "Gg": {"A1g": 1, "A2g": 1, "Eg": 1},
+            "Hg": {"A1g": 1, "Eg": 2},
             **_u(
                 {
                     "Ag": {"A1g": 1},
@@ -191,13 +183,11 @@ PUBLISHED = [
         "Ih",
         "Th",
         {
-            
-                "Ag": {"Ag": 1},
-                "T1g": {"Tg": 1},
-                "T2g": {"Tg": 1},
-                "Gg": {"Ag": 1, "Tg": 1},
-                "Hg": {"Eg": 1, "Tg": 1}
-            ,
+            "Ag": {"Ag": 1},
+            "T1g": {"Tg": 1},
+            "T2g": {"Tg": 1},
+            "Gg": {"Ag": 1, "Tg": 1},
+            "Hg": {"Eg": 1, "Tg": 1},
             **_u(
                 {
                     "Ag": {"Ag": 1},
@@ -411,5 +401,7 @@ def test_linear_subgroups_have_no_indices():
 
 
 def test_docstring_examples():
-    result = doctest.testmod(subgroups_mod)
+    # The package exports the function subgroups, which shadows the module's name.
+    module = importlib.import_module("gammatrace.tables.subgroups")
+    result = doctest.testmod(module)
     assert result.failed == 0 and result.attempted > 0

@@ -6,7 +6,8 @@ axial families are generated for any n (``axial``), the polyhedral groups are ta
 (``polyhedral``), and the linear groups are reported through the finite subgroups C13v
 and D13d (``linear``; |m| ≤ 6). Tables are in real form (see ``table``). Basis functions
 are found by transforming candidate functions under the canonical operations
-(``functions``).
+(``functions``). ``subgroups`` and ``correlate`` give the subgroups of a group and the
+correlation of its irreps into them (``subgroups``).
 """
 
 from __future__ import annotations
@@ -18,6 +19,7 @@ from .axial import axial_spec
 from .linear import LINEAR_SUBGROUP_N, linear_spec
 from .names import MAX_N, GroupName, parse_group_name
 from .polyhedral import polyhedral_spec
+from .subgroups import SubgroupEmbedding, correlate, subgroups
 from .table import CharacterTable
 
 __all__ = [
@@ -27,8 +29,11 @@ __all__ = [
     "ClassInfo",
     "GroupName",
     "Irrep",
+    "SubgroupEmbedding",
+    "correlate",
     "get_table",
     "parse_group_name",
+    "subgroups",
 ]
 
 

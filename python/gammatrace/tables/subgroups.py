@@ -488,9 +488,20 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
             if parent.is_linear and key in seen:
                 continue  # conjugate in the infinite group (a rotation about z)
             seen.add(key)
-            desc = _describe(parent.name, finite, sub.name, sub, idx, f, len(fs) > 1)
+            desc = _describe(parent.name, finite, sub.name, sub, idx, f, _n_choices(fs) > 1)
             embeddings.append({"description": desc, "correlation": corr})
     return {"group": parent.name, "subgroup": sub.name, "embeddings": embeddings}
+
+
+def _line(v: np.ndarray) -> tuple:
+    """A direction up to sign, as a hashable key."""
+    j = int(np.argmax(np.abs(v) > 1e-6))
+    return tuple(np.round(v * np.sign(v[j]), 6) + 0.0)
+
+
+def _n_choices(frames) -> int:
+    """Number of frames that differ by more than the signs of their axes."""
+    return len({(_line(f[2]), _line(f[0])) for f in frames})
 
 
 def _name_key(name: str):
