@@ -12,6 +12,7 @@
 pub mod error;
 
 pub use error::{Error, Result};
+pub mod detect;
 pub mod lookup;
 pub mod ops;
 pub mod structure;
