@@ -272,6 +272,11 @@ fn finish(
     let mut permutations = Vec::with_capacity(verified.len());
     let mut max_deviation = 0.0_f64;
     for &k in &verified {
+        if k == 0 {
+            // E maps every atom onto itself at distance 0.
+            permutations.push((0..n as u32).collect());
+            continue;
+        }
         let (perm, dev) = map_atoms(&ctx.grid, &ctx.x, ctx.numbers, &ops[k].matrix, ctx.tol)?;
         max_deviation = max_deviation.max(dev);
         permutations.push(perm);

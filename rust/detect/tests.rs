@@ -799,3 +799,100 @@ fn test_huge_coordinates_and_collinear_planar_inputs_do_not_panic() {
     assert_eq!(s.point_group, "Cs");
     assert!((s.frame[2][2].abs() - 1.0).abs() < 1e-9);
 }
+
+/// Timing of a large noisy icosahedral cluster in release mode (not part of the suite):
+/// `cargo test --release -- --ignored --nocapture timing_large_icosahedral_cluster`.
+/// Set GAMMATRACE_TIMING_ATOMS to choose the size (default 1 000 080).
+#[test]
+#[ignore]
+fn timing_large_icosahedral_cluster() {
+    use std::time::Instant;
+    let target: usize = std::env::var("GAMMATRACE_TIMING_ATOMS")
+        .ok()
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(1_000_080);
+    let mut gens = rot_group_i();
+    gens.push(PointOp::inversion());
+    let g = group(&gens);
+    assert_eq!(g.len(), 120);
+    let mut rng = Rng(1234);
+    let n_seeds = target / 120;
+    // Uniform in a ball whose volume gives ~3 Å spacing.
+    let radius = (n_seeds as f64 * 120.0 * 33.0 * 3.0 / (4.0 * std::f64::consts::PI)).cbrt();
+    let mut p = Vec::with_capacity(n_seeds * 120);
+    let mut z = Vec::with_capacity(n_seeds * 120);
+    for k in 0..n_seeds {
+        // A seed whose 120 images stay ≥ 1 Å apart (off every symmetry element).
+        let images = loop {
+            let q = [rng.sym(), rng.sym(), rng.sym()];
+            if norm(&q) > 1.0 || norm(&q) < 0.05 {
+                continue;
+            }
+            let s = [q[0] * radius, q[1] * radius, q[2] * radius];
+            let im: Vec<[f64; 3]> = g.iter().map(|m| mat_vec(m, &s)).collect();
+            let ok = (0..120).all(|i| (0..i).all(|j| norm(&sub(&im[i], &im[j])) >= 1.0));
+            if ok {
+                break im;
+            }
+        };
+        p.extend(images);
+        z.extend(std::iter::repeat(6 + (k % 2) as i64).take(120));
+    }
+    // Drop whole orbits that happen to come within 0.05 Å of another orbit.
+    loop {
+        let grid = Grid::build(&p, &z, 0.05).unwrap();
+        let Some((_, j, _)) = find_overlap(&grid) else {
+            break;
+        };
+        let k = j / 120;
+        p.drain(k * 120..(k + 1) * 120);
+        z.drain(k * 120..(k + 1) * 120);
+    }
+    let atoms = perturb(&(p, z), &mut rng);
+    let (p, z) = atoms;
+    let n = p.len();
+    let t = Instant::now();
+    let grid = Grid::build(&p, &z, 0.01).unwrap();
+    let t_grid = t.elapsed();
+    let t = Instant::now();
+    let ov = find_overlap(&grid);
+    let t_ov = t.elapsed();
+    let c5 = PointOp::rotation([0.0, 1.0, phi()], 72.0);
+    let t = Instant::now();
+    let mapped = map_atoms(&grid, &p, &z, &c5.matrix, 0.01);
+    let t_map = t.elapsed();
+    let t = Instant::now();
+    let pool1 = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .unwrap();
+    let mapped1 = pool1.install(|| map_atoms(&grid, &p, &z, &c5.matrix, 0.01));
+    let t_map1 = t.elapsed();
+    println!(
+        "{n} atoms, radius {radius:.0} Å, cell {:.2} Å: grid {:?}, overlap {:?} ({:?}), \
+         map C5 {:?} ({:.1} ns/atom; 1 thread {:.1} ns/atom; ok {} {})",
+        grid.cell_size(),
+        t_grid,
+        t_ov,
+        ov,
+        t_map,
+        t_map.as_nanos() as f64 / n as f64,
+        t_map1.as_nanos() as f64 / n as f64,
+        mapped.is_ok(),
+        mapped1.is_ok(),
+    );
+    let t = Instant::now();
+    let s = find_point_group(&p, &z, &DetectOptions::default());
+    let t_all = t.elapsed();
+    match s {
+        Ok(s) => println!(
+            "find_point_group: {} (order {}, {} verified, max dev {:.4} Å) in {:?}",
+            s.point_group,
+            s.order(),
+            s.verified.len(),
+            s.max_deviation,
+            t_all
+        ),
+        Err(e) => println!("find_point_group failed after {t_all:?}: {e}"),
+    }
+}
