@@ -66,6 +66,16 @@ pub enum Error {
         /// Distance to the nearest atom of the same element, Å (infinite if none).
         distance: f64,
     },
+    /// Two atoms map onto the same atom under an operation (the tolerance is too loose for the
+    /// spacing of the structure).
+    AmbiguousImage {
+        /// The atom that claimed the image first (zero-based).
+        first: usize,
+        /// The second atom mapped onto it (zero-based).
+        second: usize,
+        /// The atom both map onto (zero-based).
+        image: usize,
+    },
     /// The operations found do not close into a finite group (tolerance too loose or too tight).
     GroupClosure {
         /// What went wrong, in words.
@@ -109,7 +119,10 @@ impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
             Error::EmptyStructure => write!(f, "the structure has no atoms"),
-            Error::LengthMismatch { n_positions, n_numbers } => write!(
+            Error::LengthMismatch {
+                n_positions,
+                n_numbers,
+            } => write!(
                 f,
                 "{n_positions} coordinate rows but {n_numbers} atomic numbers: they must match"
             ),
@@ -120,14 +133,18 @@ impl fmt::Display for Error {
                 f,
                 "atom {atom} has coordinate {value:e} Å, beyond the supported range of ±1e6 Å"
             ),
-            Error::UnknownAtomicNumber { atom, number } => write!(
-                f,
-                "atom {atom} has atomic number {number}, outside 1..=118"
-            ),
+            Error::UnknownAtomicNumber { atom, number } => {
+                write!(f, "atom {atom} has atomic number {number}, outside 1..=118")
+            }
             Error::UnknownElement { symbol } => {
                 write!(f, "unknown element symbol '{symbol}'")
             }
-            Error::OverlappingAtoms { first, second, distance, tolerance } => write!(
+            Error::OverlappingAtoms {
+                first,
+                second,
+                distance,
+                tolerance,
+            } => write!(
                 f,
                 "atoms {first} and {second} are {distance:.3e} Å apart, within the tolerance \
                  {tolerance} Å: overlapping atoms"
@@ -141,10 +158,24 @@ impl fmt::Display for Error {
                 "operation is not a symmetry: atom {atom} has no image of its element \
                  (nearest at {distance:.3e} Å)"
             ),
+            Error::AmbiguousImage {
+                first,
+                second,
+                image,
+            } => write!(
+                f,
+                "atoms {first} and {second} both map onto atom {image} under one operation: \
+                 the tolerance is too loose for this structure"
+            ),
             Error::GroupClosure { reason } => {
                 write!(f, "symmetry operations do not form a group: {reason}")
             }
-            Error::MalformedXyz { source, frame, line, reason } => {
+            Error::MalformedXyz {
+                source,
+                frame,
+                line,
+                reason,
+            } => {
                 write!(f, "line {line} of {source} (frame {frame}): {reason}")
             }
             Error::Io { source, reason } => write!(f, "{source}: {reason}"),

@@ -1,0 +1,708 @@
+//! Point-group detection for every molecular point group, any n, with the standard frame.
+//!
+//! Algorithm (all steps rest on operations verified against the atoms, never on inertia
+//! alone):
+//!
+//! 1. Validate; centre on the centre of mass; build the cell grid; reject overlapping atoms.
+//! 2. One atom → K_h. Atoms all within tol/2 of one line through the centre (the axis of
+//!    least inertia) → C∞v or D∞h, reported through C_Mv / D_Md (M = `linear_n`).
+//! 3. Otherwise enumerate the whole group directly. Pick a reference atom `a` (among atoms at
+//!    ≥ half the largest radius, the one whose *window* — same element, radius within 2·tol —
+//!    is smallest) and a second atom `b` off the line of `a` (among atoms at ≥ half the largest
+//!    distance from that line, the one with the smallest window). Every symmetry operation
+//!    maps a → a' in window(a) and b → b' in window(b) with |a'b'| ≈ |ab|, and is fixed by
+//!    (a', b') and its handedness: so the candidates are all such pairs, two matrices each.
+//!    A candidate is tested on a small probe of atoms with a loose tolerance (3·tol), refitted
+//!    by least squares (Kabsch) on the matches, tested on all atoms (a fixed sample of 4096
+//!    plus the two windows for structures above 20 000 atoms) at `tol`, and refitted again.
+//!    Nothing limits n.
+//! 4. The operations found must close under multiplication (checked exactly through the
+//!    images of a and b); the group is named from its content (orders of the rotations, number
+//!    of axes of order ≥ 3, σh, mirrors, inversion).
+//! 5. The standard frame follows DEVELOPERS.md "Standard orientation" (tie rules by counting
+//!    atoms on axes and planes, then by moments of inertia); the reported operations are the
+//!    group's ideal operations in that frame, rotated back to the input frame, so they form a
+//!    group exactly. They are verified against the atoms (all of them when
+//!    n_atoms·order ≤ `verify_all_limit`, otherwise E and the generators), giving the
+//!    permutations and `max_deviation`.
+//! 6. If the found operations do not close or an ideal operation fails verification (a
+//!    structure at the edge of the tolerance), steps 3–5 are repeated with the candidate
+//!    tolerance scaled by 0.85 and 0.7 before the error is returned.
+
+mod canonical;
+mod frame;
+
+use crate::error::{Error, Result};
+use crate::lookup::{find_overlap, map_atoms, Grid};
+use crate::ops::{dot, fit_orthogonal, mat_mul, mat_vec, norm, transpose, Mat3, PointOp, Vec3};
+use crate::structure;
+use canonical::{standard_operations, Family};
+use std::collections::HashMap;
+
+/// Default distance tolerance, Å (DEVELOPERS.md, "Tolerance").
+pub const DEFAULT_TOLERANCE: f64 = 0.01;
+/// Default M of the finite subgroups C_Mv / D_Md that stand for C∞v / D∞h.
+pub const LINEAR_SUBGROUP_N: usize = 13;
+/// Default bound on n_atoms × order up to which every operation is verified.
+pub const DEFAULT_VERIFY_ALL_LIMIT: usize = 20_000_000;
+
+/// Above this many atoms, candidate operations are screened on a sample of the atoms
+/// (the reported generators are still verified on all of them).
+const SAMPLE_ABOVE: usize = 20_000;
+const SAMPLE_SIZE: usize = 4096;
+
+/// Options of `find_point_group`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DetectOptions {
+    /// Distance tolerance, Å: an operation holds when every atom has an image of its element
+    /// within it.
+    pub tol: f64,
+    /// Odd M ≥ 3 of the finite subgroup C_Mv / D_Md reported for linear molecules.
+    pub linear_n: usize,
+    /// Verify (and compute permutations of) every operation when n_atoms·order ≤ this;
+    /// otherwise only E and the generators.
+    pub verify_all_limit: usize,
+}
+
+impl Default for DetectOptions {
+    fn default() -> Self {
+        DetectOptions {
+            tol: DEFAULT_TOLERANCE,
+            linear_n: LINEAR_SUBGROUP_N,
+            verify_all_limit: DEFAULT_VERIFY_ALL_LIMIT,
+        }
+    }
+}
+
+/// The point group of a structure with its operations, frame and atom permutations.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Symmetry {
+    /// Schoenflies name ("C2v", "D6h", "Ih", "C∞v", "K_h", ...).
+    pub point_group: String,
+    /// Centre of mass, Å; the operations act on positions − center.
+    pub center: [f64; 3],
+    /// Rows are the standard x, y, z axes in input coordinates (orthonormal, det +1).
+    pub frame: [[f64; 3]; 3],
+    /// All operations of the (finite) group, matrices in the input frame; ops[0] is E.
+    /// C∞v / D∞h: the operations of C_Mv / D_Md.
+    pub ops: Vec<PointOp>,
+    /// Conjugacy classes as indices into `ops` (classes[0] = [0]).
+    pub classes: Vec<Vec<usize>>,
+    /// Indices of a generating set of `ops` (empty for C1 and K_h).
+    pub generators: Vec<usize>,
+    /// Indices of the operations verified against the atoms: E first, then all the others or
+    /// (huge structures) the generators.
+    pub verified: Vec<usize>,
+    /// One permutation per entry of `verified`: atom i → atom perm[i].
+    pub permutations: Vec<Vec<u32>>,
+    /// Largest image distance over the verified operations, Å.
+    pub max_deviation: f64,
+}
+
+impl Symmetry {
+    /// Order of the reported (finite) group.
+    pub fn order(&self) -> usize {
+        self.ops.len()
+    }
+}
+
+/// The centred structure and what every stage needs.
+struct Ctx<'a> {
+    x: Vec<Vec3>,
+    numbers: &'a [i64],
+    grid: Grid,
+    tol: f64,
+    inertia: Mat3,
+}
+
+impl Ctx<'_> {
+    fn count_on_axis(&self, u: &Vec3) -> usize {
+        self.x
+            .iter()
+            .filter(|p| {
+                let t = dot(p, u);
+                norm(&[p[0] - t * u[0], p[1] - t * u[1], p[2] - t * u[2]]) <= self.tol
+            })
+            .count()
+    }
+
+    fn count_in_plane(&self, normal: &Vec3) -> usize {
+        self.x
+            .iter()
+            .filter(|p| dot(p, normal).abs() <= self.tol)
+            .count()
+    }
+
+    fn moment(&self, u: &Vec3) -> f64 {
+        dot(u, &mat_vec(&self.inertia, u))
+    }
+}
+
+/// Find the point group of a structure (positions in Å, atomic numbers).
+///
+/// # Errors
+/// Everything `structure::validate` reports; `BadTolerance`; `InvalidArgument` for an even or
+/// too small `linear_n`; `OverlappingAtoms` for two atoms within `tol`; `GroupClosure` or
+/// `NotASymmetry` when the structure sits at the edge of the tolerance so that no consistent
+/// group can be reported.
+pub fn find_point_group(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    opts: &DetectOptions,
+) -> Result<Symmetry> {
+    structure::validate(positions, numbers)?;
+    let tol = opts.tol;
+    if !(tol.is_finite() && tol > 0.0) {
+        return Err(Error::BadTolerance { value: tol });
+    }
+    if opts.linear_n < 3 || opts.linear_n % 2 == 0 {
+        return Err(Error::InvalidArgument {
+            name: "linear_n".into(),
+            reason: format!("must be odd and at least 3, got {}", opts.linear_n),
+        });
+    }
+    let center = structure::center_of_mass(positions, numbers)?;
+    let x: Vec<Vec3> = positions
+        .iter()
+        .map(|p| [p[0] - center[0], p[1] - center[1], p[2] - center[2]])
+        .collect();
+    let grid = Grid::build(&x, numbers, tol)?;
+    if let Some((first, second, distance)) = find_overlap(&grid) {
+        return Err(Error::OverlappingAtoms {
+            first,
+            second,
+            distance,
+            tolerance: tol,
+        });
+    }
+    let inertia = structure::inertia_tensor(positions, numbers)?;
+    let ctx = Ctx {
+        x,
+        numbers,
+        grid,
+        tol,
+        inertia,
+    };
+    if positions.len() == 1 {
+        return Ok(single_atom(center));
+    }
+    let (_, axes) = structure::principal_axes(&inertia);
+    let line = axes[0];
+    let on_line = ctx.x.iter().all(|p| {
+        let t = dot(p, &line);
+        norm(&[p[0] - t * line[0], p[1] - t * line[1], p[2] - t * line[2]]) <= 0.5 * tol
+    });
+    if on_line {
+        let m = opts.linear_n;
+        for fam in [Family::Dinfh(m), Family::Cinfv(m)] {
+            let fr = frame::axial_frame(&line, None);
+            if let Ok(sym) = finish(&ctx, fam, fr, center, opts) {
+                return Ok(sym);
+            }
+        }
+    }
+    let mut last = Error::GroupClosure {
+        reason: "no candidate operations".into(),
+    };
+    for factor in [1.0, 0.85, 0.7] {
+        match detect_general(&ctx, factor, center, opts) {
+            Ok(sym) => return Ok(sym),
+            Err(e) => last = e,
+        }
+    }
+    Err(last)
+}
+
+fn single_atom(center: Vec3) -> Symmetry {
+    Symmetry {
+        point_group: Family::Kh.name(),
+        center,
+        frame: crate::ops::IDENTITY,
+        ops: vec![PointOp::identity()],
+        classes: vec![vec![0]],
+        generators: vec![],
+        verified: vec![0],
+        permutations: vec![vec![0]],
+        max_deviation: 0.0,
+    }
+}
+
+/// A candidate operation that passed the atoms: its fitted matrix and the images of the
+/// reference atoms a and b (which identify it within the group).
+struct RawOp {
+    m: Mat3,
+    proper: bool,
+    ia: usize,
+    ib: usize,
+    op: PointOp,
+    order: usize,
+}
+
+fn detect_general(ctx: &Ctx, factor: f64, center: Vec3, opts: &DetectOptions) -> Result<Symmetry> {
+    let (raw, a, b) = enumerate(ctx, factor * ctx.tol)?;
+    let raw = close_and_order(ctx, raw, a, b)?;
+    let fam = identify(&raw)?;
+    let fr = frame::standard_frame(ctx, fam, &raw)?;
+    finish(ctx, fam, fr, center, opts)
+}
+
+/// Ideal operations of `fam` in frame `fr`, classes, verification.
+fn finish(
+    ctx: &Ctx,
+    fam: Family,
+    fr: Mat3,
+    center: Vec3,
+    opts: &DetectOptions,
+) -> Result<Symmetry> {
+    let (std_ops, generators) = standard_operations(fam);
+    let frt = transpose(&fr);
+    let ops: Vec<PointOp> = std_ops
+        .iter()
+        .map(|r| PointOp::from_matrix(mat_mul(&frt, &mat_mul(r, &fr))))
+        .collect();
+    let classes = conjugacy_classes(&std_ops);
+    let n = ctx.x.len();
+    let verified: Vec<usize> = if n.saturating_mul(ops.len()) <= opts.verify_all_limit {
+        (0..ops.len()).collect()
+    } else {
+        std::iter::once(0)
+            .chain(generators.iter().copied())
+            .collect()
+    };
+    let mut permutations = Vec::with_capacity(verified.len());
+    let mut max_deviation = 0.0_f64;
+    for &k in &verified {
+        if k == 0 {
+            // E maps every atom onto itself at distance 0.
+            permutations.push((0..n as u32).collect());
+            continue;
+        }
+        let (perm, dev) = map_atoms(&ctx.grid, &ctx.x, ctx.numbers, &ops[k].matrix, ctx.tol)?;
+        max_deviation = max_deviation.max(dev);
+        permutations.push(perm);
+    }
+    Ok(Symmetry {
+        point_group: fam.name(),
+        center,
+        frame: fr,
+        ops,
+        classes,
+        generators,
+        verified,
+        permutations,
+        max_deviation,
+    })
+}
+
+fn matrix_key(m: &Mat3) -> [i64; 9] {
+    let mut k = [0i64; 9];
+    for i in 0..3 {
+        for j in 0..3 {
+            k[3 * i + j] = (m[i][j] * 1e6).round() as i64;
+        }
+    }
+    k
+}
+
+/// Conjugacy classes of an exact group of matrices: class of g = {s g s⁻¹}.
+fn conjugacy_classes(ops: &[Mat3]) -> Vec<Vec<usize>> {
+    let index: HashMap<[i64; 9], usize> = ops
+        .iter()
+        .enumerate()
+        .map(|(i, m)| (matrix_key(m), i))
+        .collect();
+    let find = |m: &Mat3| -> Option<usize> {
+        index.get(&matrix_key(m)).copied().or_else(|| {
+            ops.iter()
+                .position(|o| crate::ops::max_abs_diff(o, m) < 1e-6)
+        })
+    };
+    let mut class_of = vec![usize::MAX; ops.len()];
+    let mut classes: Vec<Vec<usize>> = Vec::new();
+    for g in 0..ops.len() {
+        if class_of[g] != usize::MAX {
+            continue;
+        }
+        let c = classes.len();
+        let mut members = vec![g];
+        class_of[g] = c;
+        for s in ops {
+            let conj = mat_mul(s, &mat_mul(&ops[g], &transpose(s)));
+            if let Some(k) = find(&conj) {
+                if class_of[k] == usize::MAX {
+                    class_of[k] = c;
+                    members.push(k);
+                }
+            }
+        }
+        members.sort_unstable();
+        classes.push(members);
+    }
+    classes
+}
+
+/// Radius window of every atom: indices sorted by (element, radius) and, per atom, the
+/// sorted range of same-element atoms whose radius is within `w`.
+struct Windows {
+    order: Vec<u32>,
+    range: Vec<(u32, u32)>,
+}
+
+fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
+    let n = r.len();
+    let mut order: Vec<u32> = (0..n as u32).collect();
+    order.sort_unstable_by(|&i, &j| {
+        let (i, j) = (i as usize, j as usize);
+        ctx.numbers[i]
+            .cmp(&ctx.numbers[j])
+            .then(r[i].total_cmp(&r[j]))
+    });
+    let mut range = vec![(0u32, 0u32); n];
+    let (mut lo, mut hi) = (0usize, 0usize);
+    for s in 0..n {
+        let i = order[s] as usize;
+        let (z, ri) = (ctx.numbers[i], r[i]);
+        while lo < s {
+            let j = order[lo] as usize;
+            if ctx.numbers[j] != z || r[j] < ri - w {
+                lo += 1;
+            } else {
+                break;
+            }
+        }
+        hi = hi.max(s);
+        while hi + 1 < n {
+            let j = order[hi + 1] as usize;
+            if ctx.numbers[j] == z && r[j] <= ri + w {
+                hi += 1;
+            } else {
+                break;
+            }
+        }
+        range[i] = (lo as u32, hi as u32 + 1);
+    }
+    Windows { order, range }
+}
+
+/// Up to `k` evenly spread members of a slice.
+fn spread(items: &[u32], k: usize) -> impl Iterator<Item = usize> + '_ {
+    let step = items.len().div_ceil(k.max(1)).max(1);
+    items.iter().step_by(step).map(|&i| i as usize)
+}
+
+/// Orthonormal frame (rows) from two non-collinear vectors: e1 ∥ p, e2 in the (p, q) plane.
+fn pair_frame(p: &Vec3, q: &Vec3) -> Option<Mat3> {
+    let e1 = crate::ops::normalize(p)?;
+    let t = dot(q, &e1);
+    let e2 = crate::ops::normalize(&[q[0] - t * e1[0], q[1] - t * e1[1], q[2] - t * e1[2]])?;
+    Some([e1, e2, crate::ops::cross(&e1, &e2)])
+}
+
+/// All operations of the structure found through the reference atoms (see the module doc),
+/// with the indices of a and b.
+fn enumerate(ctx: &Ctx, tol_raw: f64) -> Result<(Vec<RawOp>, usize, usize)> {
+    let n = ctx.x.len();
+    let tol = ctx.tol;
+    let r: Vec<f64> = ctx.x.iter().map(norm).collect();
+    let r_max = r.iter().copied().fold(0.0, f64::max);
+    let win = windows(ctx, &r, 2.0 * tol);
+    let size = |i: usize| win.range[i].1 - win.range[i].0;
+    let pick = |score: &dyn Fn(usize) -> f64, min_score: f64| -> Option<usize> {
+        (0..n)
+            .filter(|&i| score(i) >= min_score && score(i) > 0.0)
+            .min_by(|&i, &j| {
+                size(i)
+                    .cmp(&size(j))
+                    .then(score(j).total_cmp(&score(i)))
+                    .then(i.cmp(&j))
+            })
+    };
+    let no_ops = || Error::GroupClosure {
+        reason: "the structure has no atom off the centre".into(),
+    };
+    let a = pick(&|i| r[i], 0.5 * r_max).ok_or_else(no_ops)?;
+    let ua = [ctx.x[a][0] / r[a], ctx.x[a][1] / r[a], ctx.x[a][2] / r[a]];
+    let perp: Vec<f64> = ctx
+        .x
+        .iter()
+        .map(|p| {
+            let t = dot(p, &ua);
+            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
+        })
+        .collect();
+    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let b = pick(&|i| perp[i], 0.5 * d_max).ok_or_else(no_ops)?;
+    let wa = &win.order[win.range[a].0 as usize..win.range[a].1 as usize];
+    let wb = &win.order[win.range[b].0 as usize..win.range[b].1 as usize];
+    let ref_frame = pair_frame(&ctx.x[a], &ctx.x[b]).ok_or_else(no_ops)?;
+    let d_ab = norm(&sub(&ctx.x[a], &ctx.x[b]));
+
+    // Probe (loose screen) and acceptance set (strict test).
+    let mut probe: Vec<usize> = vec![a, b];
+    probe.extend(spread(wa, 16));
+    probe.extend(spread(wb, 16));
+    let all: Vec<u32> = (0..n as u32).collect();
+    probe.extend(spread(&all, 32));
+    dedup_keep_order(&mut probe);
+    let accept: Vec<usize> = if n <= SAMPLE_ABOVE {
+        let mut v = vec![a, b];
+        v.extend(0..n);
+        v
+    } else {
+        let mut v = probe.clone();
+        v.extend(spread(wa, 256));
+        v.extend(spread(wb, 256));
+        v.extend(spread(&all, SAMPLE_SIZE));
+        v
+    };
+    let mut accept = accept;
+    dedup_keep_order(&mut accept);
+
+    let mut found: Vec<RawOp> = Vec::new();
+    let mut seen: HashMap<(usize, usize, bool), usize> = HashMap::new();
+    for &ap in wa {
+        let ap = ap as usize;
+        for &bp in wb {
+            let bp = bp as usize;
+            if ap == bp {
+                continue;
+            }
+            let d = norm(&sub(&ctx.x[ap], &ctx.x[bp]));
+            if (d - d_ab).abs() > 2.5 * tol {
+                continue;
+            }
+            let Some(img_frame) = pair_frame(&ctx.x[ap], &ctx.x[bp]) else {
+                continue;
+            };
+            for proper in [true, false] {
+                let mut f = img_frame;
+                if !proper {
+                    f[2] = [-f[2][0], -f[2][1], -f[2][2]];
+                }
+                let r0 = mat_mul(&transpose(&f), &ref_frame);
+                if let Some(op) = test_candidate(ctx, &r0, proper, &probe, &accept, tol_raw, a, b) {
+                    if let std::collections::hash_map::Entry::Vacant(e) =
+                        seen.entry((op.ia, op.ib, op.proper))
+                    {
+                        e.insert(found.len());
+                        found.push(op);
+                    }
+                }
+            }
+        }
+    }
+    Ok((found, a, b))
+}
+
+fn sub(p: &Vec3, q: &Vec3) -> Vec3 {
+    [p[0] - q[0], p[1] - q[1], p[2] - q[2]]
+}
+
+fn dedup_keep_order(v: &mut Vec<usize>) {
+    let mut seen = std::collections::HashSet::new();
+    v.retain(|i| seen.insert(*i));
+}
+
+fn add_outer(h: &mut Mat3, p: &Vec3, q: &Vec3) {
+    for i in 0..3 {
+        for j in 0..3 {
+            h[i][j] += p[i] * q[j];
+        }
+    }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn test_candidate(
+    ctx: &Ctx,
+    r0: &Mat3,
+    proper: bool,
+    probe: &[usize],
+    accept: &[usize],
+    tol_raw: f64,
+    a: usize,
+    b: usize,
+) -> Option<RawOp> {
+    let mut h = [[0.0; 3]; 3];
+    for &i in probe {
+        let q = mat_vec(r0, &ctx.x[i]);
+        let (j, _) = ctx.grid.query_within(&q, ctx.numbers[i], 3.0 * ctx.tol)?;
+        add_outer(&mut h, &ctx.x[i], &ctx.x[j]);
+    }
+    let r1 = fit_orthogonal(&h, proper);
+    let mut h = [[0.0; 3]; 3];
+    let (mut ia, mut ib) = (usize::MAX, usize::MAX);
+    for &i in accept {
+        let q = mat_vec(&r1, &ctx.x[i]);
+        let (j, _) = ctx.grid.query_within(&q, ctx.numbers[i], tol_raw)?;
+        add_outer(&mut h, &ctx.x[i], &ctx.x[j]);
+        if i == a {
+            ia = j;
+        }
+        if i == b {
+            ib = j;
+        }
+    }
+    let m = fit_orthogonal(&h, proper);
+    Some(RawOp {
+        m,
+        proper,
+        ia,
+        ib,
+        op: PointOp::from_matrix(m),
+        order: 0,
+    })
+}
+
+/// Check that the raw operations close (g·h found among them, through the images of a and
+/// b) and compute each one's order.
+fn close_and_order(ctx: &Ctx, mut raw: Vec<RawOp>, a: usize, b: usize) -> Result<Vec<RawOp>> {
+    let h = raw.len();
+    let key: HashMap<(usize, usize, bool), usize> = raw
+        .iter()
+        .enumerate()
+        .map(|(k, o)| ((o.ia, o.ib, o.proper), k))
+        .collect();
+    let image = |g: &RawOp, atom: usize| -> Option<usize> {
+        let q = mat_vec(&g.m, &ctx.x[atom]);
+        ctx.grid
+            .query_within(&q, ctx.numbers[atom], 2.0 * ctx.tol)
+            .map(|t| t.0)
+    };
+    let fail = |what: String| Error::GroupClosure {
+        reason: format!(
+            "{what} among the {h} operations found at tolerance {} Å; try another tolerance",
+            ctx.tol
+        ),
+    };
+    let mut table = vec![0u32; h * h];
+    for g in 0..h {
+        for f in 0..h {
+            let ia = image(&raw[g], raw[f].ia);
+            let ib = image(&raw[g], raw[f].ib);
+            let k = match (ia, ib) {
+                (Some(ia), Some(ib)) => key.get(&(ia, ib, raw[g].proper == raw[f].proper)),
+                _ => None,
+            };
+            match k {
+                Some(&k) => table[g * h + f] = k as u32,
+                None => {
+                    return Err(fail(format!(
+                        "the product of operations {g} and {f} is not"
+                    )))
+                }
+            }
+        }
+    }
+    let identity = key
+        .get(&(a, b, true))
+        .copied()
+        .ok_or_else(|| fail("the identity is not".into()))?;
+    for g in 0..h {
+        let mut p = g;
+        let mut order = 0;
+        for k in 1..=h {
+            if p == identity {
+                order = k;
+                break;
+            }
+            p = table[g * h + p] as usize;
+        }
+        if order == 0 {
+            return Err(fail(format!("operation {g} has no finite order")));
+        }
+        raw[g].order = order;
+    }
+    Ok(raw)
+}
+
+fn parallel(u: &Vec3, v: &Vec3) -> bool {
+    dot(u, v).abs() > 0.99
+}
+
+/// Name the group from the content of the raw operations.
+fn identify(raw: &[RawOp]) -> Result<Family> {
+    let h = raw.len();
+    let rot: Vec<&RawOp> = raw.iter().filter(|o| o.proper).collect();
+    let h_rot = rot.len();
+    let improper = h > h_rot;
+    let bad = |what: &str| Error::GroupClosure {
+        reason: format!("{h} operations ({h_rot} proper) do not form a point group: {what}"),
+    };
+    if improper && h != 2 * h_rot {
+        return Err(bad("proper and improper parts differ in size"));
+    }
+    let mirrors: Vec<&RawOp> = raw
+        .iter()
+        .filter(|o| !o.proper && o.order == 2 && o.op.angle < 90.0)
+        .collect();
+    let inversion = raw
+        .iter()
+        .any(|o| !o.proper && o.order == 2 && o.op.angle >= 90.0);
+    let mut high: Vec<Vec3> = Vec::new();
+    for o in rot.iter().filter(|o| o.order >= 3) {
+        if !high.iter().any(|u| parallel(u, &o.op.axis)) {
+            high.push(o.op.axis);
+        }
+    }
+    if high.len() >= 2 {
+        return match (h_rot, h, inversion) {
+            (12, 12, _) => Ok(Family::T),
+            (12, 24, true) => Ok(Family::Th),
+            (12, 24, false) => Ok(Family::Td),
+            (24, 24, _) => Ok(Family::O),
+            (24, 48, _) => Ok(Family::Oh),
+            (60, 60, _) => Ok(Family::I),
+            (60, 120, _) => Ok(Family::Ih),
+            _ => Err(bad("several high-order axes but no polyhedral group")),
+        };
+    }
+    let n = rot.iter().map(|o| o.order).max().unwrap_or(1);
+    if n == 1 {
+        return Ok(match (improper, mirrors.is_empty()) {
+            (false, _) => Family::C1,
+            (true, false) => Family::Cs,
+            (true, true) => Family::Ci,
+        });
+    }
+    let c2_axes: Vec<Vec3> = rot
+        .iter()
+        .filter(|o| o.order == 2)
+        .map(|o| o.op.axis)
+        .collect();
+    let principal: Vec<Vec3> = if n >= 3 {
+        rot.iter()
+            .filter(|o| o.order == n)
+            .map(|o| o.op.axis)
+            .take(1)
+            .collect()
+    } else {
+        c2_axes.clone()
+    };
+    let sigma_h = mirrors
+        .iter()
+        .any(|m| principal.iter().any(|u| parallel(u, &m.op.axis)));
+    if h_rot == n {
+        Ok(if !improper {
+            Family::Cn(n)
+        } else if sigma_h {
+            Family::Cnh(n)
+        } else if !mirrors.is_empty() {
+            Family::Cnv(n)
+        } else {
+            Family::S2n(2 * n)
+        })
+    } else if h_rot == 2 * n {
+        Ok(if !improper {
+            Family::Dn(n)
+        } else if sigma_h {
+            Family::Dnh(n)
+        } else {
+            Family::Dnd(n)
+        })
+    } else {
+        Err(bad("the rotations form neither Cn nor Dn"))
+    }
+}
+
+#[cfg(test)]
+mod tests;

@@ -1,0 +1,898 @@
+//! Tests of point-group detection: every family, invariance, noise, orientation, bad input.
+//!
+//! Class sizes: Cotton, "Chemical Applications of Group Theory", appendix (character tables);
+//! the general-n patterns of the axial families are common practice. Molecular geometries are
+//! from memory (approximate bond lengths; only their symmetry matters here).
+
+use super::*;
+use crate::ops::{max_abs_diff, IDENTITY};
+
+/// splitmix64: deterministic test randomness.
+struct Rng(u64);
+impl Rng {
+    fn next(&mut self) -> f64 {
+        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
+    }
+    fn sym(&mut self) -> f64 {
+        2.0 * self.next() - 1.0
+    }
+    fn rotation(&mut self) -> Mat3 {
+        let axis = [self.sym(), self.sym(), self.sym() + 0.1];
+        PointOp::rotation(axis, 360.0 * self.next()).matrix
+    }
+}
+
+type Atoms = (Vec<[f64; 3]>, Vec<i64>);
+
+/// Test-local closure of generator matrices (all products until nothing new).
+fn group(gens: &[PointOp]) -> Vec<Mat3> {
+    let mut all = vec![IDENTITY];
+    loop {
+        let mut grew = false;
+        for i in 0..all.len() {
+            for g in gens {
+                let p = mat_mul(&g.matrix, &all[i]);
+                if !all.iter().any(|m| max_abs_diff(m, &p) < 1e-9) {
+                    all.push(p);
+                    grew = true;
+                }
+            }
+        }
+        if !grew {
+            return all;
+        }
+        assert!(all.len() <= 500);
+    }
+}
+
+/// Orbits of the seeds (position, element) under the group; coinciding images merged.
+fn orbit(gens: &[PointOp], seeds: &[([f64; 3], i64)]) -> Atoms {
+    let g = group(gens);
+    let mut p: Vec<[f64; 3]> = Vec::new();
+    let mut z = Vec::new();
+    for (s, e) in seeds {
+        for m in &g {
+            let q = mat_vec(m, s);
+            if !p.iter().any(|x| norm(&sub(x, &q)) < 1e-6) {
+                p.push(q);
+                z.push(*e);
+            }
+        }
+    }
+    (p, z)
+}
+
+const ZAX: [f64; 3] = [0.0, 0.0, 1.0];
+const XAX: [f64; 3] = [1.0, 0.0, 0.0];
+
+fn cn(n: usize) -> PointOp {
+    PointOp::rotation(ZAX, 360.0 / n as f64)
+}
+
+/// Four generic seeds of different elements (four, so that even C1 is not planar).
+fn seeds() -> Vec<([f64; 3], i64)> {
+    vec![
+        ([1.31, 0.42, 0.73], 6),
+        ([-0.57, 1.93, -0.38], 8),
+        ([2.2, -0.9, 1.6], 1),
+        ([0.35, -1.45, -2.1], 7),
+    ]
+}
+
+/// Orbits of the seeds, with the seeds nudged (deterministically) until every orbit is
+/// regular (no seed on a symmetry element) and atoms stay ≥ 0.3 Å apart.
+fn generic_orbit(gens: &[PointOp], seeds: &[([f64; 3], i64)]) -> Atoms {
+    let h = group(gens).len();
+    let mut rng = Rng(h as u64);
+    // Large groups need seeds further out to keep their images apart.
+    let scale = (h as f64 / 12.0).max(1.0);
+    let mut s: Vec<([f64; 3], i64)> = seeds
+        .iter()
+        .map(|(p, e)| ([p[0] * scale, p[1] * scale, p[2] * scale], *e))
+        .collect();
+    for _ in 0..100 {
+        let atoms = orbit(gens, &s);
+        let n = atoms.0.len();
+        let min_d = (0..n)
+            .flat_map(|i| (0..i).map(move |j| (i, j)))
+            .map(|(i, j)| norm(&sub(&atoms.0[i], &atoms.0[j])))
+            .fold(f64::INFINITY, f64::min);
+        if n == h * s.len() && min_d >= 0.3 {
+            return atoms;
+        }
+        for (p, _) in s.iter_mut() {
+            for c in p.iter_mut() {
+                *c += 0.2 * rng.sym();
+            }
+        }
+    }
+    let atoms = orbit(gens, &s);
+    panic!("no generic seeds found: h {h}, {} atoms", atoms.0.len());
+}
+
+fn phi() -> f64 {
+    (1.0 + 5f64.sqrt()) / 2.0
+}
+
+fn rot_group_t() -> Vec<PointOp> {
+    vec![
+        PointOp::rotation([1.0, 1.0, 1.0], 120.0),
+        PointOp::rotation(ZAX, 180.0),
+    ]
+}
+fn rot_group_o() -> Vec<PointOp> {
+    vec![PointOp::rotation([1.0, 1.0, 1.0], 120.0), cn(4)]
+}
+fn rot_group_i() -> Vec<PointOp> {
+    vec![
+        PointOp::rotation([0.0, 1.0, phi()], 72.0),
+        PointOp::rotation([1.0, 1.0, 1.0], 120.0),
+    ]
+}
+
+fn sizes(sym: &Symmetry) -> Vec<usize> {
+    let mut s: Vec<usize> = sym.classes.iter().map(|c| c.len()).collect();
+    s.sort_unstable();
+    s
+}
+
+fn sorted(mut v: Vec<usize>) -> Vec<usize> {
+    v.sort_unstable();
+    v
+}
+
+/// Class sizes of Cnv and Dn (common practice: E, C2 for even n, pairs C_n^±k, two classes
+/// of n/2 reflections or C2 axes for even n, one of n for odd n).
+fn dihedral_classes(n: usize) -> Vec<usize> {
+    let mut v = vec![1];
+    if n % 2 == 0 {
+        v.push(1);
+        v.extend(std::iter::repeat(2).take(n / 2 - 1));
+        v.extend([n / 2, n / 2]);
+    } else {
+        v.extend(std::iter::repeat(2).take((n - 1) / 2));
+        v.push(n);
+    }
+    v
+}
+
+fn doubled(v: Vec<usize>) -> Vec<usize> {
+    v.iter().chain(v.iter()).copied().collect()
+}
+
+/// Detect, then check everything a consumer relies on; returns the result.
+fn check(atoms: &Atoms, name: &str, order: usize, class_sizes: Vec<usize>) -> Symmetry {
+    let (p, z) = atoms;
+    let sym =
+        find_point_group(p, z, &DetectOptions::default()).unwrap_or_else(|e| panic!("{name}: {e}"));
+    assert_eq!(sym.point_group, name);
+    assert_eq!(sym.order(), order, "{name}");
+    assert_eq!(sizes(&sym), sorted(class_sizes), "{name}: classes");
+    check_consistency(p, z, &sym, 0.01);
+    sym
+}
+
+fn check_consistency(p: &[[f64; 3]], z: &[i64], sym: &Symmetry, tol: f64) {
+    let name = &sym.point_group;
+    assert!(
+        sym.ops[0].approx_eq(&PointOp::identity(), 1e-12),
+        "{name}: E first"
+    );
+    assert_eq!(sym.classes[0], vec![0]);
+    // Classes partition the operations.
+    let mut all: Vec<usize> = sym.classes.concat();
+    all.sort_unstable();
+    assert_eq!(all, (0..sym.ops.len()).collect::<Vec<_>>());
+    // The operations form a group.
+    for a in &sym.ops {
+        for b in &sym.ops {
+            let m = mat_mul(&a.matrix, &b.matrix);
+            assert!(
+                sym.ops.iter().any(|o| max_abs_diff(&o.matrix, &m) < 1e-9),
+                "{name}"
+            );
+        }
+    }
+    // The frame is a rotation.
+    let f = sym.frame;
+    assert!((crate::ops::det(&f) - 1.0).abs() < 1e-9);
+    assert!(max_abs_diff(&mat_mul(&f, &transpose(&f)), &IDENTITY) < 1e-9);
+    // Permutations agree with the operations and elements.
+    assert_eq!(sym.verified.len(), sym.permutations.len());
+    assert_eq!(sym.verified[0], 0);
+    for (&k, perm) in sym.verified.iter().zip(&sym.permutations) {
+        for (i, &j) in perm.iter().enumerate() {
+            let x = sub(&p[i], &sym.center);
+            let y = sub(&p[j as usize], &sym.center);
+            let d = norm(&sub(&sym.ops[k].apply(&x), &y));
+            assert!(
+                d <= tol && d <= sym.max_deviation + 1e-12,
+                "{name}: op {k} atom {i}"
+            );
+            assert_eq!(z[i], z[j as usize]);
+        }
+    }
+}
+
+/// Random rotation, translation and atom permutation.
+fn scramble(atoms: &Atoms, rng: &mut Rng) -> Atoms {
+    let r = rng.rotation();
+    let t = [rng.sym() * 10.0, rng.sym() * 10.0, rng.sym() * 10.0];
+    let n = atoms.0.len();
+    let mut idx: Vec<usize> = (0..n).collect();
+    for i in (1..n).rev() {
+        let j = (rng.next() * (i + 1) as f64) as usize % (i + 1);
+        idx.swap(i, j);
+    }
+    let p = idx
+        .iter()
+        .map(|&i| {
+            let q = mat_vec(&r, &atoms.0[i]);
+            [q[0] + t[0], q[1] + t[1], q[2] + t[2]]
+        })
+        .collect();
+    let z = idx.iter().map(|&i| atoms.1[i]).collect();
+    (p, z)
+}
+
+/// Each coordinate displaced uniformly within ±0.005/√3 Å (|δ| ≤ 0.005 Å).
+fn perturb(atoms: &Atoms, rng: &mut Rng) -> Atoms {
+    let a = 0.005 / 3f64.sqrt();
+    let p = atoms
+        .0
+        .iter()
+        .map(|q| {
+            [
+                q[0] + a * rng.sym(),
+                q[1] + a * rng.sym(),
+                q[2] + a * rng.sym(),
+            ]
+        })
+        .collect();
+    (p, atoms.1.clone())
+}
+
+fn check_all_ways(atoms: &Atoms, name: &str, order: usize, class_sizes: Vec<usize>) {
+    check(atoms, name, order, class_sizes.clone());
+    let mut rng = Rng(order as u64 * 31 + atoms.0.len() as u64);
+    let moved = scramble(atoms, &mut rng);
+    check(&moved, name, order, class_sizes);
+}
+
+fn axial_gens(kind: &str, n: usize) -> Vec<PointOp> {
+    let c2x = PointOp::rotation(XAX, 180.0);
+    let sh = PointOp::reflection(ZAX);
+    let sv = PointOp::reflection([0.0, 1.0, 0.0]);
+    let half = std::f64::consts::PI / (2 * n) as f64;
+    let sd = PointOp::reflection([-half.sin(), half.cos(), 0.0]);
+    match kind {
+        "C" => vec![cn(n)],
+        "Cv" => vec![cn(n), sv],
+        "Ch" => vec![cn(n), sh],
+        "S" => vec![PointOp::improper(ZAX, 180.0 / n as f64)],
+        "D" => vec![cn(n), c2x],
+        "Dh" => vec![cn(n), c2x, sh],
+        "Dd" => vec![cn(n), c2x, sd],
+        _ => unreachable!(),
+    }
+}
+
+#[test]
+fn test_axial_families_for_n_2_to_12_and_24() {
+    for n in (2..=12).chain([24]) {
+        let s = seeds();
+        let ones = |k: usize| vec![1usize; k];
+        check_all_ways(
+            &generic_orbit(&axial_gens("C", n), &s),
+            &format!("C{n}"),
+            n,
+            ones(n),
+        );
+        check_all_ways(
+            &generic_orbit(&axial_gens("Cv", n), &s),
+            &format!("C{n}v"),
+            2 * n,
+            dihedral_classes(n),
+        );
+        check_all_ways(
+            &generic_orbit(&axial_gens("Ch", n), &s),
+            &format!("C{n}h"),
+            2 * n,
+            ones(2 * n),
+        );
+        // S2n: the group generated by S_2n (order 2n).
+        check_all_ways(
+            &generic_orbit(&axial_gens("S", n), &s),
+            &format!("S{}", 2 * n),
+            2 * n,
+            ones(2 * n),
+        );
+        check_all_ways(
+            &generic_orbit(&axial_gens("D", n), &s),
+            &format!("D{n}"),
+            2 * n,
+            dihedral_classes(n),
+        );
+        check_all_ways(
+            &generic_orbit(&axial_gens("Dh", n), &s),
+            &format!("D{n}h"),
+            4 * n,
+            doubled(dihedral_classes(n)),
+        );
+        // Dnd: like D2n for even n, Dn × Ci for odd n.
+        let dd = if n % 2 == 0 {
+            dihedral_classes(2 * n)
+        } else {
+            doubled(dihedral_classes(n))
+        };
+        check_all_ways(
+            &generic_orbit(&axial_gens("Dd", n), &s),
+            &format!("D{n}d"),
+            4 * n,
+            dd,
+        );
+    }
+}
+
+#[test]
+fn test_low_symmetry_groups() {
+    let s = seeds();
+    check_all_ways(&generic_orbit(&[], &s), "C1", 1, vec![1]);
+    check_all_ways(
+        &generic_orbit(&[PointOp::reflection([0.3, 0.2, 0.9])], &s),
+        "Cs",
+        2,
+        vec![1, 1],
+    );
+    check_all_ways(
+        &generic_orbit(&[PointOp::inversion()], &s),
+        "Ci",
+        2,
+        vec![1, 1],
+    );
+}
+
+#[test]
+fn test_polyhedral_groups_from_seeds() {
+    let s = seeds();
+    // Source: Cotton, appendix: T (E, 4C3, 4C3^2, 3C2), Td, Th, O, Oh, I, Ih class sizes.
+    check_all_ways(
+        &generic_orbit(&rot_group_t(), &s),
+        "T",
+        12,
+        vec![1, 4, 4, 3],
+    );
+    let mut td = rot_group_t();
+    td.push(PointOp::reflection([1.0, -1.0, 0.0]));
+    check_all_ways(&generic_orbit(&td, &s), "Td", 24, vec![1, 8, 3, 6, 6]);
+    let mut th = rot_group_t();
+    th.push(PointOp::inversion());
+    check_all_ways(
+        &generic_orbit(&th, &s),
+        "Th",
+        24,
+        vec![1, 4, 4, 3, 1, 4, 4, 3],
+    );
+    check_all_ways(
+        &generic_orbit(&rot_group_o(), &s),
+        "O",
+        24,
+        vec![1, 8, 3, 6, 6],
+    );
+    let mut oh = rot_group_o();
+    oh.push(PointOp::inversion());
+    check_all_ways(
+        &generic_orbit(&oh, &s),
+        "Oh",
+        48,
+        vec![1, 8, 6, 6, 3, 1, 6, 8, 3, 6],
+    );
+    check_all_ways(
+        &generic_orbit(&rot_group_i(), &s[..2]),
+        "I",
+        60,
+        vec![1, 12, 12, 20, 15],
+    );
+    let mut ih = rot_group_i();
+    ih.push(PointOp::inversion());
+    check_all_ways(
+        &generic_orbit(&ih, &s[..2]),
+        "Ih",
+        120,
+        doubled(vec![1, 12, 12, 20, 15]),
+    );
+}
+
+fn water() -> Atoms {
+    // O–H 0.9572 Å, H–O–H 104.52° (from memory).
+    let h = (104.52f64 / 2.0).to_radians();
+    (
+        vec![
+            [0.0, 0.0, 0.0],
+            [0.9572 * h.sin(), 0.9572 * h.cos(), 0.0],
+            [-0.9572 * h.sin(), 0.9572 * h.cos(), 0.0],
+        ],
+        vec![8, 1, 1],
+    )
+}
+
+fn ring(n: usize, r: f64, z: f64, phase_deg: f64, e: i64) -> Atoms {
+    let p = (0..n)
+        .map(|k| {
+            let a = (phase_deg + 360.0 * k as f64 / n as f64).to_radians();
+            [r * a.cos(), r * a.sin(), z]
+        })
+        .collect();
+    (p, vec![e; n])
+}
+
+fn join(parts: &[Atoms]) -> Atoms {
+    let mut p = Vec::new();
+    let mut z = Vec::new();
+    for (a, b) in parts {
+        p.extend_from_slice(a);
+        z.extend_from_slice(b);
+    }
+    (p, z)
+}
+
+fn benzene() -> Atoms {
+    // C–C 1.39 Å, C–H 1.09 Å (from memory).
+    join(&[ring(6, 1.39, 0.0, 0.0, 6), ring(6, 2.48, 0.0, 0.0, 1)])
+}
+
+fn sf6() -> Atoms {
+    // S–F 1.56 Å (from memory).
+    let f = 1.56;
+    (
+        vec![
+            [0.0; 3],
+            [f, 0.0, 0.0],
+            [-f, 0.0, 0.0],
+            [0.0, f, 0.0],
+            [0.0, -f, 0.0],
+            [0.0, 0.0, f],
+            [0.0, 0.0, -f],
+        ],
+        vec![16, 9, 9, 9, 9, 9, 9],
+    )
+}
+
+fn c60() -> Atoms {
+    // Truncated icosahedron: the orbit of (0, 1, 3φ) under I, scaled to ~1.4 Å edges.
+    let s = 0.7;
+    orbit(&rot_group_i(), &[([0.0, s, 3.0 * phi() * s], 6)])
+}
+
+#[test]
+fn test_textbook_molecules() {
+    // Source for the groups: Cotton, ch. 3 examples (water C2v, NH3 C3v, CH4 Td, SF6 Oh,
+    // benzene D6h, ferrocene D5h/D5d, allene D2d, ethane D3d, C60 Ih) — common practice.
+    check_all_ways(&water(), "C2v", 4, vec![1, 1, 1, 1]);
+    let nh3 = join(&[
+        (vec![[0.0, 0.0, 0.0]], vec![7]),
+        ring(3, 0.94, -0.38, 0.0, 1),
+    ]);
+    check_all_ways(&nh3, "C3v", 6, vec![1, 2, 3]);
+    let a = 1.089 / 3f64.sqrt();
+    let ch4 = (
+        vec![[0.0; 3], [a, a, a], [a, -a, -a], [-a, a, -a], [-a, -a, a]],
+        vec![6, 1, 1, 1, 1],
+    );
+    check_all_ways(&ch4, "Td", 24, vec![1, 8, 3, 6, 6]);
+    check_all_ways(&sf6(), "Oh", 48, vec![1, 8, 6, 6, 3, 1, 6, 8, 3, 6]);
+    check_all_ways(&benzene(), "D6h", 24, doubled(dihedral_classes(6)));
+    let fe = (vec![[0.0; 3]], vec![26]);
+    let eclipsed = join(&[
+        fe.clone(),
+        ring(5, 1.22, 1.66, 0.0, 6),
+        ring(5, 1.22, -1.66, 0.0, 6),
+    ]);
+    check_all_ways(&eclipsed, "D5h", 20, doubled(dihedral_classes(5)));
+    let staggered = join(&[
+        fe,
+        ring(5, 1.22, 1.66, 0.0, 6),
+        ring(5, 1.22, -1.66, 36.0, 6),
+    ]);
+    check_all_ways(&staggered, "D5d", 20, doubled(dihedral_classes(5)));
+    let allene = (
+        vec![
+            [0.0, 0.0, 0.0],
+            [0.0, 0.0, 1.31],
+            [0.0, 0.0, -1.31],
+            [0.93, 0.0, 1.87],
+            [-0.93, 0.0, 1.87],
+            [0.0, 0.93, -1.87],
+            [0.0, -0.93, -1.87],
+        ],
+        vec![6, 6, 6, 1, 1, 1, 1],
+    );
+    check_all_ways(&allene, "D2d", 8, vec![1, 2, 1, 2, 2]);
+    let ethane = join(&[
+        (vec![[0.0, 0.0, 0.765], [0.0, 0.0, -0.765]], vec![6, 6]),
+        ring(3, 1.02, 1.16, 0.0, 1),
+        ring(3, 1.02, -1.16, 60.0, 1),
+    ]);
+    check_all_ways(&ethane, "D3d", 12, doubled(dihedral_classes(3)));
+    let c60 = c60();
+    assert_eq!(c60.0.len(), 60);
+    check_all_ways(&c60, "Ih", 120, doubled(vec![1, 12, 12, 20, 15]));
+    // B12H12(2-): icosahedron of B (B–B ≈ 1.78 Å) with radial H (from memory).
+    let ico: Vec<[f64; 3]> = orbit(&rot_group_i(), &[([0.0, 1.0, phi()], 5)]).0;
+    assert_eq!(ico.len(), 12);
+    let mut b12 = (Vec::new(), Vec::new());
+    for v in &ico {
+        let u = crate::ops::normalize(v).unwrap();
+        let rb = 0.89 * norm(v);
+        b12.0.push([u[0] * rb, u[1] * rb, u[2] * rb]);
+        b12.1.push(5);
+        b12.0
+            .push([u[0] * (rb + 1.2), u[1] * (rb + 1.2), u[2] * (rb + 1.2)]);
+        b12.1.push(1);
+    }
+    check_all_ways(&b12, "Ih", 120, doubled(vec![1, 12, 12, 20, 15]));
+}
+
+#[test]
+fn test_linear_molecules_and_single_atom() {
+    let co2 = (
+        vec![[0.0, 0.0, 0.0], [0.0, 0.0, 1.16], [0.0, 0.0, -1.16]],
+        vec![6, 8, 8],
+    );
+    // Reported through D13d / C13v (DEVELOPERS.md): classes of D13 doubled, of C13v.
+    check_all_ways(&co2, "D∞h", 52, doubled(dihedral_classes(13)));
+    let hcn = (
+        vec![[0.0, 0.0, -1.07], [0.0, 0.0, 0.0], [0.0, 0.0, 1.16]],
+        vec![1, 6, 7],
+    );
+    check_all_ways(&hcn, "C∞v", 26, dihedral_classes(13));
+    let opts = DetectOptions {
+        linear_n: 5,
+        ..DetectOptions::default()
+    };
+    let s = find_point_group(&hcn.0, &hcn.1, &opts).unwrap();
+    assert_eq!((s.point_group.as_str(), s.order()), ("C∞v", 10));
+    let one = find_point_group(&[[1.0, 2.0, 3.0]], &[26], &DetectOptions::default()).unwrap();
+    assert_eq!(one.point_group, "K_h");
+    assert_eq!(one.center, [1.0, 2.0, 3.0]);
+    assert_eq!(one.permutations, vec![vec![0u32]]);
+    // Two atoms: always linear.
+    let h2 = (vec![[0.3, 0.1, 0.0], [-0.3, -0.1, 0.0]], vec![1, 1]);
+    assert_eq!(
+        find_point_group(&h2.0, &h2.1, &DetectOptions::default())
+            .unwrap()
+            .point_group,
+        "D∞h"
+    );
+}
+
+#[test]
+fn test_noise_kept_at_tol_0_01_and_lost_at_0_001() {
+    let mut rng = Rng(11);
+    // Water shows that three atoms keep the group; the tight check needs more atoms than a
+    // best fit can absorb, so it runs on the others.
+    let w = perturb(&water(), &mut rng);
+    let s = find_point_group(&w.0, &w.1, &DetectOptions::default()).unwrap();
+    assert_eq!(s.point_group, "C2v");
+    for (atoms, name) in [(benzene(), "D6h"), (c60(), "Ih"), (sf6(), "Oh")] {
+        let noisy = perturb(&atoms, &mut rng);
+        let s = find_point_group(&noisy.0, &noisy.1, &DetectOptions::default()).unwrap();
+        assert_eq!(s.point_group, name);
+        assert!(s.max_deviation > 1e-4 && s.max_deviation <= 0.01);
+        check_consistency(&noisy.0, &noisy.1, &s, 0.01);
+        let tight = DetectOptions {
+            tol: 0.001,
+            ..DetectOptions::default()
+        };
+        let s2 = find_point_group(&noisy.0, &noisy.1, &tight).unwrap();
+        assert!(
+            s2.order() < s.order(),
+            "{name} at 0.001: {}",
+            s2.point_group
+        );
+    }
+}
+
+#[test]
+fn test_water_lies_in_the_yz_plane_in_any_orientation() {
+    let mut rng = Rng(5);
+    for _ in 0..10 {
+        let w = scramble(&water(), &mut rng);
+        let s = find_point_group(&w.0, &w.1, &DetectOptions::default()).unwrap();
+        let o = w.1.iter().position(|&z| z == 8).unwrap();
+        let h: Vec<usize> = (0..3).filter(|&i| w.1[i] == 1).collect();
+        let normal = crate::ops::normalize(&crate::ops::cross(
+            &sub(&w.0[h[0]], &w.0[o]),
+            &sub(&w.0[h[1]], &w.0[o]),
+        ))
+        .unwrap();
+        // x ⟂ plane (Mulliken; DEVELOPERS.md C2v rule), z along the C2 (through O).
+        assert!((dot(&s.frame[0], &normal).abs() - 1.0).abs() < 1e-9);
+        let to_o = crate::ops::normalize(&sub(&w.0[o], &s.center)).unwrap();
+        assert!((dot(&s.frame[2], &to_o).abs() - 1.0).abs() < 1e-9);
+    }
+}
+
+#[test]
+fn test_benzene_x_axis_passes_through_a_carbon() {
+    let mut rng = Rng(9);
+    let b = scramble(&benzene(), &mut rng);
+    let s = find_point_group(&b.0, &b.1, &DetectOptions::default()).unwrap();
+    let through_c = (0..b.0.len()).filter(|&i| b.1[i] == 6).any(|i| {
+        let u = crate::ops::normalize(&sub(&b.0[i], &s.center)).unwrap();
+        (dot(&u, &s.frame[0]).abs() - 1.0).abs() < 1e-9
+    });
+    assert!(through_c);
+    // z ⟂ ring plane.
+    let u = crate::ops::normalize(&sub(&b.0[0], &s.center)).unwrap();
+    assert!(dot(&u, &s.frame[2]).abs() < 1e-9);
+}
+
+#[test]
+fn test_planar_d2h_molecule_lies_in_yz_with_z_along_cc() {
+    // Ethylene, C=C 1.33 Å along the input x axis (from memory).
+    let eth = (
+        vec![
+            [0.665, 0.0, 0.0],
+            [-0.665, 0.0, 0.0],
+            [1.23, 0.92, 0.0],
+            [1.23, -0.92, 0.0],
+            [-1.23, 0.92, 0.0],
+            [-1.23, -0.92, 0.0],
+        ],
+        vec![6, 6, 1, 1, 1, 1],
+    );
+    let s = check(&eth, "D2h", 8, vec![1; 8]);
+    assert!((s.frame[0][2].abs() - 1.0).abs() < 1e-9, "x ⟂ plane");
+    assert!((s.frame[2][0].abs() - 1.0).abs() < 1e-9, "z along C=C");
+}
+
+#[test]
+fn test_c4v_x_lies_in_the_mirror_with_more_atoms() {
+    // The diagonal planes carry the apex and four H; the axial planes the apex and two F:
+    // x must lie along a diagonal (DEVELOPERS.md, Cnv rule for even n).
+    let mol = join(&[
+        (vec![[0.0, 0.0, 0.5]], vec![54]),
+        ring(4, 1.5, 0.0, 0.0, 9),
+        ring(4, 1.2, -0.6, 45.0, 1),
+        ring(4, 2.1, 0.7, 45.0, 1),
+    ]);
+    let s = check(&mol, "C4v", 8, dihedral_classes(4));
+    let h = std::f64::consts::FRAC_1_SQRT_2;
+    assert!((s.frame[0][0].abs() - h).abs() < 1e-9 && (s.frame[0][1].abs() - h).abs() < 1e-9);
+    // The other way round: more atoms on the axial planes puts x along an input axis.
+    let mol = join(&[
+        (vec![[0.0, 0.0, 0.5]], vec![54]),
+        ring(4, 1.5, 0.0, 45.0, 9),
+        ring(4, 1.2, -0.6, 0.0, 1),
+        ring(4, 2.1, 0.7, 0.0, 1),
+    ]);
+    let s = check(&mol, "C4v", 8, dihedral_classes(4));
+    assert!(s.frame[0][0].abs() > 1.0 - 1e-9 || s.frame[0][1].abs() > 1.0 - 1e-9);
+}
+
+#[test]
+fn test_icosahedral_frame_puts_c5_along_0_1_phi() {
+    let mut rng = Rng(21);
+    let c = scramble(&c60(), &mut rng);
+    let s = find_point_group(&c.0, &c.1, &DetectOptions::default()).unwrap();
+    let n = (1.0 + phi() * phi()).sqrt();
+    let targets: Vec<[f64; 3]> = vec![[0.0, 1.0, phi()], [1.0, phi(), 0.0], [phi(), 0.0, 1.0]];
+    let mut count = 0;
+    for op in &s.ops {
+        if op.proper && op.order() == Some(5) {
+            let w = mat_vec(&s.frame, &op.axis);
+            let aw = [w[0].abs(), w[1].abs(), w[2].abs()];
+            assert!(targets.iter().any(|t| (dot(&aw, t) / n - 1.0).abs() < 1e-9));
+            count += 1;
+        }
+    }
+    assert_eq!(count, 24); // 12C5 + 12C5^2 (Source: Cotton, appendix, I)
+}
+
+#[test]
+fn test_large_cluster_verifies_generators_only() {
+    // 25 200-atom icosahedral cluster: 210 orbits of 120 (above the sampling threshold).
+    let mut rng = Rng(4);
+    let mut gens = rot_group_i();
+    gens.push(PointOp::inversion());
+    let seeds: Vec<([f64; 3], i64)> = (0..210)
+        .map(|k| {
+            let r = 3.0 + 0.1 * k as f64;
+            let d = crate::ops::normalize(&[rng.sym(), rng.sym(), rng.sym()]).unwrap();
+            ([d[0] * r, d[1] * r, d[2] * r], 6 + (k % 2) as i64)
+        })
+        .collect();
+    let atoms = orbit(&gens, &seeds);
+    assert_eq!(atoms.0.len(), 25_200);
+    let opts = DetectOptions {
+        verify_all_limit: 1_000_000,
+        ..DetectOptions::default()
+    };
+    let s = find_point_group(&atoms.0, &atoms.1, &opts).unwrap();
+    assert_eq!(s.point_group, "Ih");
+    let mut expect = vec![0];
+    expect.extend(&s.generators);
+    assert_eq!(s.verified, expect);
+    assert!(!s.generators.is_empty());
+    check_consistency(&atoms.0, &atoms.1, &s, 0.01);
+}
+
+#[test]
+fn test_bad_input_is_reported_not_panicked() {
+    let d = DetectOptions::default();
+    assert_eq!(find_point_group(&[], &[], &d), Err(Error::EmptyStructure));
+    assert!(matches!(
+        find_point_group(&[[0.0; 3]], &[1, 1], &d),
+        Err(Error::LengthMismatch { .. })
+    ));
+    assert_eq!(
+        find_point_group(&[[0.0, f64::NAN, 0.0]], &[1], &d),
+        Err(Error::NonFiniteCoordinate { atom: 0 })
+    );
+    assert!(matches!(
+        find_point_group(&[[0.0; 3], [2e6, 0.0, 0.0]], &[1, 1], &d),
+        Err(Error::CoordinateTooLarge { atom: 1, .. })
+    ));
+    assert!(matches!(
+        find_point_group(&[[0.0; 3]], &[200], &d),
+        Err(Error::UnknownAtomicNumber {
+            atom: 0,
+            number: 200
+        })
+    ));
+    for tol in [0.0, -0.1, f64::NAN, f64::INFINITY] {
+        let o = DetectOptions {
+            tol,
+            ..DetectOptions::default()
+        };
+        assert!(matches!(
+            find_point_group(&[[0.0; 3]], &[1], &o),
+            Err(Error::BadTolerance { .. })
+        ));
+    }
+    for linear_n in [0, 1, 2, 12] {
+        let o = DetectOptions {
+            linear_n,
+            ..DetectOptions::default()
+        };
+        assert!(matches!(
+            find_point_group(&[[0.0; 3]], &[1], &o),
+            Err(Error::InvalidArgument { .. })
+        ));
+    }
+    let overlap = [[0.0, 0.0, 0.0], [1.0, 0.0, 0.0], [1.0, 0.004, 0.0]];
+    assert!(matches!(
+        find_point_group(&overlap, &[6, 1, 8], &d),
+        Err(Error::OverlappingAtoms {
+            first: 1,
+            second: 2,
+            ..
+        })
+    ));
+}
+
+#[test]
+fn test_huge_coordinates_and_collinear_planar_inputs_do_not_panic() {
+    let d = DetectOptions::default();
+    // Far from the origin: translation does not matter.
+    let (p, z) = water();
+    let far: Vec<[f64; 3]> = p
+        .iter()
+        .map(|q| [q[0] + 9e5, q[1] - 9e5, q[2] + 5e5])
+        .collect();
+    assert_eq!(find_point_group(&far, &z, &d).unwrap().point_group, "C2v");
+    // A long chain of distinct elements: C∞v.
+    let chain: Vec<[f64; 3]> = (0..30).map(|k| [0.0, 1.5 * k as f64, 0.0]).collect();
+    let zs: Vec<i64> = (0..30).map(|k| 1 + k as i64).collect();
+    assert_eq!(
+        find_point_group(&chain, &zs, &d).unwrap().point_group,
+        "C∞v"
+    );
+    // A planar scalene triangle: Cs with the plane as mirror.
+    let tri = [[0.0, 0.0, 0.0], [1.3, 0.0, 0.0], [0.4, 1.7, 0.0]];
+    let s = find_point_group(&tri, &[6, 7, 8], &d).unwrap();
+    assert_eq!(s.point_group, "Cs");
+    assert!((s.frame[2][2].abs() - 1.0).abs() < 1e-9);
+}
+
+/// Timing of a large noisy icosahedral cluster in release mode (not part of the suite):
+/// `cargo test --release -- --ignored --nocapture timing_large_icosahedral_cluster`.
+/// Set GAMMATRACE_TIMING_ATOMS to choose the size (default 1 000 080).
+#[test]
+#[ignore]
+fn timing_large_icosahedral_cluster() {
+    use std::time::Instant;
+    let target: usize = std::env::var("GAMMATRACE_TIMING_ATOMS")
+        .ok()
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(1_000_080);
+    let mut gens = rot_group_i();
+    gens.push(PointOp::inversion());
+    let g = group(&gens);
+    assert_eq!(g.len(), 120);
+    let mut rng = Rng(1234);
+    let n_seeds = target / 120;
+    // Uniform in a ball whose volume gives ~3 Å spacing.
+    let radius = (n_seeds as f64 * 120.0 * 33.0 * 3.0 / (4.0 * std::f64::consts::PI)).cbrt();
+    let mut p = Vec::with_capacity(n_seeds * 120);
+    let mut z = Vec::with_capacity(n_seeds * 120);
+    for k in 0..n_seeds {
+        // A seed whose 120 images stay ≥ 1 Å apart (off every symmetry element).
+        let images = loop {
+            let q = [rng.sym(), rng.sym(), rng.sym()];
+            if norm(&q) > 1.0 || norm(&q) < 0.05 {
+                continue;
+            }
+            let s = [q[0] * radius, q[1] * radius, q[2] * radius];
+            let im: Vec<[f64; 3]> = g.iter().map(|m| mat_vec(m, &s)).collect();
+            let ok = (0..120).all(|i| (0..i).all(|j| norm(&sub(&im[i], &im[j])) >= 1.0));
+            if ok {
+                break im;
+            }
+        };
+        p.extend(images);
+        z.extend(std::iter::repeat(6 + (k % 2) as i64).take(120));
+    }
+    // Drop whole orbits that happen to come within 0.05 Å of another orbit.
+    loop {
+        let grid = Grid::build(&p, &z, 0.05).unwrap();
+        let Some((_, j, _)) = find_overlap(&grid) else {
+            break;
+        };
+        let k = j / 120;
+        p.drain(k * 120..(k + 1) * 120);
+        z.drain(k * 120..(k + 1) * 120);
+    }
+    let atoms = perturb(&(p, z), &mut rng);
+    let (p, z) = atoms;
+    let n = p.len();
+    let t = Instant::now();
+    let grid = Grid::build(&p, &z, 0.01).unwrap();
+    let t_grid = t.elapsed();
+    let t = Instant::now();
+    let ov = find_overlap(&grid);
+    let t_ov = t.elapsed();
+    let c5 = PointOp::rotation([0.0, 1.0, phi()], 72.0);
+    let t = Instant::now();
+    let mapped = map_atoms(&grid, &p, &z, &c5.matrix, 0.01);
+    let t_map = t.elapsed();
+    let t = Instant::now();
+    let pool1 = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .unwrap();
+    let mapped1 = pool1.install(|| map_atoms(&grid, &p, &z, &c5.matrix, 0.01));
+    let t_map1 = t.elapsed();
+    println!(
+        "{n} atoms, radius {radius:.0} Å, cell {:.2} Å: grid {:?}, overlap {:?} ({:?}), \
+         map C5 {:?} ({:.1} ns/atom; 1 thread {:.1} ns/atom; ok {} {})",
+        grid.cell_size(),
+        t_grid,
+        t_ov,
+        ov,
+        t_map,
+        t_map.as_nanos() as f64 / n as f64,
+        t_map1.as_nanos() as f64 / n as f64,
+        mapped.is_ok(),
+        mapped1.is_ok(),
+    );
+    let t = Instant::now();
+    let s = find_point_group(&p, &z, &DetectOptions::default());
+    let t_all = t.elapsed();
+    match s {
+        Ok(s) => println!(
+            "find_point_group: {} (order {}, {} verified, max dev {:.4} Å) in {:?}",
+            s.point_group,
+            s.order(),
+            s.verified.len(),
+            s.max_deviation,
+            t_all
+        ),
+        Err(e) => println!("find_point_group failed after {t_all:?}: {e}"),
+    }
+}
