@@ -102,7 +102,10 @@ impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
             Error::EmptyStructure => write!(f, "the structure has no atoms"),
-            Error::LengthMismatch { n_positions, n_numbers } => write!(
+            Error::LengthMismatch {
+                n_positions,
+                n_numbers,
+            } => write!(
                 f,
                 "{n_positions} coordinate rows but {n_numbers} atomic numbers: they must match"
             ),
@@ -113,14 +116,18 @@ impl fmt::Display for Error {
                 f,
                 "atom {atom} has coordinate {value:e} Å, beyond the supported range of ±1e6 Å"
             ),
-            Error::UnknownAtomicNumber { atom, number } => write!(
-                f,
-                "atom {atom} has atomic number {number}, outside 1..=118"
-            ),
+            Error::UnknownAtomicNumber { atom, number } => {
+                write!(f, "atom {atom} has atomic number {number}, outside 1..=118")
+            }
             Error::UnknownElement { symbol } => {
                 write!(f, "unknown element symbol '{symbol}'")
             }
-            Error::OverlappingAtoms { first, second, distance, tolerance } => write!(
+            Error::OverlappingAtoms {
+                first,
+                second,
+                distance,
+                tolerance,
+            } => write!(
                 f,
                 "atoms {first} and {second} are {distance:.3e} Å apart, within the tolerance \
                  {tolerance} Å: overlapping atoms"
@@ -137,7 +144,12 @@ impl fmt::Display for Error {
             Error::GroupClosure { reason } => {
                 write!(f, "symmetry operations do not form a group: {reason}")
             }
-            Error::MalformedXyz { source, frame, line, reason } => {
+            Error::MalformedXyz {
+                source,
+                frame,
+                line,
+                reason,
+            } => {
                 write!(f, "line {line} of {source} (frame {frame}): {reason}")
             }
             Error::Io { source, reason } => write!(f, "{source}: {reason}"),

@@ -1,0 +1,1 @@
+//! Fast multi-frame XYZ reader (work in progress).
