@@ -107,6 +107,50 @@ fn is_space(b: u8) -> bool {
     matches!(b, b' ' | b'\t' | b'\r' | b'\x0b' | b'\x0c')
 }
 
+/// Index of the first byte at or after `i` that is not a space or tab (or \r, \v, \f),
+/// eight bytes at a time over runs of spaces.
+#[inline]
+fn skip_spaces(data: &[u8], mut i: usize) -> usize {
+    loop {
+        if let Some(Ok(bytes)) = data.get(i..i + 8).map(<[u8; 8]>::try_from) {
+            let t = u64::from_le_bytes(bytes) ^ 0x2020_2020_2020_2020;
+            if t == 0 {
+                i += 8;
+                continue;
+            }
+            i += (t.trailing_zeros() / 8) as usize;
+        }
+        match data.get(i) {
+            Some(&b) if is_space(b) => i += 1,
+            _ => return i,
+        }
+    }
+}
+
+/// Index just past the token starting at `i`: the first whitespace byte or line end,
+/// eight bytes at a time (a word with no byte <= 0x20 holds no delimiter).
+#[inline]
+fn token_end(data: &[u8], mut i: usize) -> usize {
+    const LIM: u64 = 0x2121_2121_2121_2121;
+    const HI: u64 = 0x8080_8080_8080_8080;
+    loop {
+        if let Some(Ok(bytes)) = data.get(i..i + 8).map(<[u8; 8]>::try_from) {
+            let x = u64::from_le_bytes(bytes);
+            // The lowest set bit marks the first byte < 0x21 exactly.
+            let t = x.wrapping_sub(LIM) & !x & HI;
+            if t == 0 {
+                i += 8;
+                continue;
+            }
+            i += (t.trailing_zeros() / 8) as usize;
+        }
+        match data.get(i) {
+            Some(&b) if !is_space(b) && b != b'\n' => i += 1,
+            _ => return i,
+        }
+    }
+}
+
 fn trim(mut s: &[u8]) -> &[u8] {
     while let [first, rest @ ..] = s {
         if !is_space(*first) {
@@ -190,62 +234,81 @@ const POW10: [f64; 23] = [
     1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
 ];
 
+/// The value of eight ASCII digits at `tok[i..i + 8]`, or `None` if any is not a digit
+/// (Lemire's word-at-a-time conversion).
+#[inline]
+fn eight_digits(tok: &[u8], i: usize) -> Option<u64> {
+    let bytes: [u8; 8] = tok.get(i..i + 8)?.try_into().ok()?;
+    let v = u64::from_le_bytes(bytes);
+    let all_digits = (v & 0xF0F0_F0F0_F0F0_F0F0)
+        | ((v.wrapping_add(0x0606_0606_0606_0606) & 0xF0F0_F0F0_F0F0_F0F0) >> 4)
+        == 0x3333_3333_3333_3333;
+    if !all_digits {
+        return None;
+    }
+    let v = (v & 0x0F0F_0F0F_0F0F_0F0F).wrapping_mul(2561) >> 8;
+    let v = (v & 0x00FF_00FF_00FF_00FF).wrapping_mul(6_553_601) >> 16;
+    Some((v & 0x0000_FFFF_0000_FFFF).wrapping_mul(42_949_672_960_001) >> 32)
+}
+
+/// Accumulates decimal digits from `tok[*i..]` into `mant` (at most 19 digits in all);
+/// returns how many digits were read and whether some did not fit.
+#[inline]
+fn read_digits(tok: &[u8], i: &mut usize, mant: &mut u64, n_acc: &mut u32) -> (u32, bool) {
+    let mut read = 0u32;
+    let mut overflow = false;
+    while *n_acc + 8 <= 19 {
+        match eight_digits(tok, *i) {
+            Some(v) => {
+                *mant = *mant * 100_000_000 + v;
+                *n_acc += 8;
+                *i += 8;
+                read += 8;
+            }
+            None => break,
+        }
+    }
+    while let Some(&c) = tok.get(*i) {
+        if !c.is_ascii_digit() {
+            break;
+        }
+        if *n_acc < 19 {
+            *mant = *mant * 10 + u64::from(c - b'0');
+            *n_acc += 1;
+        } else {
+            overflow = true;
+        }
+        *i += 1;
+        read += 1;
+    }
+    (read, overflow)
+}
+
 /// Parses a decimal number, Fortran 'D' exponents included. Plain decimals with at most 19
-/// significant digits take an exact fast path (mantissa <= 2^53 and |exponent| <= 22 give a
-/// correctly rounded result, Clinger 1990); everything else goes to the standard parser.
+/// digits take an exact fast path (mantissa <= 2^53 and |exponent| <= 22 give a correctly
+/// rounded result, Clinger 1990); everything else goes to the standard parser.
 #[inline]
 fn parse_f64(tok: &[u8]) -> Option<f64> {
-    let mut i = 0;
     let len = tok.len();
-    let neg = match tok.first() {
-        Some(b'-') => {
-            i = 1;
-            true
-        }
-        Some(b'+') => {
-            i = 1;
-            false
-        }
-        _ => false,
+    let (neg, mut i) = match tok.first() {
+        Some(b'-') => (true, 1),
+        Some(b'+') => (false, 1),
+        _ => (false, 0),
     };
     let mut mant: u64 = 0;
-    let mut n_sig = 0u32;
-    let mut n_digits = 0u32;
+    let mut n_acc = 0u32;
+    let (int_digits, mut slow) = read_digits(tok, &mut i, &mut mant, &mut n_acc);
     let mut exp10: i64 = 0;
-    let mut slow = false;
-    while i < len && tok[i].is_ascii_digit() {
-        let d = u64::from(tok[i] - b'0');
-        n_digits += 1;
-        if mant != 0 || d != 0 {
-            if n_sig < 19 {
-                mant = mant * 10 + d;
-                n_sig += 1;
-            } else {
-                slow = true;
-            }
-        }
-        i += 1;
-    }
+    let mut frac_digits = 0;
     if i < len && tok[i] == b'.' {
         i += 1;
-        while i < len && tok[i].is_ascii_digit() {
-            let d = u64::from(tok[i] - b'0');
-            n_digits += 1;
-            if mant != 0 || d != 0 {
-                if n_sig < 19 {
-                    mant = mant * 10 + d;
-                    n_sig += 1;
-                    exp10 -= 1;
-                } else {
-                    slow = true;
-                }
-            } else {
-                exp10 -= 1;
-            }
-            i += 1;
-        }
+        let before = n_acc;
+        let (read, overflow) = read_digits(tok, &mut i, &mut mant, &mut n_acc);
+        frac_digits = read;
+        slow |= overflow;
+        exp10 -= i64::from(n_acc - before);
     }
-    if n_digits == 0 {
+    if int_digits + frac_digits == 0 {
         return parse_f64_slow(tok);
     }
     if i < len && matches!(tok[i], b'e' | b'E' | b'd' | b'D') {
@@ -277,10 +340,10 @@ fn parse_f64(tok: &[u8]) -> Option<f64> {
     if i != len {
         return None;
     }
+    if mant == 0 && !slow {
+        return Some(if neg { -0.0 } else { 0.0 });
+    }
     if slow || mant > (1u64 << 53) || !(-22..=22).contains(&exp10) {
-        if mant == 0 {
-            return Some(if neg { -0.0 } else { 0.0 });
-        }
         return parse_f64_slow(tok);
     }
     let m = mant as f64;
@@ -403,23 +466,22 @@ const STANDARD: Layout = Layout {
 
 /// The layout a `Properties` value describes.
 fn layout_from_properties(value: &str) -> std::result::Result<Layout, String> {
-    let parts: Vec<&str> = value.split(':').collect();
     let bad = || format!("Properties '{value}' is not a list of name:type:count triples");
-    if parts.len() % 3 != 0 || parts.is_empty() {
-        return Err(bad());
-    }
     let mut col = 0usize;
     let (mut species, mut z, mut pos) = (None, None, None);
-    for t in parts.chunks(3) {
-        let count: usize = t[2].parse().map_err(|_| bad())?;
-        let kind = t[1].to_ascii_uppercase();
-        match (t[0], kind.as_str(), count) {
-            ("species", "S", 1) => species = Some(col),
-            ("Z", "I", 1) => z = Some(col),
-            ("pos", "R", 3) => pos = Some(col),
+    let mut parts = value.split(':');
+    while let Some(name) = parts.next() {
+        let (Some(kind), Some(count)) = (parts.next(), parts.next()) else {
+            return Err(bad());
+        };
+        let count: usize = count.parse().map_err(|_| bad())?;
+        match (name, count) {
+            ("species", 1) if kind.eq_ignore_ascii_case("S") => species = Some(col),
+            ("Z", 1) if kind.eq_ignore_ascii_case("I") => z = Some(col),
+            ("pos", 3) if kind.eq_ignore_ascii_case("R") => pos = Some(col),
             _ => {}
         }
-        col += count;
+        col = col.checked_add(count).ok_or_else(bad)?;
     }
     let species = species
         .or(z)
@@ -442,7 +504,8 @@ struct Span {
     comment: Range<usize>,
     atoms_start: usize,
     n_atoms: usize,
-    /// (byte start, first atom index) of each chunk of atom lines.
+    /// (byte start, first atom index) of each chunk of atom lines after the first
+    /// (empty, so unallocated, for frames of at most CHUNK_LINES atoms).
     chunks: Vec<(usize, usize)>,
     end: usize,
 }
@@ -541,7 +604,7 @@ impl Scanner<'_> {
             };
             let comment_start = next;
             let comment = comment_start..comment_start + comment.len();
-            let mut chunks = vec![(atoms_start, 0usize)];
+            let mut chunks = Vec::new();
             let mut p = atoms_start;
             let mut present = 0usize;
             let mut blank_run = 0usize;
@@ -676,7 +739,11 @@ struct Header {
 }
 
 fn parse_header(data: &[u8], span: &Span, frame: usize, source: &str) -> Header {
-    let comment = String::from_utf8_lossy(&data[span.comment.clone()]).into_owned();
+    let bytes = &data[span.comment.clone()];
+    let comment = match std::str::from_utf8(bytes) {
+        Ok(text) => text.to_owned(),
+        Err(_) => String::from_utf8_lossy(bytes).into_owned(),
+    };
     let info = parse_info(&comment).unwrap_or_default();
     let props = info
         .iter()
@@ -700,13 +767,28 @@ fn parse_header(data: &[u8], span: &Span, frame: usize, source: &str) -> Header 
 /// Symbol -> number with a tiny cache (molecules repeat few elements).
 struct Elements<'a> {
     to_number: &'a ToNumber,
-    cache: Vec<(Vec<u8>, i64)>,
+    /// (symbol packed into a u64, number); symbols of 1..=8 bytes only.
+    cache: Vec<(u64, i64)>,
+}
+
+/// A symbol of 1..=8 bytes packed into a u64 (zero-padded), for a cheap cache compare.
+#[inline]
+fn pack(sym: &[u8]) -> Option<u64> {
+    if sym.is_empty() || sym.len() > 8 {
+        return None;
+    }
+    let mut b = [0u8; 8];
+    b[..sym.len()].copy_from_slice(sym);
+    Some(u64::from_le_bytes(b))
 }
 
 impl Elements<'_> {
     fn number(&mut self, sym: &[u8]) -> std::result::Result<i64, String> {
-        if let Some((_, z)) = self.cache.iter().find(|(s, _)| s.as_slice() == sym) {
-            return Ok(*z);
+        let key = pack(sym);
+        if let Some(key) = key {
+            if let Some((_, z)) = self.cache.iter().find(|(s, _)| *s == key) {
+                return Ok(*z);
+            }
         }
         let z = if sym.iter().all(u8::is_ascii_digit) {
             let z: i64 = std::str::from_utf8(sym)
@@ -724,8 +806,8 @@ impl Elements<'_> {
                 None => return Err(format!("unknown element symbol '{}'", show(sym))),
             }
         };
-        if self.cache.len() < 16 {
-            self.cache.push((sym.to_vec(), z));
+        if let (Some(key), true) = (key, self.cache.len() < 16) {
+            self.cache.push((key, z));
         }
         Ok(z)
     }
@@ -741,8 +823,7 @@ fn parse_segment(
     source: &str,
 ) -> Option<Error> {
     let mut pos = seg.start;
-    let mut toks: [&[u8]; 16] = [&[]; 16];
-    let width = (layout.pos + 3).max(layout.species + 1);
+    let len = data.len();
     let err = |k: usize, reason: String| Error::MalformedXyz {
         source: source.to_string(),
         frame: seg.frame,
@@ -750,19 +831,31 @@ fn parse_segment(
         reason,
     };
     for k in 0..seg.n_lines {
-        let Some((line, next)) = read_line(data, pos) else {
-            return Some(err(k, "unexpected end of data".to_string()));
+        // One pass over the line: keep the element and position columns, count columns
+        // up to `needed`, then jump to the next line past any extra columns.
+        let mut sym: &[u8] = &[];
+        let mut coord: [&[u8]; 3] = [&[]; 3];
+        let mut n = 0usize;
+        let mut i = pos;
+        while n < layout.needed {
+            i = skip_spaces(data, i);
+            if i >= len || data[i] == b'\n' {
+                break;
+            }
+            let start = i;
+            i = token_end(data, i);
+            let t = &data[start..i];
+            if n == layout.species {
+                sym = t;
+            } else if n >= layout.pos && n < layout.pos + 3 {
+                coord[n - layout.pos] = t;
+            }
+            n += 1;
+        }
+        pos = match find_newline(data, i) {
+            Some(e) => e + 1,
+            None => len,
         };
-        pos = next;
-        // Only the columns we read are kept; a wide line is tokenised up to `needed`.
-        let mut small: Vec<&[u8]>;
-        let cols: &mut [&[u8]] = if width <= toks.len() {
-            &mut toks[..]
-        } else {
-            small = vec![&[][..]; width];
-            &mut small[..]
-        };
-        let n = tokens(line, cols, layout.needed.max(width));
         if n == 0 {
             return Some(err(
                 k,
@@ -785,7 +878,7 @@ fn parse_segment(
         }
         let mut xyz = [0.0; 3];
         for (a, v) in xyz.iter_mut().enumerate() {
-            let t = cols[layout.pos + a];
+            let t = coord[a];
             match parse_f64(t) {
                 Some(x) if x.is_finite() => *v = x,
                 Some(x) if x.is_nan() => return Some(err(k, "NaN coordinate".to_string())),
@@ -795,7 +888,7 @@ fn parse_segment(
                 }
             }
         }
-        match elements.number(cols[layout.species]) {
+        match elements.number(sym) {
             Ok(z) => {
                 out.positions.push(xyz);
                 out.numbers.push(z);
@@ -830,8 +923,9 @@ pub fn read_xyz_bytes(data: &[u8], source: &str, to_number: &ToNumber) -> XyzFra
         let (Scanned::Good(span), Some(Header { layout: Ok(_), .. })) = (s, &headers[f]) else {
             continue;
         };
-        for (c, &(start, first_atom)) in span.chunks.iter().enumerate() {
-            let stop = span.chunks.get(c + 1).map_or(span.n_atoms, |x| x.1);
+        let first = std::iter::once((span.atoms_start, 0usize));
+        for (c, (start, first_atom)) in first.chain(span.chunks.iter().copied()).enumerate() {
+            let stop = span.chunks.get(c).map_or(span.n_atoms, |x| x.1);
             let n_lines = stop - first_atom;
             current.push(Segment {
                 frame: f,
@@ -855,6 +949,9 @@ pub fn read_xyz_bytes(data: &[u8], source: &str, to_number: &ToNumber) -> XyzFra
         .par_iter()
         .map(|segs| {
             let mut out = UnitOut::default();
+            let n_lines: usize = segs.iter().map(|s| s.n_lines).sum();
+            out.positions.reserve(n_lines);
+            out.numbers.reserve(n_lines);
             let mut elements = Elements {
                 to_number,
                 cache: Vec::new(),
@@ -1412,6 +1509,27 @@ mod tests {
         assert!(parse_f64(b"nan").is_some_and(f64::is_nan));
         for bad in ["", "-", ".", "e5", "1e", "1.2.3", "abc", "1x", "--1"] {
             assert_eq!(parse_f64(bad.as_bytes()), None, "{bad}");
+        }
+    }
+
+    #[test]
+    fn word_scans_match_byte_scans() {
+        let mut rng = Rng(8);
+        let alphabet = b"  \t\r\n\x01ab.9\xc3\xa9";
+        let data: Vec<u8> = (0..4000)
+            .map(|_| alphabet[(rng.next() * alphabet.len() as f64) as usize])
+            .collect();
+        for i in 0..=data.len() {
+            let mut j = i;
+            while j < data.len() && is_space(data[j]) {
+                j += 1;
+            }
+            assert_eq!(skip_spaces(&data, i), j, "skip from {i}");
+            let mut j = i;
+            while j < data.len() && !is_space(data[j]) && data[j] != b'\n' {
+                j += 1;
+            }
+            assert_eq!(token_end(&data, i), j, "token from {i}");
         }
     }
 
