@@ -309,7 +309,9 @@ pub fn pi_characters(
 }
 
 /// Pairs of atoms bonded by distance: d_ij <= scale·(r_i + r_j), as `[i, j]` with i < j,
-/// sorted. Uses a cell grid (cell edge = scale·2·max radius): O(N) for molecular densities.
+/// sorted. Uses a cell grid (cell edge = scale·2·max radius): a dense grid filled by
+/// counting sort (O(N)) when the occupied box has at most 8N+64 cells, else a hash map of
+/// the occupied cells (sparse, far-apart atoms). No O(N²) step for molecular densities.
 ///
 /// `radii` in Å, one per atom (for example covalent radii); `scale` a positive factor.
 ///
@@ -378,19 +380,7 @@ pub fn find_bonds(positions: &[[f64; 3]], radii: &[f64], scale: f64) -> Result<V
         ]
     };
     let keys: Vec<[i64; 3]> = positions.iter().map(key).collect();
-    let mut order: Vec<u32> = (0..n as u32).collect();
-    order.sort_unstable_by_key(|&i| keys[i as usize]);
-    let mut cells: HashMap<[i64; 3], (usize, usize)> = HashMap::new();
-    let mut s = 0;
-    while s < n {
-        let k = keys[order[s] as usize];
-        let mut e = s + 1;
-        while e < n && keys[order[e] as usize] == k {
-            e += 1;
-        }
-        cells.insert(k, (s, e));
-        s = e;
-    }
+    let grid = CellGrid::new(&keys);
     let per_chunk = map_chunks(n, |range| {
         let mut out: Vec<[u32; 2]> = Vec::new();
         let mut mine: Vec<u32> = Vec::new();
@@ -405,10 +395,7 @@ pub fn find_bonds(positions: &[[f64; 3]], radii: &[f64], scale: f64) -> Result<V
                             k[1].saturating_add(dy),
                             k[2].saturating_add(dz),
                         ];
-                        let Some(&(a, b)) = cells.get(&nk) else {
-                            continue;
-                        };
-                        for &j in &order[a..b] {
+                        for &j in grid.atoms(nk) {
                             let ju = j as usize;
                             if ju <= i {
                                 continue;
@@ -429,6 +416,87 @@ pub fn find_bonds(positions: &[[f64; 3]], radii: &[f64], scale: f64) -> Result<V
         out
     });
     Ok(per_chunk.concat())
+}
+
+/// Atoms grouped by cell: a dense array of cells (counting sort, O(N)) when the occupied
+/// box is small enough, else a hash map of the occupied cells.
+enum CellGrid {
+    Dense {
+        dims: [i64; 3],
+        /// Cell c holds `order[start[c]..start[c + 1]]`.
+        start: Vec<u32>,
+        order: Vec<u32>,
+    },
+    Sparse {
+        cells: HashMap<[i64; 3], (usize, usize)>,
+        order: Vec<u32>,
+    },
+}
+
+impl CellGrid {
+    /// `keys` are non-negative cell indices (relative to the lowest corner).
+    fn new(keys: &[[i64; 3]]) -> CellGrid {
+        let n = keys.len();
+        let mut dims = [1i64; 3];
+        for k in keys {
+            for a in 0..3 {
+                dims[a] = dims[a].max(k[a].saturating_add(1));
+            }
+        }
+        let n_cells = dims[0]
+            .checked_mul(dims[1])
+            .and_then(|v| v.checked_mul(dims[2]))
+            .and_then(|v| usize::try_from(v).ok());
+        if let Some(n_cells) = n_cells.filter(|&c| c <= 8 * n + 64) {
+            let id = |k: &[i64; 3]| ((k[0] * dims[1] + k[1]) * dims[2] + k[2]) as usize;
+            let mut start = vec![0u32; n_cells + 1];
+            for k in keys {
+                start[id(k) + 1] += 1;
+            }
+            for c in 0..n_cells {
+                start[c + 1] += start[c];
+            }
+            let mut fill = start.clone();
+            let mut order = vec![0u32; n];
+            for (i, k) in keys.iter().enumerate() {
+                let c = id(k);
+                order[fill[c] as usize] = i as u32;
+                fill[c] += 1;
+            }
+            return CellGrid::Dense { dims, start, order };
+        }
+        let mut order: Vec<u32> = (0..n as u32).collect();
+        order.sort_unstable_by_key(|&i| keys[i as usize]);
+        let mut cells = HashMap::new();
+        let mut s = 0;
+        while s < n {
+            let k = keys[order[s] as usize];
+            let mut e = s + 1;
+            while e < n && keys[order[e] as usize] == k {
+                e += 1;
+            }
+            cells.insert(k, (s, e));
+            s = e;
+        }
+        CellGrid::Sparse { cells, order }
+    }
+
+    /// The atoms in cell `k` (empty outside the grid).
+    fn atoms(&self, k: [i64; 3]) -> &[u32] {
+        match self {
+            CellGrid::Dense { dims, start, order } => {
+                if (0..3).any(|a| k[a] < 0 || k[a] >= dims[a]) {
+                    return &[];
+                }
+                let c = ((k[0] * dims[1] + k[1]) * dims[2] + k[2]) as usize;
+                &order[start[c] as usize..start[c + 1] as usize]
+            }
+            CellGrid::Sparse { cells, order } => match cells.get(&k) {
+                Some(&(a, b)) => &order[a..b],
+                None => &[],
+            },
+        }
+    }
 }
 
 fn check_bonds(bonds: &[[u32; 2]], n_atoms: usize) -> Result<()> {
@@ -1538,18 +1606,31 @@ mod tests {
         let n = 600;
         let pos: Vec<[f64; 3]> = (0..n).map(|_| rng.point(6.0)).collect();
         let radii: Vec<f64> = (0..n).map(|_| 0.3 + 0.5 * rng.next()).collect();
-        let bonds = find_bonds(&pos, &radii, 1.1).unwrap();
-        let mut brute = Vec::new();
-        for i in 0..n {
-            for j in i + 1..n {
-                let d = sub(pos[i], pos[j]);
-                if (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt() <= 1.1 * (radii[i] + radii[j]) {
-                    brute.push([i as u32, j as u32]);
+        let brute = |pos: &[[f64; 3]]| {
+            let mut out = Vec::new();
+            for i in 0..n {
+                for j in i + 1..n {
+                    let d = sub(pos[i], pos[j]);
+                    if (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt()
+                        <= 1.1 * (radii[i] + radii[j])
+                    {
+                        out.push([i as u32, j as u32]);
+                    }
                 }
             }
+            out
+        };
+        let want = brute(&pos);
+        assert!(!want.is_empty());
+        assert_eq!(find_bonds(&pos, &radii, 1.1).unwrap(), want);
+        // Two clusters 1e4 Å apart: the occupied box is too big for a dense grid.
+        let mut far = pos.clone();
+        for p in far.iter_mut().skip(n / 2) {
+            p[0] += 1e4;
         }
-        assert!(!brute.is_empty());
-        assert_eq!(bonds, brute);
+        let want = brute(&far);
+        assert!(!want.is_empty());
+        assert_eq!(find_bonds(&far, &radii, 1.1).unwrap(), want);
         // Zero radii: only coincident atoms bond.
         let pts = [[0.0; 3], [0.0; 3], [1.0, 0.0, 0.0]];
         assert_eq!(find_bonds(&pts, &[0.0; 3], 1.0).unwrap(), vec![[0, 1]]);
