@@ -96,7 +96,12 @@ pub fn summarize_batch(
         if w[1] < w[0] {
             return Err(Error::InvalidArgument {
                 name: "offsets".into(),
-                reason: format!("entry {} ({}) is smaller than entry {k} ({})", k + 1, w[1], w[0]),
+                reason: format!(
+                    "entry {} ({}) is smaller than entry {k} ({})",
+                    k + 1,
+                    w[1],
+                    w[0]
+                ),
             });
         }
     }
@@ -104,7 +109,10 @@ pub fn summarize_batch(
     if last > positions.len() {
         return Err(Error::InvalidArgument {
             name: "offsets".into(),
-            reason: format!("last offset {last} beyond the {} atoms given", positions.len()),
+            reason: format!(
+                "last offset {last} beyond the {} atoms given",
+                positions.len()
+            ),
         });
     }
     let pool = rayon::ThreadPoolBuilder::new()
@@ -176,7 +184,11 @@ mod tests {
 
     fn water() -> (Vec<[f64; 3]>, Vec<i64>) {
         (
-            vec![[0.0, 0.0, 0.1173], [0.0, 0.7572, -0.4692], [0.0, -0.7572, -0.4692]],
+            vec![
+                [0.0, 0.0, 0.1173],
+                [0.0, 0.7572, -0.4692],
+                [0.0, -0.7572, -0.4692],
+            ],
             vec![8, 1, 1],
         )
     }
@@ -191,7 +203,10 @@ mod tests {
         num.extend(n2);
         let offsets = [0, 3, 4, 7];
         let res = summarize_batch(&pos, &num, &offsets, &DetectOptions::default(), 2).unwrap();
-        assert_eq!(res.point_group, vec!["C2v".to_string(), String::new(), "C2v".into()]);
+        assert_eq!(
+            res.point_group,
+            vec!["C2v".to_string(), String::new(), "C2v".into()]
+        );
         assert!(res.errors[1].is_some());
         assert_eq!(res.op_offsets, vec![0, 4, 4, 8]);
         // water: unshifted atoms under E, C2 and the two mirrors are 3, 1, 1, 3 in some order

@@ -6,7 +6,10 @@
 //! Each glue function (1) borrows read-only views and checks shapes with the GIL held,
 //! (2) releases the GIL and calls exactly one core function, (3) moves the result into
 //! numpy and maps the error.
-#![cfg_attr(not(test), deny(clippy::unwrap_used, clippy::expect_used, clippy::panic))]
+#![cfg_attr(
+    not(test),
+    deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)
+)]
 #![warn(missing_docs)]
 
 pub mod batch;
@@ -26,8 +29,8 @@ mod glue {
     use crate::{batch, count, detect, readers, structure};
     use numpy::ndarray::{Array1, Array2, Array3};
     use numpy::{
-        IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2,
-        PyReadonlyArray3,
+        IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
+        PyUntypedArrayMethods,
     };
     use pyo3::exceptions::{PyException, PyValueError};
     use pyo3::prelude::*;
@@ -44,7 +47,7 @@ mod glue {
             | Error::UnknownElement { .. }
             | Error::OverlappingAtoms { .. } => "StructureError",
             Error::BadTolerance { .. } | Error::InvalidArgument { .. } => "InputError",
-            Error::NotASymmetry { .. } => "SymmetryError",
+            Error::NotASymmetry { .. } | Error::AmbiguousImage { .. } => "SymmetryError",
             Error::GroupClosure { .. } => "ToleranceError",
             Error::MalformedXyz { .. } | Error::Io { .. } => "ReadError",
             Error::Internal { .. } => "GammatraceError",
@@ -137,7 +140,9 @@ mod glue {
     }
 
     fn flat_mats(mats: &[[[f64; 3]; 3]]) -> Vec<f64> {
-        mats.iter().flat_map(|m| m.iter().flatten().copied()).collect()
+        mats.iter()
+            .flat_map(|m| m.iter().flatten().copied())
+            .collect()
     }
 
     /// Point-group detection: returns a dict of numpy arrays (see _core.pyi).
@@ -263,7 +268,10 @@ mod glue {
         let bonds = py
             .detach(|| count::find_bonds(pos, rad, scale))
             .map_err(CoreError)?;
-        let flat: Vec<i64> = bonds.iter().flat_map(|b| [b[0] as i64, b[1] as i64]).collect();
+        let flat: Vec<i64> = bonds
+            .iter()
+            .flat_map(|b| [b[0] as i64, b[1] as i64])
+            .collect();
         let arr = Array2::from_shape_vec((bonds.len(), 2), flat)
             .map_err(|e| PyValueError::new_err(e.to_string()))?;
         Ok(arr.into_pyarray(py))
@@ -373,8 +381,11 @@ mod glue {
         out.set_item("offsets", Array1::from(offsets).into_pyarray(py))?;
         out.set_item("comments", PyList::new(py, &frames.comments)?)?;
         out.set_item("info", PyList::new(py, &frames.info)?)?;
-        let errors: Vec<Option<(&'static str, String)>> =
-            frames.errors.iter().map(|e| e.as_ref().map(error_pair)).collect();
+        let errors: Vec<Option<(&'static str, String)>> = frames
+            .errors
+            .iter()
+            .map(|e| e.as_ref().map(error_pair))
+            .collect();
         out.set_item("errors", PyList::new(py, &errors)?)?;
         Ok(out)
     }
@@ -385,7 +396,11 @@ mod glue {
 
     /// Read a (multi-frame, extended) XYZ file; bad frames carry an error, the rest are read.
     #[pyfunction]
-    fn read_xyz_path<'py>(py: Python<'py>, path: &str, source: &str) -> PyResult<Bound<'py, PyDict>> {
+    fn read_xyz_path<'py>(
+        py: Python<'py>,
+        path: &str,
+        source: &str,
+    ) -> PyResult<Bound<'py, PyDict>> {
         let p = std::path::PathBuf::from(path);
         let frames = py
             .detach(|| readers::read_xyz_path(&p, source, &element_number))
@@ -395,7 +410,11 @@ mod glue {
 
     /// Read XYZ text held in memory (for standard input).
     #[pyfunction]
-    fn read_xyz_bytes<'py>(py: Python<'py>, data: &[u8], source: &str) -> PyResult<Bound<'py, PyDict>> {
+    fn read_xyz_bytes<'py>(
+        py: Python<'py>,
+        data: &[u8],
+        source: &str,
+    ) -> PyResult<Bound<'py, PyDict>> {
         let frames = py.detach(|| readers::read_xyz_bytes(data, source, &element_number));
         frames_to_dict(py, frames)
     }
@@ -411,12 +430,10 @@ mod glue {
             match structure::atomic_number(s) {
                 Ok(z) => out.push(z),
                 Err(e) => {
-                    let err = to_pyerr(py, &e);
-                    let msg = format!("atom {i}: {}", e);
+                    let msg = format!("atom {i}: {e}");
                     let class = py
                         .import("gammatrace.errors")?
                         .getattr(exception_class(&e))?;
-                    let _ = err;
                     return Err(PyErr::from_value(class.call1((msg,))?));
                 }
             }
@@ -429,13 +446,21 @@ mod glue {
     fn element_data<'py>(
         py: Python<'py>,
         numbers: PyReadonlyArray1<'py, i64>,
-    ) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<f64>>, Vec<String>)> {
+    ) -> PyResult<(
+        Bound<'py, PyArray1<f64>>,
+        Bound<'py, PyArray1<f64>>,
+        Vec<String>,
+    )> {
         let num = slice1(&numbers, "numbers")?;
         let mut masses = Vec::with_capacity(num.len());
         let mut radii = Vec::with_capacity(num.len());
         let mut symbols = Vec::with_capacity(num.len());
         for (i, &z) in num.iter().enumerate() {
-            match (structure::mass(z), structure::covalent_radius(z), structure::symbol(z)) {
+            match (
+                structure::mass(z),
+                structure::covalent_radius(z),
+                structure::symbol(z),
+            ) {
                 (Some(m), Some(r), Some(s)) => {
                     masses.push(m);
                     radii.push(r);
@@ -471,7 +496,9 @@ mod glue {
         let mut off = Vec::with_capacity(off_raw.len());
         for &o in off_raw {
             if o < 0 {
-                return Err(PyValueError::new_err(format!("offsets: negative entry {o}")));
+                return Err(PyValueError::new_err(format!(
+                    "offsets: negative entry {o}"
+                )));
             }
             off.push(o as usize);
         }
@@ -486,7 +513,10 @@ mod glue {
         let out = PyDict::new(py);
         out.set_item("point_group", PyList::new(py, &res.point_group)?)?;
         out.set_item("order", Array1::from(res.order).into_pyarray(py))?;
-        out.set_item("max_deviation", Array1::from(res.max_deviation).into_pyarray(py))?;
+        out.set_item(
+            "max_deviation",
+            Array1::from(res.max_deviation).into_pyarray(py),
+        )?;
         out.set_item("n_proper", Array1::from(res.n_proper).into_pyarray(py))?;
         let n_struct = res.frames.len();
         let flat: Vec<f64> = res.frames.iter().flatten().flatten().copied().collect();
@@ -502,8 +532,11 @@ mod glue {
         out.set_item("proper", Array1::from(res.proper).into_pyarray(py))?;
         out.set_item("angle", Array1::from(res.angle).into_pyarray(py))?;
         out.set_item("unshifted", Array1::from(res.unshifted).into_pyarray(py))?;
-        let errors: Vec<Option<(&'static str, String)>> =
-            res.errors.iter().map(|e| e.as_ref().map(error_pair)).collect();
+        let errors: Vec<Option<(&'static str, String)>> = res
+            .errors
+            .iter()
+            .map(|e| e.as_ref().map(error_pair))
+            .collect();
         out.set_item("errors", PyList::new(py, &errors)?)?;
         Ok(out)
     }

@@ -19,10 +19,10 @@ OTHERS = ["C1", "Cs", "Ci", "T", "Td", "Th", "O", "Oh", "I", "Ih"]
 
 
 def seeded_structure(group: str, rng: np.random.Generator):
-    """Orbits of two general seeds plus, for variety, one on-axis/high-symmetry seed."""
+    """Orbits of four general seeds (enough atoms even for C1)."""
     table = gt.get_table(group)
-    seeds = rng.normal(size=(2, 3)) * np.array([2.0, 2.0, 1.5])
-    return orbit_structure(table.operations, seeds, np.array([6, 1]))
+    seeds = rng.normal(size=(4, 3)) * np.array([2.0, 2.0, 1.5])
+    return orbit_structure(table.operations, seeds, np.array([6, 1, 8, 7]))
 
 
 def _signature(res):

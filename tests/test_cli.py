@@ -61,7 +61,7 @@ def test_bad_frame_is_reported_in_place_and_exit_1(tmp_path, capsys):
     assert [r["index"] for r in rows] == [0, 1, 2]
     assert rows[0]["point_group"] == "C2v" and rows[2]["point_group"] == "C3v"
     assert rows[1]["error"]["type"] == "ReadError"
-    assert "line 5" in rows[1]["error"]["message"]
+    assert "line 9" in rows[1]["error"]["message"]  # 5 lines of water, then line 4 of it
     assert "gammatrace: ReadError" in err
 
 

@@ -49,13 +49,16 @@ def test_benzene_pi_system():
 
 
 def test_benzene_bond_stretches():
-    # common practice: the six C-C stretches of benzene span A1g + B1u + E1u + E2g and the six
-    # C-H stretches span A1g + B1u + E1u + E2g as well (Wilson, Decius & Cross, ch. 6).
+    # Herzberg (1945) / Wilson numbering (from memory): the C-H stretches are ν2 (a1g),
+    # ν13 (b1u), ν7 (e2g), ν20 (e1u); the ring C-C stretches ν1 (a1g), ν14 (b2u, the Kekulé
+    # mode), ν8 (e2g), ν19 (e1u). C-H bonds lie on the C2' axes, C-C bonds across the C2''.
     symbols, pos = ase_molecule("C6H6")
     res = gt.analyze(symbols, pos)
     rep = res.representation("bonds")
     assert rep.dimension == 12
-    assert rep.irreps == {"A1g": 2, "B1u": 2, "E1u": 2, "E2g": 2}
+    assert rep.irreps == {"A1g": 2, "E2g": 2, "B1u": 1, "B2u": 1, "E1u": 2}
+    ring = gt.Basis.bond_stretches([[0, 1], [1, 2], [2, 3], [3, 4], [4, 5], [5, 0]])
+    assert res.representation(ring).irreps == {"A1g": 1, "E2g": 1, "B2u": 1, "E1u": 1}
 
 
 def test_water_oh_bond_vectors():

@@ -36,12 +36,14 @@ CASES = {
         2,
         3,
     ),
-    # Herzberg (1945) / Cotton ch. 10, ethylene with x ⟂ plane and z along C=C (Mulliken):
-    # 3Ag + Au + 2B1g + B1u + B2g + 2B2u + 2B3u; 5 IR (B1u, B2u, B3u), 6 Raman (Ag, B1g, B2g).
+    # Herzberg (1945), ethylene, printed (from memory) as 3ag + au + 2b1g + b1u + b2g + 2b2u
+    # + 2b3u in axes with x along C=C and z perpendicular to the plane. Mulliken's axes used
+    # here swap x and z (z along C=C, x perpendicular), which swaps the labels 1 <-> 3:
+    # 3Ag + Au + 2B3g + B3u + B2g + 2B2u + 2B1u; 5 IR (B1u, B2u, B3u), 6 Raman (Ag, B2g, B3g).
     "C2H4": (
         lambda: ase_molecule("C2H4"),
         "D2h",
-        {"Ag": 3, "B1g": 2, "B2g": 1, "Au": 1, "B1u": 1, "B2u": 2, "B3u": 2},
+        {"Ag": 3, "B2g": 1, "B3g": 2, "Au": 1, "B1u": 2, "B2u": 2, "B3u": 1},
         5,
         6,
     ),

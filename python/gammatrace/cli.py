@@ -58,6 +58,15 @@ def _cmd_analyze(args: argparse.Namespace) -> int:
             )
             continue
         try:
+            if args.draw:
+                import os
+
+                from .pictures import draw_symmetry
+
+                os.makedirs(args.draw, exist_ok=True)
+                stem = os.path.splitext(os.path.basename(result.structure.source))[0] or "stdin"
+                draw_symmetry(result, os.path.join(args.draw,
+                                                   f"{stem}_{result.structure.index}.png"))
             if args.format == "json":
                 _write(_dump(result.to_dict(bases, orbits=args.orbits)) + "\n")
             else:
@@ -115,6 +124,39 @@ def _cmd_correlate(args: argparse.Namespace) -> int:
     return 0
 
 
+def _cmd_screen(args: argparse.Namespace) -> int:
+    from .screen import screen
+
+    summary = screen(
+        args.paths,
+        args.out,
+        fmt=args.out_format,
+        tol=args.tol,
+        n_threads=args.threads,
+        chunk_size=args.chunk,
+        progress=not args.no_progress,
+        resume=args.resume,
+    )
+    groups = summary["groups"]
+    n = summary["n"]
+    lines = [f"screened {n} structures" + (f" ({summary['skipped']} already done)"
+                                            if summary["skipped"] else "")]
+    for g, members in sorted(groups.items(), key=lambda kv: (-len(kv[1]), kv[0])):
+        shown = ", ".join(members[: args.show])
+        more = f", ... (+{len(members) - args.show})" if len(members) > args.show else ""
+        lines.append(f"  {g:<6} {len(members):>9}  {100 * len(members) / max(n, 1):5.1f}%  "
+                     f"{shown}{more}")
+    if summary["failures"]:
+        lines.append(f"  failed {len(summary['failures']):>9}  " +
+                     ", ".join(summary["failures"][: args.show]))
+    print("\n".join(lines), file=sys.stderr if args.out is None else sys.stdout)
+    if args.chart:
+        from .pictures import plot_group_counts
+
+        plot_group_counts({g: len(m) for g, m in groups.items()}, args.chart)
+    return 1 if summary["failures"] else 0
+
+
 def _cmd_demo(args: argparse.Namespace) -> int:
     from .demo import run_demo
 
@@ -141,6 +183,8 @@ def _parser() -> argparse.ArgumentParser:
                         "(repeatable; atoms and cartesian are always included)")
     a.add_argument("--orbits", action="store_true", help="list symmetry-distinct atoms")
     a.add_argument("--brief", action="store_true", help="text: omit the per-class tables")
+    a.add_argument("--draw", default=None, metavar="DIR",
+                   help="write a PNG of each structure with its symmetry elements into DIR")
     a.set_defaults(func=_cmd_analyze)
 
     t = sub.add_parser("table", help="the character table of a point group")
@@ -153,6 +197,22 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("subgroup", metavar="SUBGROUP")
     c.add_argument("--format", choices=("text", "json"), default="text")
     c.set_defaults(func=_cmd_correlate)
+
+    sc = sub.add_parser("screen", help="batch-screen ensembles into a table")
+    sc.add_argument("paths", nargs="+", metavar="PATH", help="multi-frame XYZ file(s)")
+    sc.add_argument("--out", default=None, help="output table (.jsonl, .csv or .parquet)")
+    sc.add_argument("--out-format", choices=("jsonl", "csv", "parquet"), default=None,
+                    help="override the format implied by --out's extension")
+    sc.add_argument("--tol", type=float, default=DEFAULT_TOL,
+                    help=f"distance tolerance in Å (default {DEFAULT_TOL})")
+    sc.add_argument("--threads", type=int, default=0, help="core threads (0 = all cores)")
+    sc.add_argument("--chunk", type=int, default=8192, help="structures per chunk")
+    sc.add_argument("--resume", action="store_true",
+                    help="skip frames already in --out (JSON Lines / CSV)")
+    sc.add_argument("--no-progress", action="store_true", help="no progress bar")
+    sc.add_argument("--show", type=int, default=5, help="frames listed per point group")
+    sc.add_argument("--chart", default=None, help="PNG bar chart of point-group counts")
+    sc.set_defaults(func=_cmd_screen)
 
     d = sub.add_parser("demo", help="run the bundled (invented) demo scenario")
     d.add_argument("--out", default=None, help="folder for the demo's files and pictures")

@@ -15,6 +15,7 @@ import time
 import numpy as np
 
 from .builders import c60, fcc_cluster, mackay_icosahedron
+from .errors import InputError
 from .io import Structure, write_xyz
 
 __all__ = ["run_demo", "ethane", "reference_molecules"]
@@ -61,7 +62,7 @@ def _write_scan(path: str, rng: np.random.Generator) -> None:
     # deliberately corrupt one frame (a truncated coordinate line) to show error handling
     with open(path, encoding="utf-8") as fh:
         lines = fh.read().splitlines()
-    lines[2 + 10 * 4 + 3] = "H 0.5"  # frame 4, third atom line
+    lines[2 + 10 * 5 + 3] = "H 0.5"  # frame 5, fourth atom line
     with open(path, "w", encoding="utf-8") as fh:
         fh.write("\n".join(lines) + "\n")
 
@@ -121,5 +122,17 @@ def run_demo(out: str | None = None) -> int:
             f"   {name:<22} {s.n_atoms:>7} {res.point_group:<5} {n_orbits:>6}  {dt:>7.3f}  "
             f"{vib.n_ir:>2}  {vib.n_raman:>5}"
         )
+    try:
+        from .pictures import draw_symmetry, plot_group_counts
+
+        png = draw_symmetry(analyze(c60()), os.path.join(folder, "c60_symmetry.png"))
+        counts: dict[str, int] = {}
+        for res in analyze_many([scan]):
+            if not isinstance(res, FrameError):
+                counts[res.point_group] = counts.get(res.point_group, 0) + 1
+        chart = plot_group_counts(counts, os.path.join(folder, "scan_point_groups.png"))
+        print(f"\nPictures: {png}\n          {chart}")
+    except InputError as exc:  # pictures need the optional matplotlib
+        print(f"\n(pictures skipped: {exc})")
     print("\nDone. Try: gammatrace analyze " + scan + " --format json")
     return 0

@@ -1,0 +1,133 @@
+"""Pictures (``pip install 'gammatrace[plot]'``): a structure with its symmetry elements, and a
+bar chart of point-group counts for a batch. PNG files through matplotlib's Agg backend."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, Mapping
+
+import numpy as np
+
+from .errors import InputError
+
+if TYPE_CHECKING:  # pragma: no cover
+    from .analysis import Analysis
+
+__all__ = ["symmetry_elements", "draw_symmetry", "plot_group_counts"]
+
+
+def _pyplot():
+    try:
+        import matplotlib
+
+        matplotlib.use("Agg")
+        import matplotlib.pyplot as plt
+    except ImportError:
+        raise InputError("pictures need matplotlib: pip install 'gammatrace[plot]'") from None
+    return plt
+
+
+def symmetry_elements(analysis: "Analysis") -> dict:
+    """Rotation axes (unit vector, order), mirror-plane normals and the inversion centre.
+
+    Axes and normals are in the input frame; ``center`` is the centre of mass.
+    """
+    from .identify import _axis_and_angle, _rotation_order
+
+    h = len(analysis.operation_matrices)
+    axes: list[tuple[np.ndarray, int]] = []
+    normals: list[np.ndarray] = []
+    inversion = False
+    for m, proper in zip(analysis.operation_matrices, analysis.proper):
+        if proper:
+            axis, angle = _axis_and_angle(m)
+            n = _rotation_order(angle, h)
+            if n < 2:
+                continue
+            for k, (a, o) in enumerate(axes):
+                if abs(abs(float(a @ axis)) - 1) < 1e-6:
+                    axes[k] = (a, max(o, n))
+                    break
+            else:
+                axes.append((axis, n))
+        elif np.allclose(m, -np.eye(3), atol=1e-6):
+            inversion = True
+        elif abs(np.trace(m) - 1.0) < 1e-6:
+            w, v = np.linalg.eigh((m + m.T) / 2)
+            normals.append(v[:, int(np.argmin(w))])
+    return {"axes": axes, "planes": normals, "inversion": inversion, "center": analysis.center}
+
+
+_COLOURS = {1: "#dddddd", 6: "#444444", 7: "#3050f8", 8: "#ff0d0d", 9: "#90e050",
+            16: "#ffff30", 17: "#1ff01f", 79: "#ffd123"}
+
+
+def draw_symmetry(analysis: "Analysis", path: str, *, max_atoms: int = 5000) -> str:
+    """Draw the structure with its rotation axes (labelled Cn), mirror planes and inversion
+    centre to a PNG file; returns the path. Structures above ``max_atoms`` are subsampled."""
+    plt = _pyplot()
+    el = symmetry_elements(analysis)
+    pos = analysis.structure.positions - analysis.center
+    nums = analysis.structure.numbers
+    if len(pos) > max_atoms:
+        pick = np.random.default_rng(0).choice(len(pos), max_atoms, replace=False)
+        pos, nums = pos[pick], nums[pick]
+    radius = float(np.linalg.norm(pos, axis=1).max()) if len(pos) else 1.0
+    radius = max(radius, 1.0)
+    fig = plt.figure(figsize=(7, 7))
+    ax = fig.add_subplot(projection="3d")
+    colours = [_COLOURS.get(int(z), "#a0a0c0") for z in nums]
+    ax.scatter(pos[:, 0], pos[:, 1], pos[:, 2], c=colours, s=60 if len(pos) < 200 else 8,
+               edgecolors="k", linewidths=0.3, depthshade=True)
+    span = 1.25 * radius
+    for axis, order in el["axes"]:
+        p = np.outer([-span, span], axis)
+        ax.plot(p[:, 0], p[:, 1], p[:, 2], color="tab:blue", lw=1.4 if order > 2 else 0.8)
+        tip = axis * span * 1.05
+        ax.text(tip[0], tip[1], tip[2], f"C{order}", color="tab:blue", fontsize=9)
+    for normal in el["planes"][:24]:
+        u = np.cross(normal, [1.0, 0, 0] if abs(normal[0]) < 0.9 else [0, 1.0, 0])
+        u /= np.linalg.norm(u)
+        v = np.cross(normal, u)
+        g = np.linspace(-span, span, 2)
+        uu, vv = np.meshgrid(g, g)
+        pts = uu[..., None] * u + vv[..., None] * v
+        ax.plot_surface(pts[..., 0], pts[..., 1], pts[..., 2], color="tab:orange",
+                        alpha=min(0.15, 1.0 / len(el["planes"])),
+                        linewidth=0)
+    if el["inversion"]:
+        ax.scatter([0], [0], [0], marker="*", s=200, c="tab:red", label="inversion centre")
+        ax.legend(loc="upper left")
+    ax.set_box_aspect((1, 1, 1))
+    lim = (-span, span)
+    ax.set_xlim(lim)
+    ax.set_ylim(lim)
+    ax.set_zlim(lim)
+    ax.set_xlabel("x / Å")
+    ax.set_ylabel("y / Å")
+    ax.set_zlabel("z / Å")
+    n_planes = len(el["planes"])
+    ax.set_title(
+        f"{analysis.point_group}: {len(el['axes'])} rotation axes, {n_planes} mirror planes"
+        + (", inversion centre" if el["inversion"] else "")
+    )
+    fig.tight_layout()
+    fig.savefig(path, dpi=110)
+    plt.close(fig)
+    return path
+
+
+def plot_group_counts(counts: Mapping[str, int], path: str) -> str:
+    """Bar chart of structures per point group (descending) to a PNG file; returns the path."""
+    plt = _pyplot()
+    items = sorted(counts.items(), key=lambda kv: (-kv[1], kv[0]))
+    fig, ax = plt.subplots(figsize=(max(4, 0.6 * len(items) + 2), 4))
+    ax.bar([k for k, _ in items], [v for _, v in items], color="tab:blue")
+    ax.set_ylabel("structures")
+    ax.set_xlabel("point group")
+    ax.set_title("Point groups in the batch")
+    for i, (_, v) in enumerate(items):
+        ax.text(i, v, str(v), ha="center", va="bottom", fontsize=8)
+    fig.tight_layout()
+    fig.savefig(path, dpi=110)
+    plt.close(fig)
+    return path
