@@ -13,7 +13,7 @@
 //!    maps a → a' in window(a) and b → b' in window(b) with |a'b'| ≈ |ab|, and is fixed by
 //!    (a', b') and its handedness: so the candidates are all such pairs, two matrices each.
 //!    A candidate is tested on a small probe of atoms with a loose tolerance (3·tol), refitted
-//!    by least squares (Kabsch) on the matches, tested on all atoms (a fixed sample of 4096
+//!    by least squares (Kabsch) on the matches, tested on all atoms (a fixed sample of 1024
 //!    plus the two windows for structures above 20 000 atoms) at `tol`, and refitted again.
 //!    Nothing limits n.
 //! 4. The operations found must close under multiplication (checked exactly through the
@@ -49,7 +49,7 @@ pub const DEFAULT_VERIFY_ALL_LIMIT: usize = 20_000_000;
 /// Above this many atoms, candidate operations are screened on a sample of the atoms
 /// (the reported generators are still verified on all of them).
 const SAMPLE_ABOVE: usize = 20_000;
-const SAMPLE_SIZE: usize = 4096;
+const SAMPLE_SIZE: usize = 1024;
 
 /// Options of `find_point_group`.
 #[derive(Debug, Clone, PartialEq)]
@@ -457,6 +457,21 @@ fn enumerate(ctx: &Ctx, tol_raw: f64) -> Result<(Vec<RawOp>, usize, usize)> {
     };
     let mut accept = accept;
     dedup_keep_order(&mut accept);
+    if accept.len() < n {
+        // Visit the sample in cell order: successive images then fall in nearby cells.
+        let mut chosen = vec![false; n];
+        for &i in &accept[2..] {
+            chosen[i] = true;
+        }
+        let rest = ctx
+            .grid
+            .atoms_in_cell_order()
+            .iter()
+            .map(|&i| i as usize)
+            .filter(|&i| chosen[i]);
+        accept = [a, b].into_iter().chain(rest).collect();
+        dedup_keep_order(&mut accept);
+    }
 
     let mut found: Vec<RawOp> = Vec::new();
     let mut seen: HashMap<(usize, usize, bool), usize> = HashMap::new();

@@ -252,6 +252,11 @@ impl Grid {
         self.tol
     }
 
+    /// Input indices of the atoms in the grid's storage (cell) order.
+    pub fn atoms_in_cell_order(&self) -> &[u32] {
+        &self.idx
+    }
+
     /// The cell edge, Å.
     pub fn cell_size(&self) -> f64 {
         self.cell

@@ -223,7 +223,8 @@ pub fn standard_operations(family: Family) -> (Vec<Mat3>, Vec<usize>) {
         Family::Th => close(&[cyc, c2z, INVERSION]),
         Family::O => close(&[rz(PI / 2.0), cyc]),
         Family::Oh => close(&[rz(PI / 2.0), cyc, INVERSION]),
-        Family::I => close(&[c5, cyc, c2z]),
-        Family::Ih => close(&[c5, cyc, c2z, INVERSION]),
+        // Elements of orders 5 and 3 generate I: A5 has no proper subgroup of order 15·k.
+        Family::I => close(&[c5, cyc]),
+        Family::Ih => close(&[c5, cyc, INVERSION]),
     }
 }
