@@ -291,8 +291,10 @@ impl Grid {
         let mut lo = [0i64; 3];
         let mut hi = [0i64; 3];
         for k in 0..3 {
-            let a = ((point[k] - radius - self.origin[k]) * self.inv_cell).floor() as i64;
-            let b = ((point[k] + radius - self.origin[k]) * self.inv_cell).floor() as i64;
+            // Truncation instead of floor (a libm call without SSE4.1): it differs only on
+            // (-1, 0), which the clamp to cell 0 absorbs (at worst one empty-handed cell).
+            let a = ((point[k] - radius - self.origin[k]) * self.inv_cell) as i64;
+            let b = ((point[k] + radius - self.origin[k]) * self.inv_cell) as i64;
             lo[k] = a.max(0);
             hi[k] = b.min(self.dims[k] - 1);
             if lo[k] > hi[k] {
