@@ -159,6 +159,30 @@ pub fn orbital_character(l: usize, proper: bool, angle_deg: f64) -> f64 {
     }
 }
 
+/// [`orbital_character`] of one shell of angular momentum `l` for every operation
+/// (`proper[k]`, `angle_deg[k]`): the contribution of one unshifted atom. Multiplied by
+/// [`count_unshifted`] it gives the character when every atom carries the same shell.
+///
+/// # Errors
+/// `InvalidArgument` when `proper` and `angle_deg` differ in length.
+pub fn orbital_contributions(proper: &[bool], angle_deg: &[f64], l: usize) -> Result<Vec<f64>> {
+    if proper.len() != angle_deg.len() {
+        return Err(Error::InvalidArgument {
+            name: "angle".into(),
+            reason: format!(
+                "{} angles for {} proper/improper flags",
+                angle_deg.len(),
+                proper.len()
+            ),
+        });
+    }
+    Ok(proper
+        .iter()
+        .zip(angle_deg)
+        .map(|(&p, &a)| orbital_character(l, p, a))
+        .collect())
+}
+
 /// Per-operation sums of `weight(i)` over the atoms unshifted by each operation.
 fn count_weighted<W>(
     positions: &[[f64; 3]],
@@ -953,7 +977,7 @@ mod tests {
                 }
             }
             if pts.len() > before {
-                labels.extend(std::iter::repeat(label).take(pts.len() - before));
+                labels.extend(std::iter::repeat_n(label, pts.len() - before));
                 label += 1;
             }
         }

@@ -159,7 +159,7 @@ pub fn find_point_group(
     if !(tol.is_finite() && tol > 0.0) {
         return Err(Error::BadTolerance { value: tol });
     }
-    if opts.linear_n < 3 || opts.linear_n % 2 == 0 {
+    if opts.linear_n < 3 || opts.linear_n.is_multiple_of(2) {
         return Err(Error::InvalidArgument {
             name: "linear_n".into(),
             reason: format!("must be odd and at least 3, got {}", opts.linear_n),
@@ -616,7 +616,13 @@ fn test_candidate(
 
 /// Check that the raw operations close (g·h found among them, through the images of a and
 /// b) and compute each one's order.
-fn close_and_order(ctx: &Ctx, mut raw: Vec<RawOp>, a: usize, b: usize) -> Result<Vec<RawOp>> {
+///
+/// At the edge of the tolerance some products of verified operations can miss it (the
+/// deviations of two operations add up). Then the operations are cut down to a maximal
+/// subgroup whose products are all verified: the identity, then every operation (in the
+/// order found) whose closure with those already kept stays among the verified ones. The
+/// structure is reported in that subgroup rather than in no group at all.
+fn close_and_order(ctx: &Ctx, raw: Vec<RawOp>, a: usize, b: usize) -> Result<Vec<RawOp>> {
     let h = raw.len();
     let key: HashMap<(usize, usize, bool), usize> = raw
         .iter()
@@ -635,7 +641,8 @@ fn close_and_order(ctx: &Ctx, mut raw: Vec<RawOp>, a: usize, b: usize) -> Result
             ctx.tol
         ),
     };
-    let mut table = vec![0u32; h * h];
+    let mut table: Vec<Option<u32>> = vec![None; h * h];
+    let mut complete = true;
     for g in 0..h {
         for f in 0..h {
             let ia = image(&raw[g], raw[f].ia);
@@ -644,36 +651,91 @@ fn close_and_order(ctx: &Ctx, mut raw: Vec<RawOp>, a: usize, b: usize) -> Result
                 (Some(ia), Some(ib)) => key.get(&(ia, ib, raw[g].proper == raw[f].proper)),
                 _ => None,
             };
-            match k {
-                Some(&k) => table[g * h + f] = k as u32,
-                None => {
-                    return Err(fail(format!(
-                        "the product of operations {g} and {f} is not"
-                    )))
-                }
-            }
+            table[g * h + f] = k.map(|&k| k as u32);
+            complete &= k.is_some();
         }
     }
     let identity = key
         .get(&(a, b, true))
         .copied()
         .ok_or_else(|| fail("the identity is not".into()))?;
-    for g in 0..h {
+    let keep: Vec<usize> = if complete {
+        (0..h).collect()
+    } else {
+        maximal_closed_subset(&table, h, identity)
+    };
+    let mut index = vec![usize::MAX; h];
+    for (new, &old) in keep.iter().enumerate() {
+        index[old] = new;
+    }
+    let mut orders = vec![0usize; h];
+    for &g in &keep {
         let mut p = g;
-        let mut order = 0;
-        for k in 1..=h {
+        for k in 1..=keep.len() {
             if p == identity {
-                order = k;
+                orders[g] = k;
                 break;
             }
-            p = table[g * h + p] as usize;
+            p = match table[g * h + p] {
+                Some(q) => q as usize,
+                None => break,
+            };
         }
-        if order == 0 {
+        if orders[g] == 0 {
             return Err(fail(format!("operation {g} has no finite order")));
         }
-        raw[g].order = order;
     }
-    Ok(raw)
+    let mut out = Vec::with_capacity(keep.len());
+    for (k, mut op) in raw.into_iter().enumerate() {
+        if index[k] != usize::MAX {
+            op.order = orders[k];
+            out.push(op);
+        }
+    }
+    Ok(out)
+}
+
+/// Indices of a maximal subset containing `identity` that is closed under the (partial)
+/// multiplication `table` (h × h, None where the product was not verified).
+fn maximal_closed_subset(table: &[Option<u32>], h: usize, identity: usize) -> Vec<usize> {
+    let mut member = vec![false; h];
+    member[identity] = true;
+    for g in 0..h {
+        if member[g] {
+            continue;
+        }
+        // closure of the current members plus g, by breadth-first products
+        let mut trial = member.clone();
+        trial[g] = true;
+        let mut queue: Vec<usize> = (0..h).filter(|&k| trial[k]).collect();
+        let mut ok = true;
+        'grow: while let Some(x) = queue.pop() {
+            for y in 0..h {
+                if !trial[y] {
+                    continue;
+                }
+                for (p, q) in [(x, y), (y, x)] {
+                    match table[p * h + q] {
+                        Some(z) => {
+                            let z = z as usize;
+                            if !trial[z] {
+                                trial[z] = true;
+                                queue.push(z);
+                            }
+                        }
+                        None => {
+                            ok = false;
+                            break 'grow;
+                        }
+                    }
+                }
+            }
+        }
+        if ok {
+            member = trial;
+        }
+    }
+    (0..h).filter(|&k| member[k]).collect()
 }
 
 fn parallel(u: &Vec3, v: &Vec3) -> bool {

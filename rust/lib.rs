@@ -239,6 +239,20 @@ mod glue {
         Ok(out.into_pyarray(py))
     }
 
+    /// Contribution of one shell of angular momentum l per unshifted atom, per operation.
+    #[pyfunction]
+    fn orbital_contributions<'py>(
+        py: Python<'py>,
+        proper: PyReadonlyArray1<'py, bool>,
+        angle: PyReadonlyArray1<'py, f64>,
+        l: usize,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let prop = slice1(&proper, "proper")?;
+        let ang = slice1(&angle, "angle")?;
+        let out = count::orbital_contributions(prop, ang, l).map_err(CoreError)?;
+        Ok(out.into_pyarray(py))
+    }
+
     /// Characters of one p orbital per atom perpendicular to the molecular plane.
     #[pyfunction]
     fn pi_characters<'py>(
@@ -441,16 +455,18 @@ mod glue {
         Ok(Array1::from(out).into_pyarray(py))
     }
 
+    type ElementData<'py> = (
+        Bound<'py, PyArray1<f64>>,
+        Bound<'py, PyArray1<f64>>,
+        Vec<String>,
+    );
+
     /// Element data for atomic numbers: (masses, covalent radii, symbols).
     #[pyfunction]
     fn element_data<'py>(
         py: Python<'py>,
         numbers: PyReadonlyArray1<'py, i64>,
-    ) -> PyResult<(
-        Bound<'py, PyArray1<f64>>,
-        Bound<'py, PyArray1<f64>>,
-        Vec<String>,
-    )> {
+    ) -> PyResult<ElementData<'py>> {
         let num = slice1(&numbers, "numbers")?;
         let mut masses = Vec::with_capacity(num.len());
         let mut radii = Vec::with_capacity(num.len());
@@ -548,6 +564,7 @@ mod glue {
         m.add_function(wrap_pyfunction!(count_unshifted, m)?)?;
         m.add_function(wrap_pyfunction!(shell_characters, m)?)?;
         m.add_function(wrap_pyfunction!(pi_characters, m)?)?;
+        m.add_function(wrap_pyfunction!(orbital_contributions, m)?)?;
         m.add_function(wrap_pyfunction!(find_bonds, m)?)?;
         m.add_function(wrap_pyfunction!(bond_characters, m)?)?;
         m.add_function(wrap_pyfunction!(vector_set_characters, m)?)?;

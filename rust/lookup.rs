@@ -364,7 +364,7 @@ pub fn find_overlap(grid: &Grid) -> Option<(usize, usize, f64)> {
                 if t != s && d2 <= tol * tol {
                     let (a, b) = (grid.idx[s] as usize, grid.idx[t] as usize);
                     let pair = (a.min(b), a.max(b), d2.sqrt());
-                    if best.map_or(true, |q| (pair.0, pair.1) < (q.0, q.1)) {
+                    if best.is_none_or(|q| (pair.0, pair.1) < (q.0, q.1)) {
                         best = Some(pair);
                     }
                 }
@@ -528,7 +528,7 @@ mod tests {
                 continue;
             }
             let d = ((x[0] - q[0]).powi(2) + (x[1] - q[1]).powi(2) + (x[2] - q[2]).powi(2)).sqrt();
-            if d <= r && best.map_or(true, |b| d < b.1) {
+            if d <= r && best.is_none_or(|b| d < b.1) {
                 best = Some((i, d));
             }
         }

@@ -609,7 +609,7 @@ impl Scanner<'_> {
             let mut present = 0usize;
             let mut blank_run = 0usize;
             while present < n {
-                if present > 0 && present % CHUNK_LINES == 0 {
+                if present > 0 && present.is_multiple_of(CHUNK_LINES) {
                     chunks.push((p, present));
                 }
                 match read_line(data, p) {

@@ -234,6 +234,17 @@ class Analysis:
         return bool(np.all(self.proper))
 
     @cached_property
+    def unshifted_atoms(self) -> np.ndarray:
+        """Atoms each operation leaves unshifted (``float64 (h,)``), counted once in the core."""
+        from . import _core
+
+        s = self.structure
+        counts = _core.count_unshifted(
+            s.positions, tuple(self.center), self.operation_matrices, self.tol
+        )
+        return counts.astype(np.float64)
+
+    @cached_property
     def masses(self) -> np.ndarray:
         """Standard atomic masses (u)."""
         return element_data(self.structure.numbers)[0]

@@ -330,13 +330,12 @@ def count_characters(analysis: Analysis, basis: Basis) -> tuple[np.ndarray, np.n
         chars = _core.bond_characters(pos, center, ops, bonds, kind == "bond_vectors", tol)
         unshifted = _core.bond_characters(pos, center, ops, bonds, False, tol)
         return chars, unshifted
-    unshifted = _core.count_unshifted(pos, center, ops, tol).astype(np.float64)
+    unshifted = analysis.unshifted_atoms
     if kind == "atoms":
         return unshifted.copy(), unshifted
     if kind == "cartesian":
-        counts = np.zeros((s.n_atoms, 2), dtype=np.uint32)
-        counts[:, 1] = 1
-        return _core.shell_characters(pos, center, ops, proper, angle, counts, tol), unshifted
+        # every atom carries x, y, z: one p-like shell (l = 1), so one counting pass serves
+        return unshifted * _core.orbital_contributions(proper, angle, 1), unshifted
     if kind == "orbitals":
         counts = _shell_counts(analysis, basis.shells or {})
         return _core.shell_characters(pos, center, ops, proper, angle, counts, tol), unshifted

@@ -149,12 +149,12 @@ fn sorted(mut v: Vec<usize>) -> Vec<usize> {
 /// of n/2 reflections or C2 axes for even n, one of n for odd n).
 fn dihedral_classes(n: usize) -> Vec<usize> {
     let mut v = vec![1];
-    if n % 2 == 0 {
+    if n.is_multiple_of(2) {
         v.push(1);
-        v.extend(std::iter::repeat(2).take(n / 2 - 1));
+        v.extend(std::iter::repeat_n(2, n / 2 - 1));
         v.extend([n / 2, n / 2]);
     } else {
-        v.extend(std::iter::repeat(2).take((n - 1) / 2));
+        v.extend(std::iter::repeat_n(2, (n - 1) / 2));
         v.push(n);
     }
     v
@@ -878,7 +878,7 @@ fn timing_large_icosahedral_cluster() {
             }
         };
         p.extend(images);
-        z.extend(std::iter::repeat(6 + (k % 2) as i64).take(120));
+        z.extend(std::iter::repeat_n(6 + (k % 2) as i64, 120));
     }
     // Drop whole orbits that happen to come within 0.05 Å of another orbit.
     loop {
