@@ -58,12 +58,15 @@ def hessian(terms):
 def water():
     """H2O in the yz plane, z along C2: r = 0.9572 Å, angle 104.52° (common practice)."""
     r, th = 0.9572, np.radians(104.52)
-    pos = np.array([[0.0, 0.0, 0.0],
-                    [0.0, r * np.sin(th / 2), -r * np.cos(th / 2)],
-                    [0.0, -r * np.sin(th / 2), -r * np.cos(th / 2)]])
+    pos = np.array(
+        [
+            [0.0, 0.0, 0.0],
+            [0.0, r * np.sin(th / 2), -r * np.cos(th / 2)],
+            [0.0, -r * np.sin(th / 2), -r * np.cos(th / 2)],
+        ]
+    )
     num = np.array([8, 1, 1])
-    terms = [(stretch(pos, 0, 1), 8.45), (stretch(pos, 0, 2), 8.45),
-             (bend(pos, 1, 0, 2), 0.76)]
+    terms = [(stretch(pos, 0, 1), 8.45), (stretch(pos, 0, 2), 8.45), (bend(pos, 1, 0, 2), 0.76)]
     return pos, num, hessian(terms), terms
 
 

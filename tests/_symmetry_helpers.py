@@ -11,10 +11,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from gammatrace.basis_change import SymmetryData
 from scipy.spatial import cKDTree
 from scipy.spatial.transform import Rotation
-
-from gammatrace.basis_change import SymmetryData
 
 PHI = (1.0 + np.sqrt(5.0)) / 2.0
 
@@ -104,7 +103,7 @@ class Table:
         sizes = np.array([c.size for c in self.classes])
         nu = (self.character_matrix**2 * sizes).sum(axis=1) / self.order
         n = (self.character_matrix * sizes) @ np.asarray(chars_per_class) / (self.order * nu)
-        return {ir.label: int(round(v)) for ir, v in zip(self.irreps, n) if round(v)}
+        return {ir.label: round(v) for ir, v in zip(self.irreps, n) if round(v)}
 
 
 def _tables():
@@ -117,10 +116,18 @@ def _tables():
     tabs["C2v"] = Table(
         "C2v",
         [rot(z, 180), refl((0, 1, 0))],
-        [("E", np.eye(3)), ("C2", rot(z, 180)), ("σv(xz)", refl((0, 1, 0))),
-         ("σv'(yz)", refl((1, 0, 0)))],
-        [("A1", (1, 1, 1, 1)), ("A2", (1, 1, -1, -1)), ("B1", (1, -1, 1, -1)),
-         ("B2", (1, -1, -1, 1))],
+        [
+            ("E", np.eye(3)),
+            ("C2", rot(z, 180)),
+            ("σv(xz)", refl((0, 1, 0))),
+            ("σv'(yz)", refl((1, 0, 0))),
+        ],
+        [
+            ("A1", (1, 1, 1, 1)),
+            ("A2", (1, 1, -1, -1)),
+            ("B1", (1, -1, 1, -1)),
+            ("B2", (1, -1, -1, 1)),
+        ],
     )
     # Source: Cotton, Appendix IIA, C3v (typed from memory); x lies in a σv plane.
     tabs["C3v"] = Table(
@@ -140,20 +147,40 @@ def _tables():
     tabs["Td"] = Table(
         "Td",
         [improper(z, 90), rot(d111, 120)],
-        [("E", np.eye(3)), ("8C3", rot(d111, 120)), ("3C2", rot(z, 180)),
-         ("6S4", improper(z, 90)), ("6σd", refl((1, -1, 0)))],
-        [("A1", (1, 1, 1, 1, 1)), ("A2", (1, 1, 1, -1, -1)), ("E", (2, -1, 2, 0, 0)),
-         ("T1", (3, 0, -1, 1, -1)), ("T2", (3, 0, -1, -1, 1))],
+        [
+            ("E", np.eye(3)),
+            ("8C3", rot(d111, 120)),
+            ("3C2", rot(z, 180)),
+            ("6S4", improper(z, 90)),
+            ("6σd", refl((1, -1, 0))),
+        ],
+        [
+            ("A1", (1, 1, 1, 1, 1)),
+            ("A2", (1, 1, 1, -1, -1)),
+            ("E", (2, -1, 2, 0, 0)),
+            ("T1", (3, 0, -1, 1, -1)),
+            ("T2", (3, 0, -1, -1, 1)),
+        ],
     )
     # Source: Cotton, Appendix IIA, D6h (typed from memory); C2' along x (through atoms),
     # σv contains the C2' axes (normal y), σd the C2'' axes (normal x).
     tabs["D6h"] = Table(
         "D6h",
         [rot(z, 60), rot((1, 0, 0), 180), INV],
-        [("E", np.eye(3)), ("2C6", rot(z, 60)), ("2C3", rot(z, 120)), ("C2", rot(z, 180)),
-         ("3C2'", rot((1, 0, 0), 180)), ("3C2''", rot((0, 1, 0), 180)), ("i", INV),
-         ("2S3", improper(z, 120)), ("2S6", improper(z, 60)), ("σh", refl(z)),
-         ("3σd", refl((1, 0, 0))), ("3σv", refl((0, 1, 0)))],
+        [
+            ("E", np.eye(3)),
+            ("2C6", rot(z, 60)),
+            ("2C3", rot(z, 120)),
+            ("C2", rot(z, 180)),
+            ("3C2'", rot((1, 0, 0), 180)),
+            ("3C2''", rot((0, 1, 0), 180)),
+            ("i", INV),
+            ("2S3", improper(z, 120)),
+            ("2S6", improper(z, 60)),
+            ("σh", refl(z)),
+            ("3σd", refl((1, 0, 0))),
+            ("3σv", refl((0, 1, 0))),
+        ],
         [
             ("A1g", (1, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1)),
             ("A2g", (1, 1, 1, 1, -1, -1, 1, 1, 1, 1, -1, -1)),
@@ -173,9 +200,18 @@ def _tables():
     tabs["Oh"] = Table(
         "Oh",
         [rot(z, 90), rot(d111, 120), INV],
-        [("E", np.eye(3)), ("8C3", rot(d111, 120)), ("6C2", rot((1, 1, 0), 180)),
-         ("6C4", rot(z, 90)), ("3C2", rot(z, 180)), ("i", INV), ("6S4", improper(z, 90)),
-         ("8S6", improper(d111, 60)), ("3σh", refl(z)), ("6σd", refl((1, -1, 0)))],
+        [
+            ("E", np.eye(3)),
+            ("8C3", rot(d111, 120)),
+            ("6C2", rot((1, 1, 0), 180)),
+            ("6C4", rot(z, 90)),
+            ("3C2", rot(z, 180)),
+            ("i", INV),
+            ("6S4", improper(z, 90)),
+            ("8S6", improper(d111, 60)),
+            ("3σh", refl(z)),
+            ("6σd", refl((1, -1, 0))),
+        ],
         [
             ("A1g", (1, 1, 1, 1, 1, 1, 1, 1, 1, 1)),
             ("A2g", (1, 1, -1, -1, 1, 1, -1, 1, 1, -1)),
@@ -195,10 +231,18 @@ def _tables():
     tabs["Ih"] = Table(
         "Ih",
         [rot(a5, 72), rot(d111, 120), INV],
-        [("E", np.eye(3)), ("12C5", rot(a5, 72)), ("12C5^2", rot(a5, 144)),
-         ("20C3", rot(d111, 120)), ("15C2", rot(z, 180)), ("i", INV),
-         ("12S10", improper(a5, 36)), ("12S10^3", improper(a5, 108)),
-         ("20S6", improper(d111, 60)), ("15σ", refl(z))],
+        [
+            ("E", np.eye(3)),
+            ("12C5", rot(a5, 72)),
+            ("12C5^2", rot(a5, 144)),
+            ("20C3", rot(d111, 120)),
+            ("15C2", rot(z, 180)),
+            ("i", INV),
+            ("12S10", improper(a5, 36)),
+            ("12S10^3", improper(a5, 108)),
+            ("20S6", improper(d111, 60)),
+            ("15σ", refl(z)),
+        ],
         [
             ("Ag", (1, 1, 1, 1, 1, 1, 1, 1, 1, 1)),
             ("T1g", (3, p, q, 0, -1, 3, q, p, 0, -1)),
@@ -245,8 +289,9 @@ def permutations(ops, positions, center, tol=1e-4):
     return idx.reshape(len(ops), -1).astype(np.int64)
 
 
-def symmetry_data(table, positions, numbers, rotation=None, shift=(0.0, 0.0, 0.0),
-                  table_override=None):
+def symmetry_data(
+    table, positions, numbers, rotation=None, shift=(0.0, 0.0, 0.0), table_override=None
+):
     """SymmetryData for a structure given in the standard frame, optionally rotated."""
     q = np.eye(3) if rotation is None else np.asarray(rotation)
     center = np.asarray(shift, dtype=float)

@@ -6,7 +6,6 @@ import numpy as np
 import pytest
 import scipy.sparse as sp
 from _symmetry_helpers import PHI, TABLES, build, random_rotation, symmetry_data
-
 from gammatrace import _sph_harm
 from gammatrace.basis_change import (
     Basis,
@@ -31,7 +30,7 @@ STRUCTURES = {
     "C2v": [(8, (0, 0, 0.1)), (1, (0, 0.76, -0.5)), (6, (0.4, 0.7, 1.1))],
     "C3": [(7, (0, 0, 0.1)), (6, (0.4, 0.7, 1.1)), (1, (0.9, 0.0, -0.3))],
     "C3v": [(7, (0, 0, 0.1)), (1, (0.9, 0, -0.3)), (6, (0.4, 0.7, 1.1))],
-    "D6h": [(6, (1.4, 0, 0)), (1, (2.5, 0, 0)), (7, (0.4, 0.7, 1.1))],
+    "D6h": [(6, (1.4, 0, 0)), (1, (2.5, 0, 0)), (7, (0.5, 0.2, 1.1))],
     "Td": [(6, (0, 0, 0)), (1, (0.6, 0.6, 0.6)), (8, (0.4, 0.7, 1.7))],
     "Oh": [(16, (0, 0, 0)), (9, (1.6, 0, 0)), (8, (0.4, 0.7, 1.1))],
     "Ih": [(6, (0, 1, PHI)), (8, (0.4, 0.7, 1.1)), (26, (0, 0, 0))],
@@ -43,8 +42,9 @@ def make_sym(group, rotated=False, seeds=None):
     table = TABLES[group]
     pos, num = build(table, STRUCTURES[group] if seeds is None else seeds)
     rotation = random_rotation(7) if rotated else None
-    return symmetry_data(table, pos, num, rotation=rotation, shift=(0.3, -0.2, 0.5) if rotated
-                         else (0.0, 0.0, 0.0))
+    return symmetry_data(
+        table, pos, num, rotation=rotation, shift=(0.3, -0.2, 0.5) if rotated else (0.0, 0.0, 0.0)
+    )
 
 
 def check_block_structure(sym, basis):
@@ -89,7 +89,9 @@ def test_cartesian_basis_is_orthonormal_and_block_diagonal(group, rotated):
 def test_orbital_basis_is_block_diagonal(group):
     sym = make_sym(group, rotated=True)
     zs = np.unique(sym.numbers)
-    shells = {int(z): "spdf" if i == 0 else ("s" if group == "Ih" else "sp") for i, z in enumerate(zs)}
+    shells = {
+        int(z): "spdf" if i == 0 else ("s" if group == "Ih" else "sp") for i, z in enumerate(zs)
+    }
     check_block_structure(sym, Basis.orbitals(shells))
 
 
@@ -131,7 +133,9 @@ def test_bond_vector_characters_count_reversed_bonds_negative():
     per_class = {labels[c]: chi[sym.op_class == c] for c in range(len(labels))}
     assert np.allclose(per_class["3C2''"], -2) and np.allclose(per_class["3σd"], -2)
     assert np.allclose(per_class["σh"], 6) and np.allclose(per_class["3C2'"], 0)
-    traces = [gam.diagonal().sum() for gam in representation_matrices(sym, Basis.bond_vectors(ring))]
+    traces = [
+        gam.diagonal().sum() for gam in representation_matrices(sym, Basis.bond_vectors(ring))
+    ]
     assert np.allclose(traces, chi)
 
 
@@ -178,8 +182,11 @@ def test_counted_characters_match_traces_and_textbook_formula(group):
         c = cls[sym.op_class[k]]
         for l in range(4):
             theta = np.radians(c.angle if c.proper else c.angle + 180.0)
-            chi = 2 * l + 1 if abs(np.sin(theta / 2)) < 1e-12 else \
-                np.sin((l + 0.5) * theta) / np.sin(theta / 2)
+            chi = (
+                2 * l + 1
+                if abs(np.sin(theta / 2)) < 1e-12
+                else np.sin((l + 0.5) * theta) / np.sin(theta / 2)
+            )
             expect[k] += fixed[k] * (chi if c.proper else (-1) ** l * chi)
     assert np.allclose(traces, expect, atol=1e-9)
     # Cartesian: 1 + 2cosθ (proper), -1 + 2cosθ (improper) per unshifted atom
@@ -211,8 +218,10 @@ def test_representation_is_a_homomorphism_with_linear_nnz():
 def test_isotypic_projectors_are_idempotent_orthogonal_and_complete(group):
     sym = make_sym(group, rotated=True)
     n = 3 * sym.n_atoms
-    projs = {ir.label: projection_operator(sym, "cartesian", ir.label).toarray()
-             for ir in sym.table.irreps}
+    projs = {
+        ir.label: projection_operator(sym, "cartesian", ir.label).toarray()
+        for ir in sym.table.irreps
+    }
     total = np.zeros((n, n))
     for a, pa in projs.items():
         assert np.abs(pa @ pa - pa).max() < 1e-10
@@ -250,8 +259,10 @@ def test_equivalent_orbits_share_coefficients():
     first, second = x[:, :6], x[:, 6:]
     used_first = np.abs(first).sum(axis=1) > 0
     # orbit 2's atoms are the images of its seed under the same operations, in the same order
-    assert np.allclose(np.sort(np.abs(first[used_first]).sum(axis=1)),
-                       np.sort(np.abs(second[~used_first]).sum(axis=1)))
+    assert np.allclose(
+        np.sort(np.abs(first[used_first]).sum(axis=1)),
+        np.sort(np.abs(second[~used_first]).sum(axis=1)),
+    )
     assert len(atom_orbits(sym)) == 2
 
 
@@ -279,8 +290,9 @@ def test_noisy_operations_without_canonical_matrices_are_idealised():
         character_matrix = table.character_matrix
         order = table.order
 
-    sym = SymmetryData(pos, num, exact.center, exact.frame, noisy_ops, exact.permutations,
-                       NoOps(), exact.op_class)
+    sym = SymmetryData(
+        pos, num, exact.center, exact.frame, noisy_ops, exact.permutations, NoOps(), exact.op_class
+    )
     sab = symmetry_adapted_basis(sym, "cartesian")
     assert np.abs((sab.matrix @ sab.matrix.T).toarray() - np.eye(3 * len(num))).max() < 1e-10
     assert sab.multiplicities == symmetry_adapted_basis(exact, "cartesian").multiplicities
@@ -325,10 +337,26 @@ def test_bonds_that_are_not_closed_raise_symmetry_error():
 def test_bad_symmetry_data_raises_input_error():
     sym = make_sym("C3v")
     with pytest.raises(InputError, match=r"positions: expected shape \(n_atoms, 3\)"):
-        SymmetryData(sym.positions[:, :2], sym.numbers, sym.center, sym.frame, sym.operations,
-                     sym.permutations, sym.table, sym.op_class)
+        SymmetryData(
+            sym.positions[:, :2],
+            sym.numbers,
+            sym.center,
+            sym.frame,
+            sym.operations,
+            sym.permutations,
+            sym.table,
+            sym.op_class,
+        )
     with pytest.raises(InputError, match="permutations"):
-        SymmetryData(sym.positions, sym.numbers, sym.center, sym.frame, sym.operations,
-                     sym.permutations[:, ::2], sym.table, sym.op_class)
+        SymmetryData(
+            sym.positions,
+            sym.numbers,
+            sym.center,
+            sym.frame,
+            sym.operations,
+            sym.permutations[:, ::2],
+            sym.table,
+            sym.op_class,
+        )
     with pytest.raises(InputError, match="op_index"):
         representation_matrix(sym, 99, "cartesian")

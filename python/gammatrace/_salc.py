@@ -174,7 +174,7 @@ def _reduce_local(pi, mats, r0, g):
 
 def _stabiliser_keys(pi, sign):
     """Rank of each site's stabiliser (and reversal pattern) among all distinct ones."""
-    h, n_c = pi.shape
+    n_c = pi.shape[1]
     fixed = pi == np.arange(n_c)[None, :]
     bits = fixed if sign is None else np.concatenate([fixed, fixed & (sign < 0)], axis=0)
     packed = np.ascontiguousarray(np.packbits(bits, axis=0).T)

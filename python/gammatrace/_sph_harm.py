@@ -85,7 +85,13 @@ def real_harmonics(l: int, points: np.ndarray) -> np.ndarray:
     if l == 2:
         s3 = np.sqrt(3.0)
         return np.stack(
-            [s3 * x * y, s3 * y * z, 0.5 * (3.0 * z * z - r2), s3 * x * z, 0.5 * s3 * (x * x - y * y)],
+            [
+                s3 * x * y,
+                s3 * y * z,
+                0.5 * (3.0 * z * z - r2),
+                s3 * x * z,
+                0.5 * s3 * (x * x - y * y),
+            ],
             axis=1,
         )
     if l == 3:

@@ -24,8 +24,9 @@ Conventions
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Any, Mapping, Union
+from typing import Any, Union
 
 import numpy as np
 import scipy.sparse as sp
@@ -189,17 +190,17 @@ class Basis:
     pairs: np.ndarray | None = field(default=None, compare=False)
 
     @classmethod
-    def cartesian(cls) -> "Basis":
+    def cartesian(cls) -> Basis:
         """Cartesian displacements x, y, z of every atom (3N functions)."""
         return cls("cartesian")
 
     @classmethod
-    def atoms(cls) -> "Basis":
+    def atoms(cls) -> Basis:
         """One scalar per atom (the permutation representation)."""
         return cls("atoms")
 
     @classmethod
-    def orbitals(cls, shells: ShellSpec) -> "Basis":
+    def orbitals(cls, shells: ShellSpec) -> Basis:
         """Atomic orbitals in real spherical harmonics, per element.
 
         Parameters
@@ -240,12 +241,12 @@ class Basis:
         return cls("orbitals", shells=out)
 
     @classmethod
-    def bonds(cls, pairs) -> "Basis":
+    def bonds(cls, pairs) -> Basis:
         """One scalar (a stretch) per bond; ``pairs`` is an (n_bonds, 2) integer array."""
         return cls("bonds", pairs=_check_pairs(pairs))
 
     @classmethod
-    def bond_vectors(cls, pairs) -> "Basis":
+    def bond_vectors(cls, pairs) -> Basis:
         """One vector along each bond (a -> b); reversed by an operation, it changes sign."""
         return cls("bond_vectors", pairs=_check_pairs(pairs))
 
@@ -253,11 +254,15 @@ class Basis:
 def _check_pairs(pairs) -> np.ndarray:
     arr = np.asarray(pairs)
     if arr.ndim != 2 or arr.shape[1] != 2 or not np.issubdtype(arr.dtype, np.integer):
-        raise BasisError(f"pairs: expected an integer array of shape (n_bonds, 2), received "
-                         f"{arr.dtype} {arr.shape}")
+        raise BasisError(
+            f"pairs: expected an integer array of shape (n_bonds, 2), received "
+            f"{arr.dtype} {arr.shape}"
+        )
     arr = np.ascontiguousarray(arr, dtype=np.int64)
     if np.any(arr[:, 0] == arr[:, 1]):
-        raise BasisError(f"pairs: bond {int(np.argmax(arr[:, 0] == arr[:, 1]))} joins an atom to itself")
+        raise BasisError(
+            f"pairs: bond {int(np.argmax(arr[:, 0] == arr[:, 1]))} joins an atom to itself"
+        )
     key = np.sort(arr, axis=1)
     if np.unique(key, axis=0).shape[0] != key.shape[0]:
         raise BasisError("pairs: a bond is listed twice")
@@ -270,9 +275,7 @@ def _as_basis(basis) -> Basis:
         return basis
     if isinstance(basis, str) and basis in ("cartesian", "atoms"):
         return Basis(basis)
-    raise BasisError(
-        f"basis: expected a Basis or one of 'cartesian', 'atoms', received {basis!r}"
-    )
+    raise BasisError(f"basis: expected a Basis or one of 'cartesian', 'atoms', received {basis!r}")
 
 
 def _bond_permutation(sym: SymmetryData, pairs: np.ndarray):
@@ -301,16 +304,30 @@ def _bond_permutation(sym: SymmetryData, pairs: np.ndarray):
 def _components(sym: SymmetryData, basis: Basis, g: GroupData) -> list:
     h, n = sym.order, sym.n_atoms
     if basis.kind == "cartesian":
-        return [Component("cartesian", sym.permutations, None, np.arange(n), 3 * np.arange(n),
-                          g.ops_input)]
+        return [
+            Component(
+                "cartesian", sym.permutations, None, np.arange(n), 3 * np.arange(n), g.ops_input
+            )
+        ]
     if basis.kind == "atoms":
-        return [Component("scalar", sym.permutations, None, np.arange(n), np.arange(n),
-                          np.ones((h, 1, 1)))]
+        return [
+            Component(
+                "scalar", sym.permutations, None, np.arange(n), np.arange(n), np.ones((h, 1, 1))
+            )
+        ]
     if basis.kind in ("bonds", "bond_vectors"):
         nb = basis.pairs.shape[0]
         bperm, sign = _bond_permutation(sym, basis.pairs)
-        return [Component(basis.kind, bperm, sign if basis.kind == "bond_vectors" else None,
-                          np.arange(nb), np.arange(nb), np.ones((h, 1, 1)))]
+        return [
+            Component(
+                basis.kind,
+                bperm,
+                sign if basis.kind == "bond_vectors" else None,
+                np.arange(nb),
+                np.arange(nb),
+                np.ones((h, 1, 1)),
+            )
+        ]
     if basis.kind == "orbitals":
         present = np.unique(sym.numbers)
         missing = [int(z) for z in present if int(z) not in basis.shells]
@@ -328,8 +345,16 @@ def _components(sym: SymmetryData, basis: Basis, g: GroupData) -> list:
             for l in basis.shells[int(z)]:
                 if l not in dmats:
                     dmats[l] = _sph_harm.rotation_matrices(l, g.ops_input)
-                comps.append(Component(f"l={l}", sym.permutations, None, atoms,
-                                       atom_off[atoms] + shell_off, dmats[l]))
+                comps.append(
+                    Component(
+                        f"l={l}",
+                        sym.permutations,
+                        None,
+                        atoms,
+                        atom_off[atoms] + shell_off,
+                        dmats[l],
+                    )
+                )
                 shell_off += 2 * l + 1
         return comps
     raise BasisError(f"basis: unknown kind {basis.kind!r}")
@@ -389,7 +414,9 @@ def _matrix_from_components(comps, k, n):
 def _check_op(sym, op_index):
     k = int(op_index)
     if not 0 <= k < sym.order:
-        raise InputError(f"op_index: expected an integer in 0..{sym.order - 1}, received {op_index!r}")
+        raise InputError(
+            f"op_index: expected an integer in 0..{sym.order - 1}, received {op_index!r}"
+        )
     return k
 
 
@@ -449,7 +476,9 @@ def characters(sym: SymmetryData, basis) -> np.ndarray:
 def _irrep_index(g: GroupData, irrep) -> int:
     if isinstance(irrep, str):
         if irrep not in g.labels:
-            raise InputError(f"irrep: {irrep!r} is not an irrep of this group ({', '.join(g.labels)})")
+            raise InputError(
+                f"irrep: {irrep!r} is not an irrep of this group ({', '.join(g.labels)})"
+            )
         return g.labels.index(irrep)
     i = int(irrep)
     if not 0 <= i < len(g.labels):
@@ -620,7 +649,9 @@ def save_npz(path, x, labels) -> None:
     x = sp.csr_matrix(x)
     labels = list(labels)
     if len(labels) != x.shape[0]:
-        raise InputError(f"labels: expected {x.shape[0]} entries (one per row), received {len(labels)}")
+        raise InputError(
+            f"labels: expected {x.shape[0]} entries (one per row), received {len(labels)}"
+        )
     irr = np.array([str(lab[0]) for lab in labels], dtype=np.str_)
     copy = np.array([int(lab[1]) for lab in labels], dtype=np.int64)
     part = np.array([int(lab[2]) for lab in labels], dtype=np.int64)
@@ -647,6 +678,7 @@ def load_npz(path):
     """
     with np.load(path, allow_pickle=False) as f:
         x = sp.csr_matrix((f["data"], f["indices"], f["indptr"]), shape=tuple(f["shape"]))
-        labels = list(zip(f["label_irrep"].tolist(), f["label_copy"].tolist(),
-                          f["label_partner"].tolist()))
+        labels = list(
+            zip(f["label_irrep"].tolist(), f["label_copy"].tolist(), f["label_partner"].tolist())
+        )
     return x, labels

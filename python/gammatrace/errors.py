@@ -9,17 +9,17 @@ handlers keep working. The Rust core's ``Error`` variants map onto exactly one c
 from __future__ import annotations
 
 __all__ = [
-    "GammatraceError",
-    "InputError",
-    "StructureError",
-    "ReadError",
-    "ToleranceError",
-    "SymmetryError",
-    "ReductionError",
-    "TableError",
     "BasisError",
+    "GammatraceError",
     "GammatraceWarning",
+    "InputError",
+    "ReadError",
+    "ReductionError",
+    "StructureError",
     "SymmetryBreakingWarning",
+    "SymmetryError",
+    "TableError",
+    "ToleranceError",
 ]
 
 

@@ -80,8 +80,9 @@ def _check_hessian(sym: SymmetryData, hessian) -> np.ndarray:
     n3 = 3 * sym.n_atoms
     arr = np.asarray(hessian, dtype=np.float64)
     if arr.shape != (n3, n3):
-        raise InputError(f"hessian: expected shape ({n3}, {n3}) for {sym.n_atoms} atoms, "
-                         f"received {arr.shape}")
+        raise InputError(
+            f"hessian: expected shape ({n3}, {n3}) for {sym.n_atoms} atoms, received {arr.shape}"
+        )
     if not np.all(np.isfinite(arr)):
         raise InputError("hessian: contains NaN or infinite entries")
     scale = max(np.abs(arr).max(), 1e-300)
@@ -100,8 +101,10 @@ def _check_masses(sym: SymmetryData, masses) -> np.ndarray:
     bad = np.abs(arr[sym.permutations] - arr[None, :]) > 1e-9 * arr.max()
     if np.any(bad):
         k, i = np.argwhere(bad)[0]
-        raise SymmetryError(f"masses: operation {k} maps atom {i} onto atom "
-                            f"{sym.permutations[k, i]} of a different mass")
+        raise SymmetryError(
+            f"masses: operation {k} maps atom {i} onto atom "
+            f"{sym.permutations[k, i]} of a different mass"
+        )
     return arr
 
 
@@ -174,14 +177,20 @@ class HessianBlocks:
 
     def all_eigenvalues(self) -> np.ndarray:
         """Every eigenvalue with its degeneracy, sorted (comparable with a full diagonalisation)."""
-        vals = [np.repeat(v, m.shape[1]) for v, m in zip(self.eigenvalues.values(),
-                                                          self.modes.values())]
+        vals = [
+            np.repeat(v, m.shape[1]) for v, m in zip(self.eigenvalues.values(), self.modes.values())
+        ]
         return np.sort(np.concatenate(vals)) if vals else np.zeros(0)
 
 
-def block_diagonalize(sym: SymmetryData, hessian, masses=None, mass_weighted: bool = False,
-                      unit: str = "mdyn/angstrom", symmetry_tolerance: float = 1e-6
-                      ) -> HessianBlocks:
+def block_diagonalize(
+    sym: SymmetryData,
+    hessian,
+    masses=None,
+    mass_weighted: bool = False,
+    unit: str = "mdyn/angstrom",
+    symmetry_tolerance: float = 1e-6,
+) -> HessianBlocks:
     """Diagonalise a Cartesian Hessian irrep by irrep.
 
     Parameters
@@ -224,8 +233,9 @@ def block_diagonalize(sym: SymmetryData, hessian, masses=None, mass_weighted: bo
         modes[lab] = np.asarray((xi.T @ v).T).reshape(-1, d, h.shape[0])
         if masses is not None or mass_weighted:
             freqs[lab] = frequencies_from_eigenvalues(evals[lab], unit)
-    return HessianBlocks(evals, freqs if (masses is not None or mass_weighted) else None, modes,
-                         split, eps)
+    return HessianBlocks(
+        evals, freqs if (masses is not None or mass_weighted) else None, modes, split, eps
+    )
 
 
 @dataclass(frozen=True)
@@ -332,10 +342,17 @@ def _group_values(values, tol):
     return groups
 
 
-def label_modes(sym: SymmetryData, hessian=None, masses=None, modes=None,
-                mass_weighted: bool = False, frequencies=None, unit: str = "mdyn/angstrom",
-                symmetry_tolerance: float = 1e-6, degeneracy_tolerance: float | None = None
-                ) -> ModeLabels:
+def label_modes(
+    sym: SymmetryData,
+    hessian=None,
+    masses=None,
+    modes=None,
+    mass_weighted: bool = False,
+    frequencies=None,
+    unit: str = "mdyn/angstrom",
+    symmetry_tolerance: float = 1e-6,
+    degeneracy_tolerance: float | None = None,
+) -> ModeLabels:
     """Label normal modes by irrep, group degenerate sets and report purities.
 
     Give either a Cartesian ``hessian`` (diagonalised here) or ``modes`` (rows).
@@ -397,8 +414,10 @@ def label_modes(sym: SymmetryData, hessian=None, masses=None, modes=None,
         if vectors.ndim == 1:
             vectors = vectors[None, :]
         if vectors.ndim != 2 or vectors.shape[1] != n3:
-            raise InputError(f"modes: expected shape (n_modes, {n3}) for {sym.n_atoms} atoms, "
-                             f"received {np.shape(modes)}")
+            raise InputError(
+                f"modes: expected shape (n_modes, {n3}) for {sym.n_atoms} atoms, "
+                f"received {np.shape(modes)}"
+            )
         if not np.all(np.isfinite(vectors)):
             raise InputError("modes: contains NaN or infinite entries")
         norms = np.linalg.norm(vectors, axis=1)
@@ -408,8 +427,9 @@ def label_modes(sym: SymmetryData, hessian=None, masses=None, modes=None,
         if frequencies is not None:
             freqs = np.asarray(frequencies, dtype=np.float64)
             if freqs.shape != (vectors.shape[0],):
-                raise InputError(f"frequencies: expected shape ({vectors.shape[0]},), "
-                                 f"received {freqs.shape}")
+                raise InputError(
+                    f"frequencies: expected shape ({vectors.shape[0]},), received {freqs.shape}"
+                )
             values = freqs
             tol = 0.5 if degeneracy_tolerance is None else degeneracy_tolerance
         weighted = mass_weighted
@@ -436,7 +456,7 @@ def label_modes(sym: SymmetryData, hessian=None, masses=None, modes=None,
             if rows.any():
                 grams[i] = c[rows].T @ c[rows]
         traces = {i: float(np.trace(m)) for i, m in grams.items()}
-        want = {i: int(round(t / dims[i])) * int(dims[i]) for i, t in traces.items()}
+        want = {i: round(t / dims[i]) * int(dims[i]) for i, t in traces.items()}
         remaining = np.eye(grp.size)
         assigned = []
         if sum(want.values()) == grp.size:
@@ -454,20 +474,27 @@ def label_modes(sym: SymmetryData, hessian=None, masses=None, modes=None,
                 e[col] = 1.0
                 assigned.append((i, e, np.array([grams[i][col, col]])))
         pos = 0
+        assigned.sort(key=lambda item: item[0])  # irreps in table order within a set
         for i, rot, pur in assigned:
             k = rot.shape[1]
-            idx = grp[pos:pos + k]
+            idx = grp[pos : pos + k]
             out_vectors[idx] = rot.T @ vectors[grp]
             d = int(dims[i])
             for start in range(0, k, d):
-                members = idx[start:start + d]
+                members = idx[start : start + d]
                 for j, m in enumerate(members):
                     labels[m] = sab.irreps[i]
                     purity[m] = pur[start + j]
                     set_of[m] = len(sets)
                 val = None if values is None else float(np.mean(values[grp]))
-                sets.append(ModeSet(sab.irreps[i], tuple(int(m) for m in members), val,
-                                    float(pur[start:start + d].min())))
+                sets.append(
+                    ModeSet(
+                        sab.irreps[i],
+                        tuple(int(m) for m in members),
+                        val,
+                        float(pur[start : start + d].min()),
+                    )
+                )
             pos += k
     if values is None:
         sets, set_of = _group_runs(labels, purity, dims, sab.irreps)
@@ -483,12 +510,14 @@ def _group_runs(labels, purity, dims, irreps):
     while k < len(labels):
         d = int(dims[irreps.index(labels[k])])
         members = [k]
-        while len(members) < d and k + len(members) < len(labels) and \
-                labels[k + len(members)] == labels[k]:
+        while (
+            len(members) < d
+            and k + len(members) < len(labels)
+            and labels[k + len(members)] == labels[k]
+        ):
             members.append(k + len(members))
         for m in members:
             set_of[m] = len(sets)
         sets.append(ModeSet(labels[k], tuple(members), None, float(purity[members].min())))
         k += len(members)
     return sets, set_of
-
