@@ -1,0 +1,90 @@
+"""Plain records shared by the table builders: classes, irreps and a table's raw content."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import NamedTuple
+
+import numpy as np
+
+__all__ = ["GOLDEN_MINUS", "GOLDEN_PLUS", "ClassInfo", "Irrep", "TableSpec", "snap"]
+
+
+class ClassInfo(NamedTuple):
+    """One class of a character table, as the table heads it.
+
+    Attributes
+    ----------
+    label : str
+        Printed label with its size prefix, e.g. ``"2C3"``, ``"3σv"``, ``"12C5^2"``.
+    size : int
+        Number of operations in the class.
+    proper : bool
+        True when the operations are rotations C(angle), False for σh·C(angle).
+    angle : float
+        θ in degrees, in [0, 180] (DEVELOPERS.md, "Operations").
+    """
+
+    label: str
+    size: int
+    proper: bool
+    angle: float
+
+
+class Irrep(NamedTuple):
+    """One irreducible representation (real form).
+
+    Attributes
+    ----------
+    label : str
+        Mulliken symbol in the ASCII spelling of INTERFACE.md (``A1g``, ``E'``, ``Σg+``).
+    dim : int
+        Dimension (a complex-conjugate pair combined into one real irrep has dim 2).
+    characters : tuple of float
+        One character per class, in the order of ``CharacterTable.classes``.
+    functions : tuple of str
+        Linear, rotational and quadratic functions transforming as this irrep.
+    """
+
+    label: str
+    dim: int
+    characters: tuple[float, ...]
+    functions: tuple[str, ...]
+
+
+@dataclass
+class TableSpec:
+    """The raw content of a table as a builder produces it (before functions are matched).
+
+    ``op_class`` holds the class index (print order) of each operation in ``ops``;
+    ``characters`` is (n_irreps, n_classes) in print order; ``h`` is the number of
+    operations (of the finite subgroup for linear groups); ``max_den`` bounds the
+    denominators used when naming rotation angles.
+    """
+
+    name: str
+    ops: np.ndarray
+    op_class: np.ndarray
+    classes: tuple[ClassInfo, ...]
+    irrep_labels: tuple[str, ...]
+    characters: np.ndarray
+    order: int | None
+    is_linear: bool = False
+
+
+# Surds that printed tables write exactly; characters are snapped to them so that,
+# e.g., 2cos72° is bit-identical to −(1 − √5)/2 computed once.
+GOLDEN_PLUS = (1.0 + np.sqrt(5.0)) / 2.0
+GOLDEN_MINUS = (1.0 - np.sqrt(5.0)) / 2.0
+_EXACT = np.array([GOLDEN_PLUS, GOLDEN_MINUS, np.sqrt(2.0), np.sqrt(3.0)])
+
+
+def snap(values: np.ndarray, tol: float = 1e-9) -> np.ndarray:
+    """Round characters that are within ``tol`` of an integer or a printed surd onto it."""
+    v = np.array(values, dtype=np.float64)
+    r = np.round(v)
+    v = np.where(np.abs(v - r) < tol, r, v)
+    for x in np.concatenate([_EXACT, -_EXACT]):
+        v = np.where(np.abs(v - x) < tol, x, v)
+    v[v == 0.0] = 0.0  # no negative zeros
+    return v

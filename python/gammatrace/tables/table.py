@@ -1,0 +1,344 @@
+"""The CharacterTable class: classes, irreps, canonical operations and the reduction formula.
+
+Tables are in real form: a complex-conjugate pair of one-dimensional irreps (Cn, Cnh, S2n
+with n ≥ 3, T, Th) is one real irrep E of dimension 2, and the classes are *real classes*
+(a class merged with its inverse class, e.g. ``2C3`` of C3 holds C3 and C3²), as printed
+tables with the pair combined show them. For such an irrep the norm
+κ = (1/h) Σ_c g_c χ(c)² is 2 instead of 1, and the reduction formula divides by it:
+
+    n_i = (1/h) Σ_c g_c χ(c) χ_i(c) / κ_i,
+
+which equals the complex formula n_i = (1/h) Σ g χ χ_i* for each member of the pair
+(a real representation holds both members equally often). Likewise Σ_i dim_i² / κ_i = h.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import ReductionError, SymmetryError
+from ._ops import lookup, nearest
+from ._types import ClassInfo, Irrep, TableSpec
+from .functions import match_functions
+
+__all__ = ["CharacterTable"]
+
+_INTEGER_TOL = 1e-6
+
+
+def _fmt_number(x: float) -> str:
+    r = round(x)
+    if abs(x - r) < 1e-9:
+        return str(int(r))
+    return f"{x:.3f}"
+
+
+class CharacterTable:
+    """Character table of one point group, with canonical operations in the standard frame.
+
+    Build tables with :func:`gammatrace.tables.get_table`, not directly.
+
+    Attributes
+    ----------
+    name : str
+        Schoenflies name (``"D6h"``, ``"C∞v"``).
+    order : int or None
+        Number of operations; None for the linear groups.
+    is_linear : bool
+    classes : list of ClassInfo
+        In print order.
+    irreps : list of Irrep
+        In print order.
+    character_matrix : numpy.ndarray, shape (n_irreps, n_classes)
+    class_sizes : numpy.ndarray of int, shape (n_classes,)
+    operations : numpy.ndarray, shape (h, 3, 3)
+        Canonical operations (for linear groups: of the finite subgroup).
+    operation_class : numpy.ndarray of int, shape (h,)
+        Class index of each canonical operation.
+    """
+
+    def __init__(self, spec: TableSpec):
+        self.name: str = spec.name
+        self.order: int | None = spec.order
+        self.is_linear: bool = spec.is_linear
+        self.classes: list[ClassInfo] = list(spec.classes)
+        chars = np.array(spec.characters, dtype=np.float64)
+        self.character_matrix = chars
+        self.class_sizes = np.array([c.size for c in self.classes], dtype=np.int64)
+        self.operations = np.array(spec.ops, dtype=np.float64)
+        self.operation_class = np.array(spec.op_class, dtype=np.int64)
+        for arr in (self.character_matrix, self.class_sizes, self.operations, self.operation_class):
+            arr.setflags(write=False)
+        self._h = len(self.operations)
+        norms = (chars**2 * self.class_sizes).sum(axis=1) / self._h
+        self._kappa = np.round(norms)
+        if np.abs(norms - self._kappa).max() > 1e-9 or not set(self._kappa) <= {1.0, 2.0}:
+            raise RuntimeError(f"internal: {self.name} rows have norms {norms}")
+        functions = match_functions(
+            self.operations, self.operation_class, chars, self.class_sizes, self._kappa
+        )
+        self.irreps: list[Irrep] = [
+            Irrep(label, round(row[0]), tuple(row.tolist()), funcs)
+            for label, row, funcs in zip(spec.irrep_labels, chars, functions)
+        ]
+        self._labels = [ir.label for ir in self.irreps]
+        reps = np.unique(self.operation_class, return_index=True)[1]
+        self._rep_ops = self.operations[reps]
+        squares = self._rep_ops @ self._rep_ops
+        self._square_class = self.operation_class[lookup(self.operations, squares)]
+
+    # -- basic properties ------------------------------------------------------------
+
+    def __repr__(self) -> str:
+        return f"CharacterTable({self.name!r}, {len(self.classes)} classes)"
+
+    @property
+    def norms(self) -> np.ndarray:
+        """κ_i = (1/h) Σ g_c χ_i(c)²: 1 for real irreps, 2 for combined complex pairs."""
+        return self._kappa.copy()
+
+    @property
+    def labels(self) -> list[str]:
+        """Irrep labels in table order."""
+        return list(self._labels)
+
+    @property
+    def vector_characters(self) -> np.ndarray:
+        """Characters of Γ(x, y, z) per class: 1 + 2cosθ (proper), −1 + 2cosθ (improper)."""
+        return np.trace(self._rep_ops, axis1=1, axis2=2)
+
+    @property
+    def rotation_characters(self) -> np.ndarray:
+        """Characters of Γ(Rx, Ry, Rz) per class: det R times the vector character."""
+        return np.linalg.det(self._rep_ops) * self.vector_characters
+
+    @property
+    def ir_active_irreps(self) -> set:
+        """Labels of the irreps transforming as x, y or z."""
+        return set(self.reduce(self.vector_characters, what="Γ(x,y,z)"))
+
+    @property
+    def raman_active_irreps(self) -> set:
+        """Labels of the irreps transforming as a quadratic function (x2, xy, …)."""
+        v = self.vector_characters
+        quad = (v**2 + v[self._square_class]) / 2.0
+        return set(self.reduce(quad, what="Γ(quadratic functions)"))
+
+    def index(self, label: str) -> int:
+        """Row index of the irrep ``label``.
+
+        Raises
+        ------
+        KeyError
+            If the table has no such irrep (the message lists the labels).
+        """
+        try:
+            return self._labels.index(label)
+        except ValueError:
+            raise KeyError(
+                f"{self.name} has no irrep {label!r}; its irreps are {', '.join(self._labels)}"
+            ) from None
+
+    # -- classes of detected operations ----------------------------------------------
+
+    def assign_classes(self, ops_std, tol: float = 0.1) -> np.ndarray:
+        """Class index of each operation, by nearest canonical matrix.
+
+        Parameters
+        ----------
+        ops_std : array_like, shape (k, 3, 3)
+            Operations already rotated into the standard frame.
+        tol : float
+            Largest Frobenius distance accepted between an operation and its nearest
+            canonical operation.
+
+        Returns
+        -------
+        numpy.ndarray of int, shape (k,)
+
+        Raises
+        ------
+        ValueError
+            If ``ops_std`` is not of shape (k, 3, 3).
+        SymmetryError
+            If an operation is farther than ``tol`` from every canonical operation.
+        """
+        ops = np.ascontiguousarray(ops_std, dtype=np.float64)
+        if ops.ndim != 3 or ops.shape[1:] != (3, 3):
+            raise ValueError(f"ops_std must have shape (k, 3, 3), got {ops.shape}")
+        if len(ops) == 0:
+            return np.zeros(0, dtype=np.int64)
+        index, distance = nearest(self.operations, ops)
+        bad = np.flatnonzero(distance > tol)
+        if len(bad):
+            j = int(bad[np.argmax(distance[bad])])
+            label = self.classes[self.operation_class[index[j]]].label
+            raise SymmetryError(
+                f"operation {j} is {distance[j]:.3g} (Frobenius norm) from every canonical "
+                f"operation of {self.name} (nearest: one of {label}; limit {tol}); "
+                f"{len(bad)} of {len(ops)} operations are that far"
+            )
+        return self.operation_class[index]
+
+    # -- reduction ---------------------------------------------------------------------
+
+    def _raw_multiplicities(self, chars: np.ndarray) -> np.ndarray:
+        return chars @ (self.character_matrix * self.class_sizes).T / (self._h * self._kappa)
+
+    def _check_chars(self, chars, ndim: int) -> np.ndarray:
+        arr = np.asarray(chars, dtype=np.float64)
+        n_cls = len(self.classes)
+        if arr.ndim != ndim or arr.shape[-1] != n_cls:
+            want = "(n_classes,)" if ndim == 1 else "(k, n_classes)"
+            raise ValueError(
+                f"characters for {self.name} must have shape {want} with n_classes = {n_cls}, "
+                f"got shape {arr.shape}"
+            )
+        if not np.isfinite(arr).all():
+            raise ValueError(f"characters for {self.name} contain NaN or infinity: {arr}")
+        return arr
+
+    def _residual_message(self, what: str, chars, raw) -> str:
+        cols = ", ".join(f"{c.label}: {_fmt_number(x)}" for c, x in zip(self.classes, chars))
+        parts = ", ".join(
+            f"{lab} {v:.6g} (residual {abs(v - round(v)):.2g})" for lab, v in zip(self._labels, raw)
+        )
+        return (
+            f"{what} does not reduce to non-negative integer multiplicities in {self.name}: "
+            f"characters [{cols}] give {parts}"
+        )
+
+    def reduce(self, chars_per_class, what: str = "representation") -> dict[str, int]:
+        """Reduce a representation into irreps with the reduction formula.
+
+        Parameters
+        ----------
+        chars_per_class : array_like, shape (n_classes,)
+            Characters in the order of :attr:`classes`.
+        what : str
+            Name of the representation, used in error messages.
+
+        Returns
+        -------
+        dict of str to int
+            Nonzero multiplicities, keys in table order.
+
+        Raises
+        ------
+        ValueError
+            Wrong shape or non-finite characters.
+        ReductionError
+            A multiplicity is farther than 1e-6 from an integer, or negative; the message
+            shows the characters and every multiplicity with its residual.
+
+        Examples
+        --------
+        >>> from gammatrace.tables import get_table
+        >>> get_table("C3v").reduce([12, 0, 2])
+        {'A1': 3, 'A2': 1, 'E': 4}
+        """
+        chars = self._check_chars(chars_per_class, 1)
+        raw = self._raw_multiplicities(chars)
+        n = np.round(raw)
+        if np.abs(raw - n).max() > _INTEGER_TOL or (n < 0).any():
+            raise ReductionError(self._residual_message(what, chars, raw))
+        return {lab: int(v) for lab, v in zip(self._labels, n) if v != 0}
+
+    def reduce_many(self, chars) -> np.ndarray:
+        """Reduce many representations at once.
+
+        Parameters
+        ----------
+        chars : array_like, shape (k, n_classes)
+
+        Returns
+        -------
+        numpy.ndarray of int, shape (k, n_irreps)
+
+        Raises
+        ------
+        ReductionError
+            For the first row that does not reduce (the message names the row).
+        """
+        arr = self._check_chars(chars, 2)
+        raw = self._raw_multiplicities(arr)
+        n = np.round(raw)
+        bad = np.flatnonzero((np.abs(raw - n).max(axis=1) > _INTEGER_TOL) | (n < 0).any(axis=1))
+        if len(bad):
+            row = int(bad[0])
+            msg = self._residual_message(f"row {row}", arr[row], raw[row])
+            raise ReductionError(f"{msg} ({len(bad)} of {len(arr)} rows fail)")
+        return n.astype(np.int64)
+
+    # -- products ----------------------------------------------------------------------
+
+    def direct_product(self, *labels: str) -> np.ndarray:
+        """Characters of the direct product of the named irreps (per class)."""
+        if not labels:
+            raise ValueError("direct_product needs at least one irrep label")
+        out = np.ones(len(self.classes))
+        for lab in labels:
+            out = out * self.character_matrix[self.index(lab)]
+        return out
+
+    def decompose_product(self, *labels: str) -> dict[str, int]:
+        """Irreps in the direct product of the named irreps, e.g. E ⊗ E = A1 + A2 + E."""
+        return self.reduce(self.direct_product(*labels), what=" x ".join(labels))
+
+    def _square_chars(self, label: str, sign: float) -> np.ndarray:
+        chi = self.character_matrix[self.index(label)]
+        return (chi**2 + sign * chi[self._square_class]) / 2.0
+
+    def symmetric_square(self, label: str) -> dict[str, int]:
+        """Irreps in the symmetric square [Γ²]: χ(R) = (χ(R)² + χ(R²)) / 2."""
+        return self.reduce(self._square_chars(label, 1.0), what=f"[{label}]^2")
+
+    def antisymmetric_square(self, label: str) -> dict[str, int]:
+        """Irreps in the antisymmetric square {Γ²}: χ(R) = (χ(R)² − χ(R²)) / 2."""
+        return self.reduce(self._square_chars(label, -1.0), what=f"{{{label}}}^2")
+
+    # -- output ------------------------------------------------------------------------
+
+    def to_dict(self) -> dict:
+        """The table as the INTERFACE.md ``table`` JSON object."""
+
+        def num(x):
+            r = round(x)
+            return int(r) if abs(x - r) < 1e-12 else float(x)
+
+        return {
+            "group": self.name,
+            "order": self.order,
+            "classes": [
+                {"label": c.label, "size": c.size, "proper": c.proper, "angle": c.angle}
+                for c in self.classes
+            ],
+            "irreps": [
+                {
+                    "label": ir.label,
+                    "dim": ir.dim,
+                    "characters": [num(x) for x in ir.characters],
+                    "functions": list(ir.functions),
+                }
+                for ir in self.irreps
+            ],
+        }
+
+    def to_text(self) -> str:
+        """A readable, aligned text table (irrational characters to three decimals)."""
+        head = [self.name] + [c.label for c in self.classes] + ["functions"]
+        rows = [
+            [ir.label] + [_fmt_number(x) for x in ir.characters] + ["; ".join(ir.functions)]
+            for ir in self.irreps
+        ]
+        widths = [max(len(r[j]) for r in [head] + rows) for j in range(len(head) - 1)]
+        lines = []
+        for r in [head] + rows:
+            cells = [r[0].ljust(widths[0])] + [r[j].rjust(widths[j]) for j in range(1, len(widths))]
+            lines.append("  ".join(cells + [r[-1]]).rstrip())
+        lines.insert(1, "-" * len(lines[0]))
+        if self.is_linear:
+            lines.append(
+                f"(classes of the finite subgroup with {self._h} operations; |m| <= 6 resolved)"
+            )
+        return "\n".join(lines)

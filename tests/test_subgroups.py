@@ -1,0 +1,407 @@
+"""Tests of gammatrace.tables.subgroups: enumeration, identification, frames, correlation."""
+
+import doctest
+import importlib
+
+import numpy as np
+import pytest
+from gammatrace.errors import TableError
+from gammatrace.tables import get_table
+from gammatrace.tables._ops import lookup, nearest
+from gammatrace.tables.subgroups import SubgroupEmbedding, correlate, identify_group, subgroups
+
+COTTON_CORR = "F. A. Cotton, Chemical Applications of Group Theory, 3rd ed., correlation tables"
+WDC = "E. B. Wilson, J. C. Decius, P. C. Cross, Molecular Vibrations, Appendix X"
+
+
+def _u(d):
+    """Same correlation with g -> u on both sides (for centrosymmetric pairs)."""
+    return {k[:-1] + "u": {kk[:-1] + "u": v for kk, v in sub.items()} for k, sub in d.items()}
+
+
+# Published correlations; the first embedding (which keeps the parent's z and x axes, as
+# printed tables orient the subgroup) must match, unless noted.
+PUBLISHED = [
+    # Source: Cotton, correlation table for Td  # from memory
+    (
+        "Td",
+        "C3v",
+        {
+            "A1": {"A1": 1},
+            "A2": {"A2": 1},
+            "E": {"E": 1},
+            "T1": {"A2": 1, "E": 1},
+            "T2": {"A1": 1, "E": 1},
+        },
+    ),
+    # Source: Cotton, correlation table for Td  # from memory
+    (
+        "Td",
+        "C2v",
+        {
+            "A1": {"A1": 1},
+            "A2": {"A2": 1},
+            "E": {"A1": 1, "A2": 1},
+            "T1": {"A2": 1, "B1": 1, "B2": 1},
+            "T2": {"A1": 1, "B1": 1, "B2": 1},
+        },
+    ),
+    # Source: Cotton, correlation table for Td  # from memory
+    (
+        "Td",
+        "D2d",
+        {
+            "A1": {"A1": 1},
+            "A2": {"B1": 1},
+            "E": {"A1": 1, "B1": 1},
+            "T1": {"A2": 1, "E": 1},
+            "T2": {"B2": 1, "E": 1},
+        },
+    ),
+    # Source: Cotton, correlation table for Oh (C2' of D4h along the C4 axes)  # from memory
+    (
+        "Oh",
+        "D4h",
+        {
+            "A1g": {"A1g": 1},
+            "A2g": {"B1g": 1},
+            "Eg": {"A1g": 1, "B1g": 1},
+            "T1g": {"A2g": 1, "Eg": 1},
+            "T2g": {"B2g": 1, "Eg": 1},
+            **_u(
+                {
+                    "A1g": {"A1g": 1},
+                    "A2g": {"B1g": 1},
+                    "Eg": {"A1g": 1, "B1g": 1},
+                    "T1g": {"A2g": 1, "Eg": 1},
+                    "T2g": {"B2g": 1, "Eg": 1},
+                }
+            ),
+        },
+    ),
+    # Source: Cotton, correlation table for Oh  # from memory
+    (
+        "Oh",
+        "D3d",
+        {
+            "A1g": {"A1g": 1},
+            "A2g": {"A2g": 1},
+            "Eg": {"Eg": 1},
+            "T1g": {"A2g": 1, "Eg": 1},
+            "T2g": {"A1g": 1, "Eg": 1},
+            **_u(
+                {
+                    "A1g": {"A1g": 1},
+                    "A2g": {"A2g": 1},
+                    "Eg": {"Eg": 1},
+                    "T1g": {"A2g": 1, "Eg": 1},
+                    "T2g": {"A1g": 1, "Eg": 1},
+                }
+            ),
+        },
+    ),
+    # Source: Cotton, correlation table for Oh (σv of C4v = σh of Oh)  # from memory
+    (
+        "Oh",
+        "C4v",
+        {
+            "A1g": {"A1": 1},
+            "A2g": {"B1": 1},
+            "Eg": {"A1": 1, "B1": 1},
+            "T1g": {"A2": 1, "E": 1},
+            "T2g": {"B2": 1, "E": 1},
+            "A1u": {"A2": 1},
+            "A2u": {"B2": 1},
+            "Eu": {"A2": 1, "B2": 1},
+            "T1u": {"A1": 1, "E": 1},
+            "T2u": {"B1": 1, "E": 1},
+        },
+    ),
+    # Source: Cotton, correlation table for D6h (σv of C6v = σv of D6h)  # from memory
+    (
+        "D6h",
+        "C6v",
+        {
+            "A1g": {"A1": 1},
+            "A2g": {"A2": 1},
+            "B1g": {"B2": 1},
+            "B2g": {"B1": 1},
+            "E1g": {"E1": 1},
+            "E2g": {"E2": 1},
+            "A1u": {"A2": 1},
+            "A2u": {"A1": 1},
+            "B1u": {"B1": 1},
+            "B2u": {"B2": 1},
+            "E1u": {"E1": 1},
+            "E2u": {"E2": 1},
+        },
+    ),
+    # Source: Wilson, Decius & Cross, Appendix X, Ih  # from memory
+    (
+        "Ih",
+        "D5d",
+        {
+            "Ag": {"A1g": 1},
+            "T1g": {"A2g": 1, "E1g": 1},
+            "T2g": {"A2g": 1, "E2g": 1},
+            "Gg": {"E1g": 1, "E2g": 1},
+            "Hg": {"A1g": 1, "E1g": 1, "E2g": 1},
+            **_u(
+                {
+                    "Ag": {"A1g": 1},
+                    "T1g": {"A2g": 1, "E1g": 1},
+                    "T2g": {"A2g": 1, "E2g": 1},
+                    "Gg": {"E1g": 1, "E2g": 1},
+                    "Hg": {"A1g": 1, "E1g": 1, "E2g": 1},
+                }
+            ),
+        },
+    ),
+    # Source: Wilson, Decius & Cross, Appendix X, Ih  # from memory
+    (
+        "Ih",
+        "D3d",
+        {
+            "Ag": {"A1g": 1},
+            "T1g": {"A2g": 1, "Eg": 1},
+            "T2g": {"A2g": 1, "Eg": 1},
+            "Gg": {"A1g": 1, "A2g": 1, "Eg": 1},
+            "Hg": {"A1g": 1, "Eg": 2},
+            **_u(
+                {
+                    "Ag": {"A1g": 1},
+                    "T1g": {"A2g": 1, "Eg": 1},
+                    "T2g": {"A2g": 1, "Eg": 1},
+                    "Gg": {"A1g": 1, "A2g": 1, "Eg": 1},
+                    "Hg": {"A1g": 1, "Eg": 2},
+                }
+            ),
+        },
+    ),
+    # Source: Wilson, Decius & Cross, Appendix X, Ih  # from memory
+    (
+        "Ih",
+        "Th",
+        {
+            "Ag": {"Ag": 1},
+            "T1g": {"Tg": 1},
+            "T2g": {"Tg": 1},
+            "Gg": {"Ag": 1, "Tg": 1},
+            "Hg": {"Eg": 1, "Tg": 1},
+            **_u(
+                {
+                    "Ag": {"Ag": 1},
+                    "T1g": {"Tg": 1},
+                    "T2g": {"Tg": 1},
+                    "Gg": {"Ag": 1, "Tg": 1},
+                    "Hg": {"Eg": 1, "Tg": 1},
+                }
+            ),
+        },
+    ),
+    # Source: Cotton, correlation table for C∞v  # from memory
+    (
+        "C∞v",
+        "C2v",
+        {
+            "Σ+": {"A1": 1},
+            "Σ-": {"A2": 1},
+            "Π": {"B1": 1, "B2": 1},
+            "Δ": {"A1": 1, "A2": 1},
+            "Φ": {"B1": 1, "B2": 1},
+            "Γ": {"A1": 1, "A2": 1},
+            "H": {"B1": 1, "B2": 1},
+            "I": {"A1": 1, "A2": 1},
+        },
+    ),
+    # Source: Cotton, correlation table for D∞h (z of D2h along the molecular axis)
+    # from memory
+    (
+        "D∞h",
+        "D2h",
+        {
+            "Σg+": {"Ag": 1},
+            "Σg-": {"B1g": 1},
+            "Πg": {"B2g": 1, "B3g": 1},
+            "Δg": {"Ag": 1, "B1g": 1},
+            "Φg": {"B2g": 1, "B3g": 1},
+            "Γg": {"Ag": 1, "B1g": 1},
+            "Hg": {"B2g": 1, "B3g": 1},
+            "Ig": {"Ag": 1, "B1g": 1},
+            "Σu+": {"B1u": 1},
+            "Σu-": {"Au": 1},
+            "Πu": {"B2u": 1, "B3u": 1},
+            "Δu": {"Au": 1, "B1u": 1},
+            "Φu": {"B2u": 1, "B3u": 1},
+            "Γu": {"Au": 1, "B1u": 1},
+            "Hu": {"B2u": 1, "B3u": 1},
+            "Iu": {"Au": 1, "B1u": 1},
+        },
+    ),
+]
+
+
+@pytest.mark.parametrize("group, sub, expected", PUBLISHED, ids=lambda x: str(x)[:12])
+def test_published_correlations(group, sub, expected):
+    result = correlate(group, sub)
+    assert result["group"] == get_table(group).name and result["subgroup"] == sub
+    assert result["embeddings"][0]["correlation"] == expected
+    assert list(result["embeddings"][0]["correlation"]) == [
+        ir.label for ir in get_table(group).irreps
+    ]
+
+
+def test_d6h_to_d3h_has_both_embeddings():
+    # Source: Cotton, correlation table for D6h, columns D3h (C2' -> C2) and D3h (C2'' -> C2)
+    # from memory
+    c2p = {
+        "A1g": {"A1'": 1},
+        "A2g": {"A2'": 1},
+        "B1g": {"A1''": 1},
+        "B2g": {"A2''": 1},
+        "E1g": {"E''": 1},
+        "E2g": {"E'": 1},
+        "A1u": {"A1''": 1},
+        "A2u": {"A2''": 1},
+        "B1u": {"A1'": 1},
+        "B2u": {"A2'": 1},
+        "E1u": {"E'": 1},
+        "E2u": {"E''": 1},
+    }
+    c2pp = dict(c2p, B1g={"A2''": 1}, B2g={"A1''": 1}, B1u={"A2'": 1}, B2u={"A1'": 1})
+    result = correlate("D6h", "D3h")
+    corrs = [e["correlation"] for e in result["embeddings"]]
+    assert len(corrs) == 2
+    assert corrs[0] == c2p and corrs[1] == c2pp
+    assert "3C2 from 3C2'" in result["embeddings"][0]["description"]
+    assert "3C2 from 3C2''" in result["embeddings"][1]["description"]
+
+
+def test_d6h_to_d2h_lists_each_axis_choice():
+    # Derived by hand from the D6h and D2h characters of Cotton, Appendix IIA, with C2(x)
+    # of D2h along C2' of D6h  # from memory
+    expected = {
+        "A1g": {"Ag": 1},
+        "A2g": {"B1g": 1},
+        "B1g": {"B3g": 1},
+        "B2g": {"B2g": 1},
+        "E1g": {"B2g": 1, "B3g": 1},
+        "E2g": {"Ag": 1, "B1g": 1},
+        "A1u": {"Au": 1},
+        "A2u": {"B1u": 1},
+        "B1u": {"B3u": 1},
+        "B2u": {"B2u": 1},
+        "E1u": {"B2u": 1, "B3u": 1},
+        "E2u": {"Au": 1, "B1u": 1},
+    }
+    embeddings = correlate("D6h", "D2h")["embeddings"]
+    assert embeddings[0]["correlation"] == expected
+    corrs = [repr(e["correlation"]) for e in embeddings]
+    assert len(set(corrs)) == len(corrs) == 6  # which C2 is z, which is x: all distinct
+
+
+@pytest.mark.parametrize("group", ["D6h", "Oh", "Td", "C4v", "D3d", "S6", "C∞v"])
+def test_every_correlation_preserves_dimensions(group):
+    parent = get_table(group)
+    for name in sorted({s.name for s in subgroups(group)}):
+        sub = get_table(name)
+        dims = {ir.label: ir.dim for ir in sub.irreps}
+        for emb in correlate(group, name)["embeddings"]:
+            for label, parts in emb["correlation"].items():
+                want = parent.irreps[parent.index(label)].dim
+                assert sum(dims[k] * v for k, v in parts.items()) == want, (group, name, label)
+
+
+def test_not_a_subgroup_lists_the_subgroups():
+    with pytest.raises(TableError) as err:
+        correlate("Td", "C4v")
+    msg = str(err.value)
+    assert "not a subgroup of Td" in msg and "D2d" in msg and "C3v" in msg
+    with pytest.raises(TableError, match="not a subgroup of C∞v"):
+        correlate("C∞v", "D2h")
+
+
+@pytest.mark.parametrize(
+    "group, count",
+    [
+        # Numbers of conjugacy classes of subgroups: Td ≅ S4 has 11, Oh ≅ S4 × C2 has 33,
+        # Ih ≅ A5 × C2 has 22, C3v ≅ S3 has 4.  # from memory
+        ("Td", 11),
+        ("Oh", 33),
+        ("Ih", 22),
+        ("C3v", 4),
+    ],
+)
+def test_number_of_subgroup_classes(group, count):
+    assert len(subgroups(group)) == count
+
+
+@pytest.mark.parametrize("group", ["D6h", "Oh", "Td", "D4d", "S8", "C6h"])
+def test_subgroup_embeddings_are_groups_in_their_frames(group):
+    parent = get_table(group)
+    for emb in subgroups(group):
+        assert isinstance(emb, SubgroupEmbedding)
+        ops = parent.operations[emb.op_indices]
+        np.testing.assert_allclose(ops, emb.operations)
+        products = np.einsum("aij,bjk->abik", ops, ops).reshape(-1, 3, 3)
+        lookup(ops, products, tol=1e-9)  # closed: raises otherwise
+        f = emb.rotation
+        np.testing.assert_allclose(f @ f.T, np.eye(3), atol=1e-12)
+        assert np.linalg.det(f) > 0
+        canon = get_table(emb.name).operations
+        _, dist = nearest(canon, f @ ops @ f.T)
+        assert dist.max() < 1e-9 and len(canon) == len(ops)
+        assert emb.name in emb.description
+
+
+@pytest.mark.parametrize(
+    "name",
+    [
+        "C1",
+        "Cs",
+        "Ci",
+        "C2",
+        "C5",
+        "C2v",
+        "C4v",
+        "C3h",
+        "C4h",
+        "S4",
+        "S6",
+        "S8",
+        "D2",
+        "D3",
+        "D2h",
+        "D4h",
+        "D2d",
+        "D3d",
+        "D5d",
+        "T",
+        "Td",
+        "Th",
+        "O",
+        "Oh",
+        "I",
+        "Ih",
+    ],
+)
+def test_identify_group_names_canonical_sets(name):
+    t = get_table(name)
+    assert identify_group(t.operations) == name
+    rng = np.random.default_rng(1)
+    q, _ = np.linalg.qr(rng.normal(size=(3, 3)))
+    q *= np.sign(np.linalg.det(q))
+    assert identify_group(q @ t.operations @ q.T) == name  # any orientation
+
+
+def test_linear_subgroups_have_no_indices():
+    subs = subgroups("C∞v")
+    assert all(s.op_indices is None for s in subs)
+    assert {"C2v", "C3v", "Cs", "C1"} <= {s.name for s in subs}
+
+
+def test_docstring_examples():
+    # The package exports the function subgroups, which shadows the module's name.
+    module = importlib.import_module("gammatrace.tables.subgroups")
+    result = doctest.testmod(module)
+    assert result.failed == 0 and result.attempted > 0
