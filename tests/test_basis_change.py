@@ -360,3 +360,59 @@ def test_bad_symmetry_data_raises_input_error():
         )
     with pytest.raises(InputError, match="op_index"):
         representation_matrix(sym, 99, "cartesian")
+
+
+# --- with the project's own character tables (gammatrace.tables) ---------------------------
+
+PROJECT_GROUPS = [
+    "C1",
+    "Cs",
+    "Ci",
+    "C2",
+    "C2v",
+    "C2h",
+    "D2",
+    "D2h",
+    "C3",
+    "C3h",
+    "D3d",
+    "S4",
+    "S6",
+    "D2d",
+    "C4v",
+    "C5",
+    "C5v",
+    "D5h",
+    "C6h",
+    "C7",
+    "D7d",
+    "S8",
+    "D8h",
+    "T",
+    "Th",
+    "O",
+    "I",
+    "C∞v",
+    "D∞h",
+]
+
+
+@pytest.mark.parametrize("group", PROJECT_GROUPS)
+def test_project_tables_give_block_diagonal_cartesian_bases(group):
+    from gammatrace.tables import get_table
+
+    table = get_table(group)
+    linear = group in ("C∞v", "D∞h")
+    # a generic orbit, an orbit on z and an orbit on x (collapsed where the group allows)
+    seeds = (
+        [(1, (0.0, 0.0, 0.9)), (6, (0.0, 0.0, 0.0))]
+        if linear
+        else [(6, (0.41, 0.23, 0.87)), (8, (0.0, 0.0, 1.3)), (1, (1.7, 0.0, 0.0))]
+    )
+    pos, num = build(table, seeds)
+    sym = symmetry_data(table, pos, num, rotation=random_rotation(13), shift=(1.0, 0.5, -2.0))
+    sab = check_block_structure(sym, "cartesian")
+    # the multiplicities agree with the table's own reduction of the counted characters
+    chars = characters(sym, "cartesian")
+    per_class = np.array([chars[sym.op_class == c][0] for c in range(len(table.classes))])
+    assert sab.multiplicities == {k: v for k, v in table.reduce(per_class).items() if v}

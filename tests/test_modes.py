@@ -45,19 +45,26 @@ PUBLISHED = {
 }
 
 
-def molecule(name, seed=5):
+def molecule(name, seed=5, project_table=False):
     group, builder = MOLECULES[name]
     pos, num, hess, terms = builder()
     q = random_rotation(seed)
-    sym = symmetry_data(TABLES[group], pos, num, rotation=q, shift=(0.4, -1.0, 2.0))
+    if project_table:
+        from gammatrace.tables import get_table
+
+        table = get_table(group)
+    else:
+        table = TABLES[group]
+    sym = symmetry_data(table, pos, num, rotation=q, shift=(0.4, -1.0, 2.0))
     big = np.kron(np.eye(len(num)), q)
     masses = np.array([MASSES[z] for z in num])
     return sym, big @ hess @ big.T, masses, [(big @ row, k) for row, k in terms]
 
 
+@pytest.mark.parametrize("project_table", [False, True])
 @pytest.mark.parametrize("name", list(MOLECULES))
-def test_vibrations_match_published_assignments(name):
-    sym, hess, masses, _ = molecule(name)
+def test_vibrations_match_published_assignments(name, project_table):
+    sym, hess, masses, _ = molecule(name, project_table=project_table)
     labels = label_modes(sym, hessian=hess, masses=masses)
     assert labels.counts() == PUBLISHED[name]
     assert labels.purity.min() > 1 - 1e-9

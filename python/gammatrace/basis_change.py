@@ -509,12 +509,19 @@ def projection_operator(sym: SymmetryData, basis, irrep) -> sp.csr_matrix:
     comps = _components(sym, basis, g)
     n = basis_dimension(sym, basis)
     coef = g.dims[i] / (g.order * g.nu[i]) * g.chars[i]
-    total = sp.csr_matrix((n, n))
-    for k in np.nonzero(coef)[0]:
-        total = total + coef[k] * _matrix_from_components(comps, k, n)
+    rows, cols, data = [], [], []
+    for k in np.nonzero(coef)[0]:  # one sparse pass per operation, summed once at the end
+        for comp in comps:
+            r, c, v = _component_matrix(comp, k)
+            rows.append(r)
+            cols.append(c)
+            data.append(coef[k] * v)
+    total = sp.csr_matrix(
+        (np.concatenate(data), (np.concatenate(rows), np.concatenate(cols))), shape=(n, n)
+    )
     total.data[np.abs(total.data) < 1e-13] = 0.0
     total.eliminate_zeros()
-    return total.tocsr()
+    return total
 
 
 def irreducible_matrices(sym: SymmetryData) -> dict:
