@@ -416,3 +416,28 @@ def test_project_tables_give_block_diagonal_cartesian_bases(group):
     chars = characters(sym, "cartesian")
     per_class = np.array([chars[sym.op_class == c][0] for c in range(len(table.classes))])
     assert sab.multiplicities == {k: v for k, v in table.reduce(per_class).items() if v}
+
+
+@pytest.mark.parametrize("group", ["C9", "D∞h", "Th"])
+def test_reference_matrices_are_representations_with_table_characters(group):
+    # C9's E4 and D∞h's Γ, H, I (|m| = 4..6) come from the regular representation;
+    # Th's Eg/Eu are complex-conjugate pairs shown as one real E.
+    from gammatrace.tables import get_table
+
+    table = get_table(group)
+    pos, num = build(table, [(6, (0.41, 0.23, 0.87))])
+    sym = symmetry_data(table, pos, num, rotation=random_rotation(2))
+    ops = table.operations
+    h = len(ops)
+    mult = np.array(
+        [[int(np.argmin(np.abs(ops - a @ b).reshape(h, -1).max(axis=1))) for b in ops] for a in ops]
+    )
+    for i, (label, mats) in enumerate(irreducible_matrices(sym).items()):
+        assert np.abs(np.einsum("aij,bjk->abik", mats, mats) - mats[mult]).max() < 1e-10
+        assert np.allclose(
+            np.einsum("kij,kjl->kil", mats, mats.transpose(0, 2, 1)),
+            np.eye(mats.shape[1]),
+            atol=1e-10,
+        )
+        chars = table.character_matrix[i, table.operation_class]
+        assert np.allclose(np.trace(mats, axis1=1, axis2=2), chars, atol=1e-10)
