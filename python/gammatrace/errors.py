@@ -11,10 +11,12 @@ from __future__ import annotations
 __all__ = [
     "BasisError",
     "GammatraceError",
+    "GammatraceWarning",
     "InputError",
     "ReadError",
     "ReductionError",
     "StructureError",
+    "SymmetryBreakingWarning",
     "SymmetryError",
     "TableError",
     "ToleranceError",
@@ -55,3 +57,11 @@ class TableError(InputError):
 
 class BasisError(InputError):
     """A basis specification naming an unknown element, angular momentum, atom or shape."""
+
+
+class GammatraceWarning(UserWarning):
+    """Base class of every warning gammatrace issues."""
+
+
+class SymmetryBreakingWarning(GammatraceWarning):
+    """Input data (a Hessian, mode vectors) break the structure's symmetry beyond a tolerance."""
