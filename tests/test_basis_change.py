@@ -318,7 +318,7 @@ def test_unknown_basis_and_bad_shells_raise_basis_error():
         symmetry_adapted_basis(sym, "spherical")
     with pytest.raises(BasisError, match="g"):
         Basis.orbitals({"Fe": "spdg"})
-    with pytest.raises(BasisError, match="outside 0..3"):
+    with pytest.raises(BasisError, match=r"outside 0\.\.3"):
         Basis.orbitals({26: [4]})
     with pytest.raises(BasisError, match="Xx"):
         Basis.orbitals({"Xx": "s"})
@@ -432,7 +432,7 @@ def test_reference_matrices_are_representations_with_table_characters(group):
     mult = np.array(
         [[int(np.argmin(np.abs(ops - a @ b).reshape(h, -1).max(axis=1))) for b in ops] for a in ops]
     )
-    for i, (label, mats) in enumerate(irreducible_matrices(sym).items()):
+    for i, (_label, mats) in enumerate(irreducible_matrices(sym).items()):
         assert np.abs(np.einsum("aij,bjk->abik", mats, mats) - mats[mult]).max() < 1e-10
         assert np.allclose(
             np.einsum("kij,kjl->kil", mats, mats.transpose(0, 2, 1)),

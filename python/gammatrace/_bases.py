@@ -224,7 +224,8 @@ class Basis:
                     l = int(item)
                     if not 0 <= l <= _sph_harm.MAX_L:
                         raise BasisError(
-                            f"shells[{key!r}]: angular momentum {item!r} outside 0..{_sph_harm.MAX_L}"
+                            f"shells[{key!r}]: angular momentum {item!r} outside "
+                            f"0..{_sph_harm.MAX_L}"
                         )
                     ls.append(l)
             out[z] = tuple(ls)

@@ -30,9 +30,7 @@ def shell_characters(
 ) -> F64:
     """Per-operation characters of angular-momentum shells (n_atoms, n_l) on the atoms."""
 
-def orbital_contributions(
-    proper: npt.NDArray[np.bool_], angle: F64, l: int
-) -> F64:
+def orbital_contributions(proper: npt.NDArray[np.bool_], angle: F64, l: int) -> F64:
     """Per-operation contribution of one shell of angular momentum l per unshifted atom."""
 
 def pi_characters(

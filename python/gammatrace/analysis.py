@@ -297,6 +297,54 @@ class Analysis:
 
         return vibrations(self)
 
+    # ---------------------------------------------------------------- change of basis
+    def symmetry_data(self):
+        """The structure with all its operations and permutations, for
+        :mod:`gammatrace.basis_change`, :mod:`gammatrace.modes` and :mod:`gammatrace.symmetrize`.
+
+        Raises
+        ------
+        SymmetryError
+            For a single atom (no finite group) or when only generators were verified.
+        """
+        from .basis_change import SymmetryData
+
+        if self.table is None:
+            raise SymmetryError("a single atom has no finite group for a change of basis")
+        s = self.structure
+        return SymmetryData(
+            s.positions,
+            s.numbers,
+            self.center,
+            self.frame,
+            self.operation_matrices,
+            self.permutations,
+            self.table,
+            self.op_class,
+        )
+
+    def symmetry_adapted_basis(self, basis: Any = "cartesian"):
+        """The orthogonal sparse change of basis X (rows = SALCs) for ``basis``; see
+        :func:`gammatrace.basis_change.symmetry_adapted_basis`."""
+        from .basis_change import symmetry_adapted_basis
+
+        return symmetry_adapted_basis(self.symmetry_data(), basis)
+
+    def label_modes(self, hessian: Any = None, **kwargs: Any):
+        """Label normal modes from a Cartesian Hessian or mode vectors; see
+        :func:`gammatrace.modes.label_modes` (masses default to standard atomic masses)."""
+        from .modes import label_modes
+
+        kwargs.setdefault("masses", self.masses)
+        return label_modes(self.symmetry_data(), hessian, **kwargs)
+
+    def symmetrize(self):
+        """Project the structure onto its exact point group; see
+        :func:`gammatrace.symmetrize.symmetrize`."""
+        from .symmetrize import symmetrize
+
+        return symmetrize(self.symmetry_data(), tolerance=self.tol)
+
     # ---------------------------------------------------------------- orbits
     @cached_property
     def orbits(self) -> list[Orbit]:

@@ -245,9 +245,10 @@ def _parser() -> argparse.ArgumentParser:
     sc.add_argument("--chart", default=None, help="PNG bar chart of point-group counts")
     sc.set_defaults(func=_cmd_screen)
 
-    from .cli_descent import add_commands
+    from . import cli_basis, cli_descent
 
-    add_commands(sub)
+    cli_descent.add_commands(sub)
+    cli_basis.add_commands(sub)
 
     d = sub.add_parser("demo", help="run the bundled (invented) demo scenario")
     d.add_argument("--out", default=None, help="folder for the demo's files and pictures")

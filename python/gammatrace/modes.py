@@ -443,10 +443,7 @@ def label_modes(
     set_of = np.zeros(n_modes, dtype=np.int64)
     sets = []
     out_vectors = vectors.copy()
-    if values is not None:
-        groups = _group_values(values, tol)
-    else:
-        groups = [[k] for k in range(n_modes)]
+    groups = _group_values(values, tol) if values is not None else [[k] for k in range(n_modes)]
     for grp in groups:
         grp = np.array(sorted(grp))
         c = coeff[:, grp]  # (3N, g)
