@@ -83,6 +83,25 @@ mod glue {
         }
     }
 
+    /// Run one core call; a panic (a bug) becomes `Error::Internal` instead of crossing into
+    /// Python as a BaseException.
+    fn guarded<T>(f: impl FnOnce() -> crate::Result<T>) -> crate::Result<T> {
+        match std::panic::catch_unwind(std::panic::AssertUnwindSafe(f)) {
+            Ok(r) => r,
+            Err(payload) => {
+                let reason = payload
+                    .downcast_ref::<&str>()
+                    .map(|s| (*s).to_string())
+                    .or_else(|| payload.downcast_ref::<String>().cloned())
+                    .unwrap_or_else(|| "unknown panic".to_string());
+                Err(Error::Internal {
+                    structure: 0,
+                    reason,
+                })
+            }
+        }
+    }
+
     fn error_pair(err: &Error) -> (&'static str, String) {
         (exception_class(err), err.to_string())
     }
@@ -164,7 +183,7 @@ mod glue {
             verify_all_limit,
         };
         let sym = py
-            .detach(|| detect::find_point_group(pos, num, &opts))
+            .detach(|| guarded(|| detect::find_point_group(pos, num, &opts)))
             .map_err(CoreError)?;
         let h = sym.ops.len();
         let n = pos.len();
@@ -234,7 +253,9 @@ mod glue {
             .as_slice()
             .map_err(|_| PyValueError::new_err("shell_counts: array must be C-contiguous"))?;
         let out = py
-            .detach(|| count::shell_characters(pos, center, ops, prop, ang, shells, n_l, tol))
+            .detach(|| {
+                guarded(|| count::shell_characters(pos, center, ops, prop, ang, shells, n_l, tol))
+            })
             .map_err(CoreError)?;
         Ok(out.into_pyarray(py))
     }
@@ -325,7 +346,7 @@ mod glue {
             pairs.push([p[0] as u32, p[1] as u32]);
         }
         let out = py
-            .detach(|| count::bond_characters(pos, center, ops, &pairs, oriented, tol))
+            .detach(|| guarded(|| count::bond_characters(pos, center, ops, &pairs, oriented, tol)))
             .map_err(CoreError)?;
         Ok(out.into_pyarray(py))
     }
@@ -345,7 +366,9 @@ mod glue {
         let ops = mats3(slice3(&operations, "operations")?, "operations")?;
         let vec = rows3(slice2(&vectors, "vectors")?, "vectors")?;
         let out = py
-            .detach(|| count::vector_set_characters(pos, center, ops, vec, per_atom, tol))
+            .detach(|| {
+                guarded(|| count::vector_set_characters(pos, center, ops, vec, per_atom, tol))
+            })
             .map_err(CoreError)?;
         Ok(out.into_pyarray(py))
     }
@@ -417,7 +440,7 @@ mod glue {
     ) -> PyResult<Bound<'py, PyDict>> {
         let p = std::path::PathBuf::from(path);
         let frames = py
-            .detach(|| readers::read_xyz_path(&p, source, &element_number))
+            .detach(|| guarded(|| readers::read_xyz_path(&p, source, &element_number)))
             .map_err(CoreError)?;
         frames_to_dict(py, frames)
     }
