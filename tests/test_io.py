@@ -2,10 +2,9 @@
 
 from __future__ import annotations
 
+import gammatrace as gt
 import numpy as np
 import pytest
-
-import gammatrace as gt
 from gammatrace.io import Structure, atomic_numbers, read_structures, write_xyz
 
 
