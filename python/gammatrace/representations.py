@@ -217,7 +217,7 @@ class Representation:
                 (
                     label,
                     str(int(n)),
-                    "varies" if contrib is None else format_number(contrib),
+                    "-" if n == 0 else "varies" if contrib is None else format_number(contrib),
                     format_number(chi),
                 )
             )
