@@ -409,7 +409,7 @@ def _write_xyz(path, s: Structure) -> None:
 
 
 def test_cli_sites_json(tmp_path, capsys):
-    from gammatrace.cli_descent import main
+    from gammatrace.cli import main
 
     f = tmp_path / "ico.xyz"
     _write_xyz(f, gt.io.as_structure(ase_icosahedron(3)))
@@ -423,7 +423,7 @@ def test_cli_sites_json(tmp_path, capsys):
 
 
 def test_cli_ladder_json_and_errors(tmp_path, capsys):
-    from gammatrace.cli_descent import main
+    from gammatrace.cli import main
 
     f = tmp_path / "c60.xyz"
     _write_xyz(f, stretched(builders.c60(), [0.0, 1.0, GOLDEN], 0.01))

@@ -24,7 +24,7 @@ from typing import Any
 
 from .errors import GammatraceError
 
-__all__ = ["add_commands", "main"]
+__all__ = ["add_commands"]
 
 
 def _write(text: str) -> None:
@@ -194,30 +194,3 @@ def add_commands(subparsers: Any) -> None:
     )
     lad.add_argument("--format", choices=("text", "json"), default="text")
     lad.set_defaults(func=_cmd_ladder)
-
-
-def main(argv: Sequence[str] | None = None) -> int:
-    """Run ``sites`` or ``ladder`` on their own (same behaviour as under ``gammatrace``)."""
-    p = argparse.ArgumentParser(prog="gammatrace")
-    p.add_argument("--traceback", action="store_true", help="print full tracebacks on errors")
-    add_commands(p.add_subparsers(dest="command", required=True))
-    try:
-        args = p.parse_args(argv)
-    except SystemExit as exc:
-        return int(exc.code or 0)
-    if getattr(args, "tol", 1.0) <= 0:
-        print(
-            f"gammatrace: --tol must be a positive distance in Å, got {args.tol}", file=sys.stderr
-        )
-        return 2
-    try:
-        return int(args.func(args))
-    except GammatraceError as exc:
-        _fail(exc, args.traceback)
-        return 1
-    except BrokenPipeError:
-        return 0
-
-
-if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
