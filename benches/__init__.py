@@ -1,0 +1,1 @@
+"""gammatrace benchmark suite: workloads, plain baselines and the report (``python -m benches.report``)."""

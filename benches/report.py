@@ -1,0 +1,479 @@
+"""Run the benchmark suite and write BENCHMARKS.md (``python -m benches.report``).
+
+Steps, all on this machine in one go:
+
+1. ``pytest benches/ --benchmark-json=benches/results/<stamp>.json`` (Python workloads and their
+   baselines, same run, same groups);
+2. ``cargo bench --bench lookup_kernel`` (Rust lookup kernel next to a streaming pass), saved
+   as ``benches/results/<stamp>-lookup.json``;
+3. when the machine was busy (1-minute load average above the number of cores), the workloads
+   marked ``headline`` once more, saved as ``benches/results/<stamp>-rerun.json``;
+4. the log–log plot ``benches/results/scaling.png`` and the page ``BENCHMARKS.md``.
+
+``--from STAMP`` skips the runs and rebuilds the plot and the page from recorded results.
+"""
+
+from __future__ import annotations
+
+import argparse
+import datetime as dt
+import json
+import os
+import platform
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+RESULTS = ROOT / "benches" / "results"
+PAGE = ROOT / "BENCHMARKS.md"
+PLOT = RESULTS / "scaling.png"
+NOTES = ROOT / "benches" / "NOTES.md"
+
+# Targets of issue 7.
+TARGET_HEADLINE_S = 1.5
+TARGET_HEADLINE_RATIO = 30.0
+TARGET_KERNEL_RATIO = 5.0
+TARGET_BATCH_PER_S = 20_000
+GOAL_BATCH_PER_S = 100_000
+TARGET_READ_MB_S = 300.0
+TARGET_MEMORY_RATIO = 10.0
+
+
+def _git(*args: str, cwd: Path = ROOT) -> str:
+    try:
+        return subprocess.run(
+            ["git", *args], cwd=cwd, capture_output=True, text=True, timeout=10
+        ).stdout.strip()
+    except (OSError, subprocess.SubprocessError):
+        return ""
+
+
+def _load() -> list:
+    try:
+        return [round(x, 2) for x in os.getloadavg()]
+    except OSError:
+        return []
+
+
+def _fail(message: str) -> None:
+    sys.exit(f"benches.report: {message}")
+
+
+def check_dependencies() -> None:
+    """Refuse to run, with the command to fix it, when a needed package is missing."""
+    missing = []
+    for module, package in (
+        ("pytest", "pytest"),
+        ("pytest_benchmark", "pytest-benchmark"),
+        ("matplotlib", "matplotlib"),
+        ("pandas", "pandas"),
+        ("scipy", "scipy"),
+        ("gammatrace", "gammatrace (pip install -e .)"),
+    ):
+        try:
+            __import__(module)
+        except ImportError:
+            missing.append(package)
+    if missing:
+        _fail(f"missing {', '.join(missing)}; install with: pip install -e '.[bench]'")
+
+
+# ------------------------------------------------------------------------------ running
+def run_pytest(json_path: Path, extra: list) -> int:
+    cmd = [
+        sys.executable,
+        "-m",
+        "pytest",
+        "benches/",
+        "-p",
+        "no:cacheprovider",
+        f"--benchmark-json={json_path}",
+        "--benchmark-columns=median,min,max,rounds",
+        "--benchmark-sort=name",
+        *extra,
+    ]
+    print("+", " ".join(cmd), flush=True)
+    return subprocess.run(cmd, cwd=ROOT).returncode
+
+
+def run_cargo(json_path: Path, repeats: int) -> dict | None:
+    if shutil.which("cargo") is None:
+        print("cargo not found: the Rust micro-benchmark is left out", flush=True)
+        return None
+    cmd = ["cargo", "bench", "--bench", "lookup_kernel", "--", "--repeats", str(repeats)]
+    print("+", " ".join(cmd), flush=True)
+    load_before = _load()
+    out = subprocess.run(cmd, cwd=ROOT, capture_output=True, text=True)
+    sys.stdout.write(out.stdout)
+    if out.returncode != 0:
+        sys.stderr.write(out.stderr)
+        print("the Rust micro-benchmark failed: left out of the page", flush=True)
+        return None
+    line = next((x for x in out.stdout.splitlines() if x.startswith("JSON: ")), None)
+    if line is None:
+        return None
+    data = json.loads(line[len("JSON: ") :])
+    rustc = subprocess.run(["rustc", "--version"], capture_output=True, text=True).stdout.strip()
+    data.update(
+        {
+            "datetime": dt.datetime.now(dt.timezone.utc).isoformat(timespec="seconds"),
+            "commit": _git("rev-parse", "HEAD"),
+            "machine": _machine(),
+            "rustc": rustc,
+            "loadavg_before": load_before,
+            "loadavg_after": _load(),
+        }
+    )
+    json_path.write_text(json.dumps(data, indent=1) + "\n")
+    return data
+
+
+def _machine() -> dict:
+    cpu = platform.processor()
+    try:
+        for line in Path("/proc/cpuinfo").read_text().splitlines():
+            if line.startswith("model name"):
+                cpu = line.split(":", 1)[1].strip()
+                break
+    except OSError:
+        pass
+    return {"node": platform.node(), "cpu": cpu, "n_cores": os.cpu_count(), "system": platform.platform()}
+
+
+# ------------------------------------------------------------------------------ reading
+def load_benchmarks(path: Path) -> dict:
+    """``{(group, name): record}`` plus the raw JSON under key None."""
+    data = json.loads(path.read_text())
+    out = {(b["group"], b["name"]): b for b in data["benchmarks"]}
+    out[None] = data
+    return out
+
+
+def median(b: dict | None) -> float | None:
+    return None if b is None else b["stats"]["median"]
+
+
+def fmt_s(x: float | None) -> str:
+    if x is None:
+        return "—"
+    if x >= 1:
+        return f"{x:.2f} s"
+    if x >= 1e-3:
+        return f"{x * 1e3:.1f} ms"
+    return f"{x * 1e6:.0f} µs"
+
+
+def fmt_ratio(x: float | None) -> str:
+    return "—" if x is None else f"{x:.1f}×"
+
+
+def verdict(ok: bool | None) -> str:
+    return "n/a" if ok is None else ("met" if ok else "**missed**")
+
+
+# ------------------------------------------------------------------------------ plot
+def make_plot(bench: dict, path: Path) -> None:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    fig, axes = plt.subplots(1, 2, figsize=(10, 4.2), sharey=True)
+    styles = {
+        "ours": ("o-", "gammatrace: detection + Γ_3N + Γ_vib"),
+        "ours-counting": ("s--", "gammatrace: counting only (operations given)"),
+        "kdtree": ("^-", "baseline (b) numpy + cKDTree (operations given)"),
+        "dense": ("x", "baseline (a) dense 3N×3N traces (operations given)"),
+    }
+    for ax, family in zip(axes, ("Ih", "Oh")):
+        for name, (style, label) in styles.items():
+            pts = sorted(
+                (b["extra_info"]["n_atoms"], b["stats"]["median"])
+                for (g, n), b in bench.items()
+                if g is not None and n == name and g.startswith(f"{family} 1e")
+            )
+            if pts:
+                xs, ys = zip(*pts)
+                ax.loglog(xs, ys, style, label=label, markersize=6)
+        ax.set_title(f"{family} clusters ({'Mackay icosahedra' if family == 'Ih' else 'fcc spheres'})")
+        ax.set_xlabel("number of atoms")
+        ax.grid(True, which="both", alpha=0.3)
+    axes[0].set_ylabel("median wall time (s)")
+    axes[0].legend(fontsize=7, loc="upper left")
+    fig.tight_layout()
+    fig.savefig(path, dpi=90)
+    plt.close(fig)
+
+
+# ------------------------------------------------------------------------------ page
+def group_table(bench: dict, group: str, reference: str | None) -> list:
+    rows = [(n, b) for (g, n), b in bench.items() if g == group]
+    if not rows:
+        return []
+    ref = median(bench.get((group, reference))) if reference else None
+    lines = [
+        "| workload | median | min | rounds | load (1 min) | baseline / ours |",
+        "|---|---|---|---|---|---|",
+    ]
+    for name, b in sorted(rows, key=lambda r: r[1]["stats"]["median"]):
+        st = b["stats"]
+        ratio = st["median"] / ref if ref and not name.startswith("ours") else None
+        load = b.get("extra_info", {}).get("loadavg", [None])
+        lines.append(
+            f"| {name} | {fmt_s(st['median'])} | {fmt_s(st['min'])} | {st['rounds']} | "
+            f"{load[0] if load else '—'} | {fmt_ratio(ratio)} |"
+        )
+    return lines
+
+
+def kernel_summary(rust: dict | None) -> tuple:
+    """(worst map/R·x ratio, median ratio, n_atoms) at the largest size, one thread."""
+    if not rust:
+        return None, None, None
+    rows = [r for r in rust["rows"] if r["threads"] == 1]
+    if not rows:
+        return None, None, None
+    n = max(r["n_atoms"] for r in rows)
+    ratios = sorted(
+        r["map_ns_per_atom"] / r["stream_transform_ns_per_atom"] for r in rows if r["n_atoms"] == n
+    )
+    return ratios[-1], ratios[len(ratios) // 2], n
+
+
+def headline_numbers(bench: dict) -> dict:
+    ours = median(bench.get(("Ih 1e6", "ours")))
+    kd = median(bench.get(("Ih 1e6", "kdtree")))
+    batch = [
+        b["extra_info"].get("per_second")
+        for (g, n), b in bench.items()
+        if g == "batch 1e4 conformers" and n.startswith("ours-threads")
+    ]
+    read = bench.get(("read 50 MB xyz", "ours"))
+    mem = bench.get(("peak memory", "Ih-1e6-ours"))
+    return {
+        "ours": ours,
+        "ratio": kd / ours if ours and kd else None,
+        "batch": max(batch) if batch else None,
+        "read": read["extra_info"]["mb_per_s"] if read else None,
+        "memory": mem["extra_info"]["ratio_to_coordinates"] if mem else None,
+        "memory_mb": mem["extra_info"]["peak_extra_bytes"] / 1e6 if mem else None,
+    }
+
+
+def targets_table(runs: list, rust: dict | None) -> list:
+    header = "| target | " + " | ".join(label for label, _ in runs) + " | verdict |"
+    lines = [header, "|---" * (len(runs) + 2) + "|"]
+    nums = [headline_numbers(b) for _, b in runs]
+
+    def best(key, better):
+        vals = [n[key] for n in nums if n[key] is not None]
+        return better(vals) if vals else None
+
+    def row(title, key, fmt, ok):
+        cells = " | ".join(fmt(n[key]) if n[key] is not None else "—" for n in nums)
+        lines.append(f"| {title} | {cells} | {ok} |")
+
+    t = best("ours", min)
+    row(
+        f"Ih 10⁶ atoms, detection + Γ_3N + Γ_vib ≤ {TARGET_HEADLINE_S} s",
+        "ours",
+        fmt_s,
+        verdict(None if t is None else t <= TARGET_HEADLINE_S),
+    )
+    r = best("ratio", max)
+    row(
+        f"… ≥ {TARGET_HEADLINE_RATIO:.0f}× faster than baseline (b)",
+        "ratio",
+        fmt_ratio,
+        verdict(None if r is None else r >= TARGET_HEADLINE_RATIO),
+    )
+    b = best("batch", max)
+    row(
+        f"batch ≥ {TARGET_BATCH_PER_S:,} conformers/s (goal {GOAL_BATCH_PER_S:,})",
+        "batch",
+        lambda x: f"{x:,.0f}/s",
+        verdict(None if b is None else b >= TARGET_BATCH_PER_S)
+        + (" (goal met)" if b and b >= GOAL_BATCH_PER_S else ""),
+    )
+    rd = best("read", max)
+    row(
+        f"reading ≥ {TARGET_READ_MB_S:.0f} MB/s",
+        "read",
+        lambda x: f"{x:.0f} MB/s",
+        verdict(None if rd is None else rd >= TARGET_READ_MB_S),
+    )
+    m = best("memory", min)
+    row(
+        f"peak memory, 10⁶ atoms ≤ {TARGET_MEMORY_RATIO:.0f}× the coordinates",
+        "memory",
+        lambda x: f"{x:.1f}×",
+        verdict(None if m is None else m <= TARGET_MEMORY_RATIO),
+    )
+    worst, mid, n = kernel_summary(rust)
+    cells = " | ".join(
+        (f"{mid:.0f}× (worst op {worst:.0f}×)" if mid is not None and i == 0 else "—")
+        for i in range(len(runs))
+    )
+    lines.append(
+        f"| lookup kernel within {TARGET_KERNEL_RATIO:.0f}× of a streaming pass "
+        f"({n or '—'} atoms, 1 thread, median over ops) | {cells} | "
+        f"{verdict(None if mid is None else mid <= TARGET_KERNEL_RATIO)} |"
+    )
+    return lines
+
+
+def rust_table(rust: dict | None) -> list:
+    if not rust:
+        return ["(not run: cargo missing or the micro-benchmark failed)"]
+    lines = [
+        f"`cargo bench --bench lookup_kernel` ({rust.get('rustc', '')}, median of "
+        f"{rust['repeats']} runs, tol {rust['tol']} Å, load {rust.get('loadavg_before')} → "
+        f"{rust.get('loadavg_after')}). ns per atom; *R·x* = read every coordinate, rotate, "
+        "write (the streaming floor); *sum* = read only; *grid* = building the cell grid once.",
+        "",
+        "| atoms | threads | op | map ns/atom | R·x ns/atom | sum ns/atom | grid ns/atom | map / R·x |",
+        "|---|---|---|---|---|---|---|---|",
+    ]
+    for r in rust["rows"]:
+        lines.append(
+            f"| {r['n_atoms']:,} | {r['threads']} | {r['op']} | {r['map_ns_per_atom']:.1f} | "
+            f"{r['stream_transform_ns_per_atom']:.2f} | {r['stream_sum_ns_per_atom']:.2f} | "
+            f"{r['grid_build_ns_per_atom']:.1f} | "
+            f"{r['map_ns_per_atom'] / r['stream_transform_ns_per_atom']:.0f}× |"
+        )
+    return lines
+
+
+def write_page(stamp: str, bench: dict, rerun: dict | None, rust: dict | None) -> None:
+    data = bench[None]
+    mi = data["machine_info"]
+    ci = data.get("commit_info", {})
+    v = mi.get("versions", {})
+    runs = [("run", bench)] + ([("re-run (headline)", rerun)] if rerun else [])
+    out = [
+        "# Benchmarks",
+        "",
+        "Generated by `bash scripts/bench.sh` (= `python -m benches.report`); do not edit by hand.",
+        f"Recorded results: `benches/results/{stamp}*.json`. Plot: `benches/results/scaling.png`.",
+        "",
+        "## Machine and versions",
+        "",
+        f"- date: {data['datetime']}",
+        f"- CPU: {mi.get('cpu_model')} ({mi.get('n_cores')} cores), "
+        f"memory {mi.get('mem_total_kb', 0) / 1e6:.1f} GB, {mi.get('system')} {mi.get('release')}",
+        f"- Python {mi.get('python_version')} ({mi.get('python_implementation')}), "
+        f"numpy {v.get('numpy')}, scipy {v.get('scipy')}, pandas {v.get('pandas')}"
+        + (f", {rust['rustc']}" if rust else ""),
+        f"- gammatrace {v.get('gammatrace')} from `{mi.get('gammatrace_path')}` at commit "
+        f"`{mi.get('gammatrace_commit', '')[:12]}`"
+        + (" (uncommitted changes)" if mi.get("gammatrace_dirty") else "")
+        + f"; suite at commit `{ci.get('id', '')[:12]}`"
+        + (" (uncommitted changes)" if ci.get("dirty") else ""),
+        f"- load average (1, 5, 15 min): {mi.get('loadavg_at_start')} at the start, "
+        f"{data.get('loadavg_at_end')} at the end. The machine is shared; every row below "
+        "carries the 1-minute load when it finished.",
+        "",
+        "## Targets (issue 7)",
+        "",
+        *targets_table(runs, rust),
+        "",
+        "Ratios divide the baseline's median by ours from the same run. The baselines are GIVEN "
+        "the symmetry operations (found by gammatrace, untimed): they only map atoms and count, "
+        "while *ours* also finds the point group from the bare coordinates. *ours-counting* is "
+        "the like-for-like row (the core's count for the given operations).",
+        "",
+        "## Scaling",
+        "",
+        "![time against number of atoms](benches/results/scaling.png)",
+        "",
+    ]
+    for family in ("Ih", "Oh"):
+        for k in (3, 4, 5, 6):
+            g = f"{family} 1e{k}"
+            rows = group_table(bench, g, "ours")
+            if rows:
+                n = next(b["extra_info"]["n_atoms"] for (gg, _), b in bench.items() if gg == g)
+                out += [f"### {g} ({n:,} atoms)", "", *rows, ""]
+    for title, g, ref in (
+        ("Batch: 10⁴ conformers of a 30-atom molecule", "batch 1e4 conformers", "ours-threads-1"),
+        ("Reading a ~50 MB multi-frame XYZ file", "read 50 MB xyz", "ours"),
+        ("Symmetry-adapted basis and mode labelling", "basis", None),
+    ):
+        rows = group_table(bench, g, ref)
+        out += [f"### {title}", ""]
+        if not rows:
+            out += ["Not run (skipped: see the pytest output; issue 6 not merged).", ""]
+            continue
+        out += rows + [""]
+        extra = []
+        for (gg, name), b in sorted(bench.items(), key=lambda kv: str(kv[0])):
+            if gg != g:
+                continue
+            e = b["extra_info"]
+            if "per_second" in e:
+                extra.append(f"- {name}: {e['per_second']:,.0f} structures/s")
+            if "mb_per_s" in e:
+                extra.append(f"- {name}: {e['mb_per_s']:.0f} MB/s ({e['file_bytes'] / 1e6:.1f} MB, {e['n_frames']:,} frames)")
+        out += extra + [""]
+    mem = [(n, b["extra_info"]) for (g, n), b in bench.items() if g == "peak memory"]
+    if mem:
+        out += [
+            "### Peak memory (fresh process, VmHWM after − VmRSS before)",
+            "",
+            "| workload | atoms | coordinates | peak extra | ratio |",
+            "|---|---|---|---|---|",
+        ]
+        for name, e in sorted(mem):
+            out.append(
+                f"| {name} | {e['n_atoms']:,} | {e['coordinate_bytes'] / 1e6:.1f} MB | "
+                f"{e['peak_extra_bytes'] / 1e6:.1f} MB | {e['ratio_to_coordinates']:.1f}× |"
+            )
+        out.append("")
+    out += ["## Lookup kernel (Rust)", "", *rust_table(rust), ""]
+    if rerun:
+        out += ["## Re-run of the headline workloads (the machine was busy)", ""]
+        for g in sorted({g for (g, _) in rerun if g is not None}):
+            rows = group_table(rerun, g, "ours" if g[:2] in ("Ih", "Oh") else None)
+            out += [f"### {g}", "", *rows, ""]
+    if NOTES.exists():
+        out += [NOTES.read_text().strip(), ""]
+    PAGE.write_text("\n".join(out))
+    print(f"wrote {PAGE.relative_to(ROOT)}", flush=True)
+
+
+# ------------------------------------------------------------------------------ main
+def main(argv=None) -> None:
+    p = argparse.ArgumentParser(description="Run the benchmark suite and write BENCHMARKS.md.")
+    p.add_argument("--from", dest="stamp", help="rebuild the page from recorded results STAMP")
+    p.add_argument("--rust-repeats", type=int, default=7)
+    p.add_argument("--no-rerun", action="store_true", help="never re-run the headline workloads")
+    p.add_argument("pytest_args", nargs="*", help="extra arguments for pytest (e.g. -k 1e3)")
+    args = p.parse_args(argv)
+    check_dependencies()
+    RESULTS.mkdir(parents=True, exist_ok=True)
+    if args.stamp:
+        stamp = args.stamp
+    else:
+        now = dt.datetime.now(dt.timezone.utc).strftime("%Y%m%dT%H%M%SZ")
+        stamp = f"{now}-{_git('rev-parse', '--short', 'HEAD') or 'nogit'}"
+        rc = run_pytest(RESULTS / f"{stamp}.json", args.pytest_args)
+        if rc not in (0, 5):
+            _fail(f"pytest exited with status {rc}; results kept in benches/results/{stamp}.json")
+        run_cargo(RESULTS / f"{stamp}-lookup.json", args.rust_repeats)
+        load = _load()
+        if not args.no_rerun and load and load[0] > (os.cpu_count() or 1):
+            print(f"load average {load} above the core count: re-running the headline", flush=True)
+            run_pytest(RESULTS / f"{stamp}-rerun.json", ["-m", "headline", *args.pytest_args])
+    bench = load_benchmarks(RESULTS / f"{stamp}.json")
+    rerun_path = RESULTS / f"{stamp}-rerun.json"
+    rerun = load_benchmarks(rerun_path) if rerun_path.exists() else None
+    rust_path = RESULTS / f"{stamp}-lookup.json"
+    rust = json.loads(rust_path.read_text()) if rust_path.exists() else None
+    make_plot(bench, PLOT)
+    write_page(stamp, bench, rerun, rust)
+
+
+if __name__ == "__main__":
+    main()

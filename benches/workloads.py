@@ -1,0 +1,111 @@
+"""Inputs of the benchmark suite, all from fixed seeds.
+
+- Clusters of about 10³, 10⁴, 10⁵ and 10⁶ atoms: Mackay icosahedra (Ih) and fcc spheres (Oh).
+- Conformers of a 30-atom molecule: symmetric parents (Td, D3h, C2v, built as orbits of seed
+  points) in random orientations; half keep their symmetry (noise 10⁻⁴ Å), half are distorted
+  (noise 0.05 Å, so C1 at the default tolerance of 0.01 Å).
+- A multi-frame XYZ file of about 50 MB made of such conformers.
+"""
+
+from __future__ import annotations
+
+import functools
+import os
+
+import numpy as np
+
+from gammatrace import get_table
+from gammatrace.builders import fcc_cluster, mackay_icosahedron, orbit_structure
+from gammatrace.io import Structure, write_xyz
+
+SEED = 20260707
+TOL = 0.01
+SIZES = (3, 4, 5, 6)  # log10 of the number of atoms
+#: Mackay shells giving about 10^k atoms (923, 10179, 104223, 1025235).
+MACKAY_SHELLS = {3: 6, 4: 14, 5: 31, 6: 67}
+#: fcc sphere radii (Å) giving about 10^k atoms (959, 10641, 104589, 1015599).
+FCC_RADIUS = {3: 16.0, 4: 35.0, 5: 75.0, 6: 160.0}
+FAMILIES = {"Ih": "Mackay icosahedron", "Oh": "fcc sphere"}
+N_CONFORMERS = 10_000
+CONFORMER_ATOMS = 30
+XYZ_TARGET_BYTES = 50_000_000
+
+
+@functools.lru_cache(maxsize=None)
+def cluster(family: str, exponent: int) -> Structure:
+    """The ~10^exponent-atom cluster of a family (``"Ih"`` or ``"Oh"``)."""
+    if family == "Ih":
+        return mackay_icosahedron(MACKAY_SHELLS[exponent])
+    if family == "Oh":
+        return fcc_cluster(FCC_RADIUS[exponent])
+    raise ValueError(f"family: expected 'Ih' or 'Oh', got {family!r}")
+
+
+def _parent(group: str, orbit_seeds: list, numbers: list) -> Structure:
+    s = orbit_structure(get_table(group).operations, np.array(orbit_seeds), np.array(numbers))
+    if s.n_atoms != CONFORMER_ATOMS:
+        raise RuntimeError(f"{group} parent has {s.n_atoms} atoms, expected {CONFORMER_ATOMS}")
+    d = np.linalg.norm(s.positions[:, None] - s.positions[None], axis=-1)
+    if np.min(d + 1e3 * np.eye(len(d))) < 0.8:
+        raise RuntimeError(f"{group} parent has atoms closer than 0.8 Å")
+    return s
+
+
+@functools.lru_cache(maxsize=None)
+def parents() -> tuple:
+    """Three 30-atom parents: Td (24 + 6), D3h (12 + 12 + 6), C2v (7 × 4 + 2)."""
+    td = _parent("Td", [[0.9, 1.7, 2.6], [1.9, 0.0, 0.0]], [1, 6])
+    d3h = _parent("D3h", [[0.6, 1.9, 1.3], [2.3, 0.7, 2.4], [2.9, 1.1, 0.0]], [1, 1, 6])
+    c2v_seeds = [
+        [0.7, 1.1, 0.3],
+        [1.9, 0.6, -1.2],
+        [0.5, 2.6, 1.7],
+        [2.8, 1.7, 0.9],
+        [1.4, 3.4, -0.8],
+        [3.3, 0.5, 2.2],
+        [0.9, 0.8, 2.9],
+        [0.0, 0.0, 1.5],
+        [0.0, 0.0, -1.6],
+    ]
+    c2v = _parent("C2v", c2v_seeds, [1, 1, 6, 6, 8, 1, 7, 6, 8])
+    return (("Td", td), ("D3h", d3h), ("C2v", c2v))
+
+
+def _random_rotations(rng: np.random.Generator, n: int) -> np.ndarray:
+    q, r = np.linalg.qr(rng.standard_normal((n, 3, 3)))
+    q = q * np.sign(np.diagonal(r, axis1=1, axis2=2))[:, None, :]
+    q[np.linalg.det(q) < 0, :, 0] *= -1.0
+    return q
+
+
+def conformers(n: int = N_CONFORMERS, seed: int = SEED) -> tuple:
+    """``n`` 30-atom conformers, their expected point groups, rotations and shifts.
+
+    Returns
+    -------
+    (structures, expected_groups, parent_index, rotations, shifts)
+    """
+    rng = np.random.default_rng(seed)
+    par = parents()
+    which = rng.integers(0, len(par), n)
+    distorted = rng.random(n) < 0.5
+    rot = _random_rotations(rng, n)
+    shift = rng.normal(0.0, 5.0, (n, 3))
+    noise = rng.standard_normal((n, CONFORMER_ATOMS, 3))
+    noise *= np.where(distorted, 0.05, 1e-4)[:, None, None]
+    base = np.stack([p.positions for _, p in par])[which] + noise
+    pos = np.einsum("kij,kaj->kai", rot, base) + shift[:, None, :]
+    nums = np.stack([p.numbers for _, p in par])[which]
+    structures = [Structure(nums[k], np.ascontiguousarray(pos[k]), "<conformer>", k) for k in range(n)]
+    expected = np.where(distorted, "C1", np.array([g for g, _ in par])[which])
+    return structures, expected, which, rot, shift
+
+
+def write_conformer_xyz(path: os.PathLike, target_bytes: int = XYZ_TARGET_BYTES) -> int:
+    """Write conformers until the file holds about ``target_bytes``; returns the frame count."""
+    line_bytes = 2 + 3 * 17 + 1  # "Sy" + 3 × " %16.10f" + newline (gammatrace.io.write_xyz)
+    frame_bytes = CONFORMER_ATOMS * line_bytes + len(f"{CONFORMER_ATOMS}\n") + 1
+    n_frames = max(1, target_bytes // frame_bytes)
+    structures, *_ = conformers(n_frames, seed=SEED + 1)
+    write_xyz(structures, path)
+    return n_frames
