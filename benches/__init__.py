@@ -1,1 +1,1 @@
-"""gammatrace benchmark suite: workloads, plain baselines and the report (``python -m benches.report``)."""
+"""gammatrace benchmark suite: workloads, plain baselines, report (``python -m benches.report``)."""

@@ -87,7 +87,7 @@ def reduce_vibrations(table, op_class: np.ndarray, chars_per_op: np.ndarray) -> 
 
     def reduce(c):
         m = (c * sizes) @ chi.T / order
-        return {lab: int(round(v)) for lab, v in zip(labels, m) if round(v)}
+        return {lab: round(v) for lab, v in zip(labels, m) if round(v)}
 
     vib = (
         per_class

@@ -45,6 +45,13 @@ def note(benchmark, **info) -> None:
     benchmark.extra_info["loadavg"] = load_average()
 
 
+_LOAD_AT_START: list = []
+
+
+def pytest_sessionstart(session):
+    _LOAD_AT_START[:] = load_average()
+
+
 def pytest_configure(config):
     config.addinivalue_line(
         "markers", "headline: the workloads re-run when the machine was busy (scripts/bench.sh)"
@@ -54,7 +61,7 @@ def pytest_configure(config):
 def _git(path: Path, *args: str) -> str:
     try:
         out = subprocess.run(
-            ["git", "-C", str(path), *args], capture_output=True, text=True, timeout=10
+            ["git", "-C", str(path), *args], check=False, capture_output=True, text=True, timeout=10
         )
         return out.stdout.strip()
     except (OSError, subprocess.SubprocessError):
@@ -82,11 +89,10 @@ def _mem_total_kb() -> int:
 
 
 def pytest_benchmark_update_machine_info(config, machine_info):
+    import gammatrace
     import numpy
     import pandas
     import scipy
-
-    import gammatrace
 
     pkg = Path(gammatrace.__file__).resolve().parent
     machine_info.update(
@@ -94,7 +100,7 @@ def pytest_benchmark_update_machine_info(config, machine_info):
             "cpu_model": _cpu_model(),
             "n_cores": os.cpu_count(),
             "mem_total_kb": _mem_total_kb(),
-            "loadavg_at_start": load_average(),
+            "loadavg_at_start": list(_LOAD_AT_START),
             "versions": {
                 "gammatrace": gammatrace.__version__,
                 "numpy": numpy.__version__,
@@ -102,7 +108,9 @@ def pytest_benchmark_update_machine_info(config, machine_info):
                 "pandas": pandas.__version__,
             },
             "gammatrace_path": str(pkg),
-            "gammatrace_commit": _git(pkg, "rev-parse", "HEAD"),
+            # a build from an exported tree has no git: its commit is given in the environment
+            "gammatrace_commit": _git(pkg, "rev-parse", "HEAD")
+            or os.environ.get("GAMMATRACE_COMMIT", "unknown"),
             "gammatrace_dirty": bool(_git(pkg, "status", "--porcelain", "--", ".")),
         }
     )

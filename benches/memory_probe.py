@@ -73,7 +73,7 @@ def main(argv=None) -> None:
         json.dumps(
             {
                 "workload": args.workload,
-                "n_atoms": int(len(positions)),
+                "n_atoms": len(positions),
                 "point_group": group,
                 "coordinate_bytes": int(positions.nbytes),
                 "rss_before_kb": rss_before,

@@ -14,10 +14,9 @@ from __future__ import annotations
 
 import functools
 
+import gammatrace as gt
 import numpy as np
 import pytest
-
-import gammatrace as gt
 from gammatrace.builders import c60
 
 from .conftest import note
@@ -48,7 +47,7 @@ def _symmetry_data(a):
     )
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def c60_case():
     s = c60()
     a = gt.analyze(s, tol=TOL)
@@ -90,8 +89,11 @@ def test_label_modes(benchmark):
     benchmark.group = GROUP
     benchmark.name = "ours-label-modes-C60"
     labels = benchmark.pedantic(
-        modes.label_modes, args=(sym,), kwargs={"hessian": hessian, "masses": masses},
-        rounds=5, iterations=1,
+        modes.label_modes,
+        args=(sym,),
+        kwargs={"hessian": hessian, "masses": masses},
+        rounds=5,
+        iterations=1,
     )
     note(benchmark, kind="ours", n_atoms=a.n_atoms)
     assert labels.counts() == a.vibrations().irreps

@@ -14,10 +14,9 @@ from __future__ import annotations
 import functools
 import os
 
+import gammatrace as gt
 import numpy as np
 import pytest
-
-import gammatrace as gt
 from gammatrace.batch import analyze_batch, ragged_from_structures
 
 from . import baselines
@@ -28,9 +27,9 @@ GROUP = "batch 1e4 conformers"
 THREADS = sorted({1, os.cpu_count() or 1})
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def data():
-    structures, expected, which, rot, shift = conformers(N_CONFORMERS)
+    structures, expected, which, rot, _shift = conformers(N_CONFORMERS)
     return structures, ragged_from_structures(structures), expected, which, rot
 
 

@@ -14,10 +14,9 @@ from __future__ import annotations
 
 import functools
 
+import gammatrace as gt
 import numpy as np
 import pytest
-
-import gammatrace as gt
 from gammatrace import _core
 
 from . import baselines
@@ -41,7 +40,7 @@ def _params():
     return out
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def reference(family: str, k: int):
     """Untimed analysis: the operations handed to the baselines and the expected answers."""
     a = gt.analyze(cluster(family, k), tol=TOL)

@@ -11,7 +11,6 @@ import os
 
 import numpy as np
 import pytest
-
 from gammatrace.batch import analyze_batch, ragged_from_file
 
 from . import baselines

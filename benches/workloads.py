@@ -13,7 +13,6 @@ import functools
 import os
 
 import numpy as np
-
 from gammatrace import get_table
 from gammatrace.builders import fcc_cluster, mackay_icosahedron, orbit_structure
 from gammatrace.io import Structure, write_xyz
@@ -31,7 +30,7 @@ CONFORMER_ATOMS = 30
 XYZ_TARGET_BYTES = 50_000_000
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def cluster(family: str, exponent: int) -> Structure:
     """The ~10^exponent-atom cluster of a family (``"Ih"`` or ``"Oh"``)."""
     if family == "Ih":
@@ -51,7 +50,7 @@ def _parent(group: str, orbit_seeds: list, numbers: list) -> Structure:
     return s
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def parents() -> tuple:
     """Three 30-atom parents: Td (24 + 6), D3h (12 + 12 + 6), C2v (7 × 4 + 2)."""
     td = _parent("Td", [[0.9, 1.7, 2.6], [1.9, 0.0, 0.0]], [1, 6])
@@ -96,7 +95,9 @@ def conformers(n: int = N_CONFORMERS, seed: int = SEED) -> tuple:
     base = np.stack([p.positions for _, p in par])[which] + noise
     pos = np.einsum("kij,kaj->kai", rot, base) + shift[:, None, :]
     nums = np.stack([p.numbers for _, p in par])[which]
-    structures = [Structure(nums[k], np.ascontiguousarray(pos[k]), "<conformer>", k) for k in range(n)]
+    structures = [
+        Structure(nums[k], np.ascontiguousarray(pos[k]), "<conformer>", k) for k in range(n)
+    ]
     expected = np.where(distorted, "C1", np.array([g for g, _ in par])[which])
     return structures, expected, which, rot, shift
 
