@@ -215,7 +215,7 @@ def make_plot(bench: dict, path: Path) -> None:
         ax.set_xlabel("number of atoms")
         ax.grid(True, which="both", alpha=0.3)
     axes[0].set_ylabel("median wall time (s)")
-    axes[0].legend(fontsize=7, loc="upper left")
+    axes[0].legend(fontsize=7, loc="lower right")
     fig.tight_layout()
     fig.savefig(path, dpi=90)
     plt.close(fig)
