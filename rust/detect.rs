@@ -239,6 +239,39 @@ pub fn find_point_group(
     Err(last)
 }
 
+/// Permutation and largest image distance of every given operation (matrices acting on
+/// `positions - center`), for operations that detection did not verify itself (huge
+/// structures verify only the generators; the rest are mapped on demand).
+///
+/// # Errors
+/// `structure::validate`'s errors, `BadTolerance`, and `NotASymmetry` / `AmbiguousImage` when
+/// an operation does not map the atoms onto themselves within `tol`.
+pub fn map_operations(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    center: [f64; 3],
+    ops: &[Mat3],
+    tol: f64,
+) -> Result<(Vec<Vec<u32>>, Vec<f64>)> {
+    structure::validate(positions, numbers)?;
+    if !(tol.is_finite() && tol > 0.0) {
+        return Err(Error::BadTolerance { value: tol });
+    }
+    let x: Vec<Vec3> = positions
+        .iter()
+        .map(|p| [p[0] - center[0], p[1] - center[1], p[2] - center[2]])
+        .collect();
+    let grid = Grid::build(&x, numbers, tol)?;
+    let mut perms = Vec::with_capacity(ops.len());
+    let mut devs = Vec::with_capacity(ops.len());
+    for m in ops {
+        let (perm, dev) = map_atoms(&grid, &x, numbers, m, tol)?;
+        perms.push(perm);
+        devs.push(dev);
+    }
+    Ok((perms, devs))
+}
+
 fn single_atom(center: Vec3) -> Symmetry {
     Symmetry {
         point_group: Family::Kh.name(),

@@ -216,6 +216,34 @@ mod glue {
         Ok(out)
     }
 
+    type MappedOperations<'py> = (Bound<'py, PyArray2<i64>>, Bound<'py, PyArray1<f64>>);
+
+    /// Permutations (k, n) and largest image distances (k,) of the given operations.
+    #[pyfunction]
+    fn map_operations<'py>(
+        py: Python<'py>,
+        positions: PyReadonlyArray2<'py, f64>,
+        numbers: PyReadonlyArray1<'py, i64>,
+        center: [f64; 3],
+        operations: PyReadonlyArray3<'py, f64>,
+        tol: f64,
+    ) -> PyResult<MappedOperations<'py>> {
+        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let num = slice1(&numbers, "numbers")?;
+        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let (perms, devs) = py
+            .detach(|| guarded(|| detect::map_operations(pos, num, center, ops, tol)))
+            .map_err(CoreError)?;
+        let n = pos.len();
+        let flat: Vec<i64> = perms
+            .iter()
+            .flat_map(|p| p.iter().map(|&j| j as i64))
+            .collect();
+        let arr = Array2::from_shape_vec((perms.len(), n), flat)
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        Ok((arr.into_pyarray(py), Array1::from(devs).into_pyarray(py)))
+    }
+
     /// Unshifted atoms per operation.
     #[pyfunction]
     fn count_unshifted<'py>(
@@ -585,6 +613,7 @@ mod glue {
     fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
         m.add_function(wrap_pyfunction!(find_point_group, m)?)?;
         m.add_function(wrap_pyfunction!(count_unshifted, m)?)?;
+        m.add_function(wrap_pyfunction!(map_operations, m)?)?;
         m.add_function(wrap_pyfunction!(shell_characters, m)?)?;
         m.add_function(wrap_pyfunction!(pi_characters, m)?)?;
         m.add_function(wrap_pyfunction!(orbital_contributions, m)?)?;

@@ -133,16 +133,21 @@ def test_mackay_site_analysis_from_generators_only(monkeypatch):
     import gammatrace.analysis as analysis_module
 
     atoms = ase_icosahedron(4)
-    full = site_analysis(gt.analyze(atoms))
+    full_analysis = gt.analyze(atoms)
+    assert full_analysis.all_verified
+    full = site_analysis(full_analysis)
     monkeypatch.setattr(analysis_module, "VERIFY_ALL_LIMIT", 1000)
     an = gt.analyze(atoms)
-    with pytest.raises(SymmetryError):
-        an.permutations  # noqa: B018 — only the generators were verified
+    assert not an.all_verified  # only E and the generators were mapped
     sparse = site_analysis(an)
+    assert "permutations" not in an.__dict__  # site analysis did not map the other operations
     assert [s.site_group for s in sparse.sites] == [s.site_group for s in full.sites]
     for a, b in zip(sparse.sites, full.sites):
         assert np.array_equal(a.stabiliser, b.stabiliser)
         assert np.array_equal(a.atoms, b.atoms)
+    assert [o.site_group for o in an.orbits] == [o.site_group for o in full_analysis.orbits]
+    # mapped on demand, the remaining permutations equal those of the full verification
+    assert np.array_equal(an.permutations, full_analysis.permutations)
 
 
 # --------------------------------------------------------------------------------------------

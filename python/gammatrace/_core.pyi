@@ -14,6 +14,15 @@ def find_point_group(
 ) -> dict[str, Any]:
     """Detect the point group; dict of group name, frame, operations, classes, permutations."""
 
+def map_operations(
+    positions: F64,
+    numbers: I64,
+    center: tuple[float, float, float],
+    operations: F64,
+    tol: float,
+) -> tuple[I64, F64]:
+    """Permutations (k, n_atoms) and largest image distances (k,) of given operations."""
+
 def count_unshifted(
     positions: F64, center: tuple[float, float, float], operations: F64, tol: float
 ) -> npt.NDArray[np.uint64]:

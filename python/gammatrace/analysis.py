@@ -32,8 +32,10 @@ __all__ = [
 
 #: Default distance tolerance in ångström (see DEVELOPERS.md, "Tolerance").
 DEFAULT_TOL = 0.01
-#: Verify every operation (and keep its permutation) while n_atoms * order stays below this.
-VERIFY_ALL_LIMIT = 20_000_000
+#: Verify every operation (and keep its permutation) while n_atoms * order stays below this;
+#: above it detection verifies E and the generators, and the other permutations are mapped
+#: on first use (:attr:`Analysis.permutations`).
+VERIFY_ALL_LIMIT = 2_000_000
 #: Group name reported for a single atom.
 ATOM_GROUP = "K_h"
 DEFAULT_BASES = ("atoms", "cartesian")
@@ -190,24 +192,36 @@ class Analysis:
     def permutations(self) -> np.ndarray:
         """``int64 (h, n_atoms)``: atom i goes to atom ``permutations[k, i]`` under op k.
 
+        Operations that detection did not verify itself (structures with n_atoms × order above
+        ``VERIFY_ALL_LIMIT`` verify only E and the generators) are mapped here, on first use,
+        with one lookup pass each.
+
         Raises
         ------
         SymmetryError
-            For structures so large that only the generators were verified (their
-            permutations are in :attr:`generator_permutations`).
+            If such an operation does not hold within the tolerance.
         """
+        from . import _core
+
         verified = list(self._raw["verified"])
         perms = np.asarray(self._raw["permutations"], dtype=np.int64)
         h = len(self.operation_matrices)
-        if sorted(verified) != list(range(h)):
-            raise SymmetryError(
-                f"only {len(verified)} of {h} operations were verified for this "
-                f"{self.n_atoms}-atom structure (n_atoms·order above {VERIFY_ALL_LIMIT}); "
-                "use generator_permutations"
-            )
-        out = np.empty_like(perms)
+        out = np.empty((h, self.n_atoms), dtype=np.int64)
         out[verified] = perms
+        missing = sorted(set(range(h)) - set(verified))
+        if missing:
+            s = self.structure
+            more, _ = _core.map_operations(
+                s.positions, s.numbers, tuple(self.center),
+                np.ascontiguousarray(self.operation_matrices[missing]), self.tol,
+            )
+            out[missing] = more
         return out
+
+    @property
+    def all_verified(self) -> bool:
+        """True when detection mapped every operation (small and mid-size structures)."""
+        return len(self._raw["verified"]) == len(self.operation_matrices)
 
     @property
     def generator_permutations(self) -> np.ndarray:
@@ -348,7 +362,12 @@ class Analysis:
     # ---------------------------------------------------------------- orbits
     @cached_property
     def orbits(self) -> list[Orbit]:
-        """Sets of symmetry-equivalent atoms, in order of their first atom."""
+        """Sets of symmetry-equivalent atoms, in order of their first atom, with site groups.
+
+        Costs one pass over the verified permutations (the generators' for huge structures);
+        the site group of each orbit comes from where the group's operations send one of its
+        atoms, composed through the multiplication table (no further pass over the atoms).
+        """
         from . import _core
 
         perms = self.generator_permutations
@@ -357,25 +376,31 @@ class Analysis:
         counts = np.bincount(ids)
         splits = np.split(order, np.cumsum(counts)[:-1])
         h = self.order
-        out = []
-        for atoms in splits:
-            size = len(atoms)
-            site_order = h // size if h else None
-            out.append(Orbit(atoms.tolist(), size, site_order, self._site_group(atoms[0], size)))
-        return out
+        names = self._site_groups(np.array([a[0] for a in splits], dtype=np.int64))
+        return [
+            Orbit(atoms.tolist(), len(atoms), h // len(atoms) if h else None, name)
+            for atoms, name in zip(splits, names)
+        ]
 
-    def _site_group(self, atom: int, size: int) -> str | None:
+    def _site_groups(self, representatives: np.ndarray) -> list:
+        """Schoenflies names of the stabilisers of the given atoms."""
         if self.table is None:
-            return ATOM_GROUP
-        try:
-            perms = self.permutations
-        except SymmetryError:
-            return None
-        stab = np.flatnonzero(perms[:, atom] == atom)
+            return [ATOM_GROUP] * len(representatives)
         from .identify import identify_operations
+        from .sites import _canonical_indices, _images
 
-        std = np.einsum("ij,kjl,ml->kim", self.frame, self.operation_matrices[stab], self.frame)
-        return identify_operations(std)
+        canon = _canonical_indices(self)
+        images = _images(self, representatives, canon)  # (h, k), rows = canonical operations
+        ops = self.table.operations
+        cache: dict = {}
+        out = []
+        for j, atom in enumerate(representatives):
+            stab = np.flatnonzero(images[:, j] == atom)
+            key = stab.tobytes()
+            if key not in cache:
+                cache[key] = identify_operations(ops[stab])
+            out.append(cache[key])
+        return out
 
     # ---------------------------------------------------------------- output
     def to_dict(self, bases: Sequence[Any] = DEFAULT_BASES, orbits: bool = False) -> dict:

@@ -91,12 +91,8 @@ def _images(analysis: Analysis, atoms: np.ndarray, canon: np.ndarray) -> np.ndar
     """
     h = len(canon)
     img = np.empty((h, len(atoms)), dtype=np.int64)
-    try:
-        perms = analysis.permutations
-    except SymmetryError:
-        perms = None
-    if perms is not None:
-        img[canon] = perms[:, atoms]
+    if analysis.all_verified or "permutations" in analysis.__dict__:
+        img[canon] = analysis.permutations[:, atoms]
         return img
     prod, _, ident = _group_tables(analysis.table.name)
     verified = np.asarray(analysis._raw["verified"], dtype=np.int64)
