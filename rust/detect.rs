@@ -13,8 +13,8 @@
 //!    maps a → a' in window(a) and b → b' in window(b) with |a'b'| ≈ |ab|, and is fixed by
 //!    (a', b') and its handedness: so the candidates are all such pairs, two matrices each.
 //!    A candidate is tested on a small probe of atoms with a loose tolerance (3·tol), refitted
-//!    by least squares (Kabsch) on the matches, tested on all atoms (a fixed sample of 4096
-//!    plus the two windows for structures above 20 000 atoms) at `tol`, and refitted again.
+//!    by least squares (Kabsch) on the matches, tested on all atoms (a fixed sample of 1024
+//!    plus the two windows for structures above 4096 atoms) at `tol`, and refitted again.
 //!    Nothing limits n.
 //! 4. The operations found must close under multiplication (checked exactly through the
 //!    images of a and b); the group is named from its content (orders of the rotations, number
@@ -25,8 +25,10 @@
 //!    group exactly. They are verified against the atoms (all of them when
 //!    n_atoms·order ≤ `verify_all_limit`, otherwise E and the generators), giving the
 //!    permutations and `max_deviation`.
-//! 6. If the found operations do not close or an ideal operation fails verification (a
-//!    structure at the edge of the tolerance), steps 3–5 are repeated with the candidate
+//! 6. If an ideal operation fails verification at some atom (a defect outside the screening
+//!    sample), steps 3–5 are repeated with that atom screened first (up to 16 such atoms).
+//!    Any other failure while screening on a sample repeats them screening on all atoms; after
+//!    that, failures (a structure at the edge of the tolerance) repeat them with the candidate
 //!    tolerance scaled by 0.85 and 0.7 before the error is returned.
 
 mod canonical;
@@ -48,8 +50,10 @@ pub const DEFAULT_VERIFY_ALL_LIMIT: usize = 20_000_000;
 
 /// Above this many atoms, candidate operations are screened on a sample of the atoms
 /// (the reported generators are still verified on all of them).
-const SAMPLE_ABOVE: usize = 20_000;
-const SAMPLE_SIZE: usize = 4096;
+const SAMPLE_ABOVE: usize = 4096;
+/// At most this many atoms found by failed verifications are screened first on retries.
+const MAX_EXTRA: usize = 16;
+const SAMPLE_SIZE: usize = 1024;
 
 /// Options of `find_point_group`.
 #[derive(Debug, Clone, PartialEq)]
@@ -204,10 +208,32 @@ pub fn find_point_group(
     let mut last = Error::GroupClosure {
         reason: "no candidate operations".into(),
     };
-    for factor in [1.0, 0.85, 0.7] {
-        match detect_general(&ctx, factor, center, opts) {
+    // Atoms that an ideal operation failed to map: screened first on the next attempt, so
+    // that a defect outside the screening sample cannot make the group look larger.
+    // Any other failure while screening on a sample switches to screening on all atoms
+    // (a defect outside the sample can also break closure); then the candidate tolerance
+    // shrinks.
+    let mut extra: Vec<usize> = Vec::new();
+    let mut sampled = positions.len() > SAMPLE_ABOVE;
+    let factors = [1.0, 0.85, 0.7];
+    let mut f = 0;
+    while f < factors.len() {
+        match detect_general(&ctx, factors[f], &extra, sampled, center, opts) {
             Ok(sym) => return Ok(sym),
-            Err(e) => last = e,
+            Err(Error::NotASymmetry { atom, distance })
+                if extra.len() < MAX_EXTRA && !extra.contains(&atom) =>
+            {
+                extra.push(atom);
+                last = Error::NotASymmetry { atom, distance };
+            }
+            Err(e) => {
+                last = e;
+                if sampled {
+                    sampled = false;
+                } else {
+                    f += 1;
+                }
+            }
         }
     }
     Err(last)
@@ -238,8 +264,15 @@ struct RawOp {
     order: usize,
 }
 
-fn detect_general(ctx: &Ctx, factor: f64, center: Vec3, opts: &DetectOptions) -> Result<Symmetry> {
-    let (raw, a, b) = enumerate(ctx, factor * ctx.tol)?;
+fn detect_general(
+    ctx: &Ctx,
+    factor: f64,
+    extra: &[usize],
+    sampled: bool,
+    center: Vec3,
+    opts: &DetectOptions,
+) -> Result<Symmetry> {
+    let (raw, a, b) = enumerate(ctx, factor * ctx.tol, extra, sampled)?;
     let raw = close_and_order(ctx, raw, a, b)?;
     let fam = identify(&raw)?;
     let fr = frame::standard_frame(ctx, fam, &raw)?;
@@ -400,7 +433,12 @@ fn pair_frame(p: &Vec3, q: &Vec3) -> Option<Mat3> {
 
 /// All operations of the structure found through the reference atoms (see the module doc),
 /// with the indices of a and b.
-fn enumerate(ctx: &Ctx, tol_raw: f64) -> Result<(Vec<RawOp>, usize, usize)> {
+fn enumerate(
+    ctx: &Ctx,
+    tol_raw: f64,
+    extra: &[usize],
+    sampled: bool,
+) -> Result<(Vec<RawOp>, usize, usize)> {
     let n = ctx.x.len();
     let tol = ctx.tol;
     let r: Vec<f64> = ctx.x.iter().map(norm).collect();
@@ -439,13 +477,15 @@ fn enumerate(ctx: &Ctx, tol_raw: f64) -> Result<(Vec<RawOp>, usize, usize)> {
 
     // Probe (loose screen) and acceptance set (strict test).
     let mut probe: Vec<usize> = vec![a, b];
+    probe.extend(extra.iter().copied().filter(|&i| i < n));
     probe.extend(spread(wa, 16));
     probe.extend(spread(wb, 16));
     let all: Vec<u32> = (0..n as u32).collect();
     probe.extend(spread(&all, 32));
     dedup_keep_order(&mut probe);
-    let accept: Vec<usize> = if n <= SAMPLE_ABOVE {
+    let accept: Vec<usize> = if !sampled {
         let mut v = vec![a, b];
+        v.extend(extra.iter().copied().filter(|&i| i < n));
         v.extend(0..n);
         v
     } else {
@@ -457,6 +497,27 @@ fn enumerate(ctx: &Ctx, tol_raw: f64) -> Result<(Vec<RawOp>, usize, usize)> {
     };
     let mut accept = accept;
     dedup_keep_order(&mut accept);
+    if accept.len() < n {
+        // Visit the sample in cell order: successive images then fall in nearby cells.
+        let mut chosen = vec![false; n];
+        for &i in &accept {
+            chosen[i] = true;
+        }
+        let front: Vec<usize> = [a, b]
+            .into_iter()
+            .chain(extra.iter().copied().filter(|&i| i < n))
+            .collect();
+        for &i in &front {
+            chosen[i] = false;
+        }
+        let rest = ctx
+            .grid
+            .atoms_in_cell_order()
+            .iter()
+            .map(|&i| i as usize)
+            .filter(|&i| chosen[i]);
+        accept = front.into_iter().chain(rest).collect();
+    }
 
     let mut found: Vec<RawOp> = Vec::new();
     let mut seen: HashMap<(usize, usize, bool), usize> = HashMap::new();

@@ -101,7 +101,7 @@ fn scale(m: &Mat3, s: f64) -> Mat3 {
 }
 
 /// Rotation matrix by `angle_rad` about the unit vector `u` (Rodrigues).
-fn rotation_matrix(u: &Vec3, angle_rad: f64) -> Mat3 {
+pub(crate) fn rotation_matrix(u: &Vec3, angle_rad: f64) -> Mat3 {
     let (s, c) = angle_rad.sin_cos();
     let t = 1.0 - c;
     [

@@ -4,17 +4,17 @@ and bad input."""
 
 from __future__ import annotations
 
+import gammatrace as gt
 import numpy as np
 import pytest
-
-import gammatrace as gt
+from conftest import ase_molecule, random_rotation
 from gammatrace.builders import c60, fcc_cluster, mackay_icosahedron, orbit_structure
-from conftest import ase_molecule, octahedral, random_rotation
 
-AXIAL = [f"{fam.replace('n', str(n))}" for n in list(range(2, 13)) + [24]
-         for fam in ("Cn", "Cnv", "Cnh", "Dn", "Dnh", "Dnd")] + [
-    f"S{2 * n}" for n in list(range(2, 13)) + [24]
-]
+AXIAL = [
+    f"{fam.replace('n', str(n))}"
+    for n in [*list(range(2, 13)), 24]
+    for fam in ("Cn", "Cnv", "Cnh", "Dn", "Dnh", "Dnd")
+] + [f"S{2 * n}" for n in [*list(range(2, 13)), 24]]
 OTHERS = ["C1", "Cs", "Ci", "T", "Td", "Th", "O", "Oh", "I", "Ih"]
 
 
@@ -76,16 +76,58 @@ def test_tolerance_keeps_and_loses_group(rng):
 # Benchmark Database (CCCBDB), "point group" entries (from memory); geometries from ASE's G2
 # collection (ase.build.molecule).
 HANDBOOK = {
-    "H2O": "C2v", "NH3": "C3v", "CH4": "Td", "CO2": "D∞h", "C2H2": "D∞h", "C2H4": "D2h",
-    "C6H6": "D6h", "C2H6": "D3d", "C3H4_D2d": "D2d", "HCN": "C∞v", "CH3Cl": "C3v",
-    "SiH4": "Td", "CCl4": "Td", "BF3": "D3h", "C4H4S": "C2v", "CH2Cl2": None,
-    "H2CCl2": "C2v", "cyclobutane": "D2d", "N2": "D∞h", "CO": "C∞v", "H2O2": "C2",
-    "trans-butane": "C2h", "C5H5N": "C2v", "NF3": "C3v", "PH3": "C3v", "SF6": None,
-    "C3H6_D3h": "D3h", "HCOOH": "Cs", "CH3CH2OH": "Cs", "isobutane": "C3v", "C2Cl4": "D2h",
-    "CF4": "Td", "SiCl4": "Td", "O3": "C2v", "allene": None, "ClF3": "C2v", "N2O": "C∞v",
-    "CS2": "D∞h", "OCS": "C∞v", "NCCN": "D∞h", "butadiene": "C2h", "H2CO": "C2v",
-    "CH3CN": "C3v", "C2F4": "D2h", "BCl3": "D3h", "Si2H6": "D3d", "C3H8": "C2v",
-    "CH3OCH3": "C2v", "C4H4O": "C2v", "CH3COCH3": "C2v", "NO2": "C2v", "SO2": "C2v",
+    "H2O": "C2v",
+    "NH3": "C3v",
+    "CH4": "Td",
+    "CO2": "D∞h",
+    "C2H2": "D∞h",
+    "C2H4": "D2h",
+    "C6H6": "D6h",
+    "C2H6": "D3d",
+    "C3H4_D2d": "D2d",
+    "HCN": "C∞v",
+    "CH3Cl": "C3v",
+    "SiH4": "Td",
+    "CCl4": "Td",
+    "BF3": "D3h",
+    "C4H4S": "C2v",
+    "CH2Cl2": None,
+    "H2CCl2": "C2v",
+    "cyclobutane": "D2d",
+    "N2": "D∞h",
+    "CO": "C∞v",
+    "H2O2": "C2",
+    "trans-butane": "C2h",
+    "C5H5N": "C2v",
+    "NF3": "C3v",
+    "PH3": "C3v",
+    "SF6": None,
+    "C3H6_D3h": "D3h",
+    "HCOOH": "Cs",
+    "CH3CH2OH": "Cs",
+    "isobutane": "C3v",
+    "C2Cl4": "D2h",
+    "CF4": "Td",
+    "SiCl4": "Td",
+    "O3": "C2v",
+    "allene": None,
+    "ClF3": "C2v",
+    "N2O": "C∞v",
+    "CS2": "D∞h",
+    "OCS": "C∞v",
+    "NCCN": "D∞h",
+    "butadiene": "C2h",
+    "H2CO": "C2v",
+    "CH3CN": "C3v",
+    "C2F4": "D2h",
+    "BCl3": "D3h",
+    "Si2H6": "D3d",
+    "C3H8": "C2v",
+    "CH3OCH3": "C2v",
+    "C4H4O": "C2v",
+    "CH3COCH3": "C2v",
+    "NO2": "C2v",
+    "SO2": "C2v",
 }
 
 
@@ -152,7 +194,8 @@ def test_to_dict_follows_the_interface():
     assert d["classes"][2]["proper"] is False and d["classes"][2]["angle"] == 0.0
     assert d["representations"]["atoms"] == {"characters": [4, 1, 2], "irreps": {"A1": 2, "E": 1}}
     assert d["representations"]["cartesian"] == {
-        "characters": [12, 0, 2], "irreps": {"A1": 3, "A2": 1, "E": 4}
+        "characters": [12, 0, 2],
+        "irreps": {"A1": 3, "A2": 1, "E": 4},
     }
     assert d["vibrations"]["irreps"] == {"A1": 2, "E": 2}
     assert d["vibrations"]["modes"] == 6

@@ -5,14 +5,13 @@ from __future__ import annotations
 import json
 import os
 
+import gammatrace as gt
 import numpy as np
 import pytest
-
-import gammatrace as gt
+from conftest import ase_molecule
 from gammatrace.batch import analyze_batch, ragged_from_file
 from gammatrace.demo import ethane
 from gammatrace.io import Structure, atomic_numbers, write_xyz
-from conftest import ase_molecule
 
 
 def torsion_scan(n: int = 25) -> list[Structure]:
@@ -101,8 +100,10 @@ def test_screen_cli_writes_tables_and_resumes(tmp_path, capsys):
     assert len(pd.read_csv(csv_out)) == 20
     pq_out = tmp_path / "rows.parquet"
     chart = tmp_path / "chart.png"
-    assert main(["screen", str(path), "--out", str(pq_out), "--no-progress",
-                 "--chart", str(chart)]) == 0
+    assert (
+        main(["screen", str(path), "--out", str(pq_out), "--no-progress", "--chart", str(chart)])
+        == 0
+    )
     frame = pd.read_parquet(pq_out)
     assert frame["point_group"].tolist() == [expected_group((k * 15) % 120) for k in range(20)]
     assert chart.stat().st_size > 1000
@@ -151,10 +152,16 @@ def test_distributed_equals_local(tmp_path):
         ),
         output="pandas",
     )
-    with distributed.LocalCluster(
-        n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1",
-        dashboard_address=None,
-    ) as cluster, distributed.Client(cluster) as client:
+    with (
+        distributed.LocalCluster(
+            n_workers=2,
+            threads_per_worker=1,
+            processes=True,
+            host="127.0.0.1",
+            dashboard_address=None,
+        ) as cluster,
+        distributed.Client(cluster) as client,
+    ):
         remote = analyze_distributed(paths, client, frames_per_partition=4)
     cols = ["source", "index", "point_group", "gamma_vib", "n_ir", "n_raman", "symmetry_number"]
     assert remote[cols].to_dict("list") == local[cols].to_dict("list")

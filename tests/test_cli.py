@@ -4,8 +4,6 @@ from __future__ import annotations
 
 import json
 
-import pytest
-
 from gammatrace.cli import main
 
 WATER = """3
@@ -44,9 +42,20 @@ def test_analyze_json_lines(tmp_path, capsys):
     assert [r["index"] for r in rows] == [0, 1]
     assert [r["point_group"] for r in rows] == ["C2v", "C3v"]
     for r in rows:
-        for key in ("source", "index", "n_atoms", "point_group", "order", "tolerance",
-                    "max_deviation", "classes", "representations", "vibrations",
-                    "symmetry_number", "chiral"):
+        for key in (
+            "source",
+            "index",
+            "n_atoms",
+            "point_group",
+            "order",
+            "tolerance",
+            "max_deviation",
+            "classes",
+            "representations",
+            "vibrations",
+            "symmetry_number",
+            "chiral",
+        ):
             assert key in r
         assert r["source"] == str(path)
     assert rows[1]["representations"]["cartesian"]["irreps"] == {"A1": 3, "A2": 1, "E": 4}
@@ -66,7 +75,7 @@ def test_bad_frame_is_reported_in_place_and_exit_1(tmp_path, capsys):
 
 
 def test_missing_file_exit_1(tmp_path, capsys):
-    status, out, err = run(capsys, ["analyze", str(tmp_path / "nope.xyz"), "--format", "json"])
+    status, out, _err = run(capsys, ["analyze", str(tmp_path / "nope.xyz"), "--format", "json"])
     assert status == 1
     assert json.loads(out)["error"]["type"] == "ReadError"
 
@@ -90,8 +99,17 @@ def test_extra_bases_from_cli(tmp_path, capsys):
     path = tmp_path / "w.xyz"
     path.write_text(WATER)
     status, out, err = run(
-        capsys, ["analyze", str(path), "--format", "json", "--basis", "bonds",
-                 "--basis", "orbitals:O=sp,H=s"]
+        capsys,
+        [
+            "analyze",
+            str(path),
+            "--format",
+            "json",
+            "--basis",
+            "bonds",
+            "--basis",
+            "orbitals:O=sp,H=s",
+        ],
     )
     assert status == 0, err
     reps = json.loads(out)["representations"]

@@ -3,12 +3,11 @@ Burnside's lemma, and the literal method (traces of full matrices) as an indepen
 
 from __future__ import annotations
 
+import gammatrace as gt
 import numpy as np
 import pytest
-
-import gammatrace as gt
-from gammatrace.builders import orbit_structure
 from conftest import ase_molecule, octahedral, random_rotation
+from gammatrace.builders import orbit_structure
 
 
 def test_d_orbitals_at_octahedral_site_split_eg_t2g():
@@ -27,7 +26,9 @@ def test_octahedral_sigma_donors_span_a1g_eg_t1u():
     # the same six ligand σ orbitals as bond vectors pointing at the metal
     bonds = np.array([[k, 0] for k in range(1, 7)])
     assert res.representation(gt.Basis.bond_stretches(bonds)).irreps == {
-        "A1g": 1, "Eg": 1, "T1u": 1
+        "A1g": 1,
+        "Eg": 1,
+        "T1u": 1,
     }
 
 
@@ -74,9 +75,10 @@ def test_user_vectors_reproduce_cartesian():
     symbols, pos = ase_molecule("NH3")
     res = gt.analyze(symbols, pos)
     vec = np.broadcast_to(np.eye(3), (len(symbols), 3, 3))
-    assert res.representation(gt.Basis.vector_set(vec)).irreps == res.representation(
-        "cartesian"
-    ).irreps
+    assert (
+        res.representation(gt.Basis.vector_set(vec)).irreps
+        == res.representation("cartesian").irreps
+    )
 
 
 def test_bad_bases_raise_typed_errors():
@@ -99,8 +101,30 @@ def test_bad_bases_raise_typed_errors():
 
 
 # ------------------------------------------------------------------ random symmetric structures
-GROUPS = ["C2v", "C3v", "C4h", "D3h", "D2d", "D4h", "D5d", "S6", "S8", "C6", "D6", "Td", "Th",
-          "O", "Oh", "I", "Ih", "Cs", "Ci", "C2h", "D7h", "C5v"]
+GROUPS = [
+    "C2v",
+    "C3v",
+    "C4h",
+    "D3h",
+    "D2d",
+    "D4h",
+    "D5d",
+    "S6",
+    "S8",
+    "C6",
+    "D6",
+    "Td",
+    "Th",
+    "O",
+    "Oh",
+    "I",
+    "Ih",
+    "Cs",
+    "Ci",
+    "C2h",
+    "D7h",
+    "C5v",
+]
 
 
 def random_symmetric(group: str, rng: np.random.Generator, n_seeds: int = 3):
@@ -149,8 +173,8 @@ def test_counted_characters_equal_traces_of_full_matrices(group, rng):
 
 
 def test_worked_table_lists_unshifted_atoms():
-    # Cotton ch. 10 worked example for water (transposed to the yz plane): unshifted atoms 3, 1, 1, 3 under
-    # E, C2, σv(xz), σv'(yz); contributions 3, -1, 1, 1; Γ_3N = 9, -1, 1, 3.
+    # Cotton ch. 10 worked example for water (transposed to the yz plane): unshifted atoms
+    # 3, 1, 1, 3 under E, C2, σv(xz), σv'(yz); contributions 3, -1, 1, 1; Γ_3N = 9, -1, 1, 3.
     res = gt.analyze(*ase_molecule("H2O"))
     rep = res.representation("cartesian")
     assert rep.unshifted.tolist() == [3, 1, 1, 3]

@@ -12,10 +12,9 @@ The irreps lists were written down from memory of these sources.
 
 from __future__ import annotations
 
+import gammatrace as gt
 import numpy as np
 import pytest
-
-import gammatrace as gt
 from conftest import ase_molecule, octahedral, square_planar, trigonal_bipyramid
 
 # name -> (structure factory, point group, Γ_vib, IR-active count, Raman-active count)
@@ -53,8 +52,16 @@ CASES = {
         lambda: ase_molecule("C6H6"),
         "D6h",
         {
-            "A1g": 2, "A2g": 1, "B2g": 2, "E1g": 1, "E2g": 4,
-            "A2u": 1, "B1u": 2, "B2u": 2, "E1u": 3, "E2u": 2,
+            "A1g": 2,
+            "A2g": 1,
+            "B2g": 2,
+            "E1g": 1,
+            "E2g": 4,
+            "A2u": 1,
+            "B1u": 2,
+            "B2u": 2,
+            "E1u": 3,
+            "E2u": 2,
         },
         4,
         7,
@@ -117,8 +124,10 @@ def test_published_vibrational_analysis(name):
     assert vib.n_ir == n_ir
     assert vib.n_raman == n_raman
     dims = {ir.label: ir.dim for ir in res.table.irreps}
-    linear = group.endswith("∞h") or group.endswith("∞v")
-    assert sum(dims[k] * v for k, v in vib.irreps.items()) == 3 * len(symbols) - (5 if linear else 6)
+    linear = group.endswith(("∞h", "∞v"))
+    assert sum(dims[k] * v for k, v in vib.irreps.items()) == 3 * len(symbols) - (
+        5 if linear else 6
+    )
 
 
 def test_water_vibrations_are_2a1_plus_b2():
@@ -140,8 +149,16 @@ def test_c60_vibrations():
     assert res.point_group == "Ih"
     vib = res.vibrations()
     assert vib.irreps == {
-        "Ag": 2, "T1g": 3, "T2g": 4, "Gg": 6, "Hg": 8,
-        "Au": 1, "T1u": 4, "T2u": 5, "Gu": 6, "Hu": 7,
+        "Ag": 2,
+        "T1g": 3,
+        "T2g": 4,
+        "Gg": 6,
+        "Hg": 8,
+        "Au": 1,
+        "T1u": 4,
+        "T2u": 5,
+        "Gu": 6,
+        "Hu": 7,
     }
     assert vib.ir_active == {"T1u": 4}
     assert vib.raman_active == {"Ag": 2, "Hg": 8}
@@ -159,8 +176,18 @@ def test_centrosymmetric_structures_report_mutual_exclusion():
 
 # Rotational symmetry numbers. Source: NIST-JANAF / common practice in statistical
 # thermodynamics (e.g. McQuarrie, Statistical Mechanics, table 8.x), from memory.
-SIGMA = {"H2O": 2, "NH3": 3, "CH4": 12, "C6H6": 12, "CO2": 2, "HCN": 1, "C2H6": 6,
-         "C2H4": 4, "CH3Cl": 3, "CCl4": 12}
+SIGMA = {
+    "H2O": 2,
+    "NH3": 3,
+    "CH4": 12,
+    "C6H6": 12,
+    "CO2": 2,
+    "HCN": 1,
+    "C2H6": 6,
+    "C2H4": 4,
+    "CH3Cl": 3,
+    "CCl4": 12,
+}
 
 
 @pytest.mark.parametrize("name", sorted(SIGMA))

@@ -120,7 +120,8 @@ def test_linear_groups_match_printed_labels_and_functions(name):
 
 @pytest.mark.parametrize("name", ["C∞v", "D∞h"])
 def test_linear_characters_are_2cos_m_phi(name):
-    # Source: Cotton, Appendix IIA, C∞v: χ_Π(C(φ)) = 2cosφ, χ_Δ = 2cos2φ, χ_Φ = 2cos3φ  # from memory
+    # Source: Cotton, Appendix IIA, C∞v: χ_Π(C(φ)) = 2cosφ, χ_Δ = 2cos2φ, χ_Φ = 2cos3φ
+    # (from memory)
     t = get_table(name)
     assert t.order is None and t.is_linear
     greek = ["Π", "Δ", "Φ", "Γ", "H", "I"]

@@ -53,10 +53,10 @@ __all__ = [
     "TableError",
     "ToleranceError",
     "Vibrations",
+    "__version__",
     "analyze",
     "analyze_many",
     "get_table",
     "read_structures",
     "read_xyz",
-    "__version__",
 ]

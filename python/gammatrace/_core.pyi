@@ -4,9 +4,10 @@ from typing import Any
 
 import numpy as np
 import numpy.typing as npt
+from typing_extensions import TypeAlias
 
-F64 = npt.NDArray[np.float64]
-I64 = npt.NDArray[np.int64]
+F64: TypeAlias = npt.NDArray[np.float64]
+I64: TypeAlias = npt.NDArray[np.int64]
 
 def find_point_group(
     positions: F64, numbers: I64, tol: float, linear_n: int, verify_all_limit: int

@@ -9,16 +9,17 @@ DEVELOPERS.md), and then builds whatever representations are asked for, lazily.
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass
 from functools import cached_property
-from typing import Any, Iterable, Iterator, Sequence
+from typing import Any
 
 import numpy as np
 
 from .errors import BasisError, GammatraceError, InputError, SymmetryError
 from .io import FrameError, Structure, as_structure, element_data, read_structures
 from .representations import Basis, Representation, build_representation, parse_basis
-from .tables import ClassInfo, get_table, LINEAR_SUBGROUP_N
+from .tables import LINEAR_SUBGROUP_N, ClassInfo, get_table
 
 __all__ = [
     "DEFAULT_TOL",
@@ -264,16 +265,17 @@ class Analysis:
             When the characters do not reduce to integer multiplicities.
         """
         b = parse_basis(basis)
-        key = None if b.kind in ("vectors",) or b.bonds is not None else repr(
-            (b.kind, sorted((str(k), v) for k, v in (b.shells or {}).items()), b.bond_scale)
+        key = (
+            None
+            if b.kind in ("vectors",) or b.bonds is not None
+            else repr(
+                (b.kind, sorted((str(k), v) for k, v in (b.shells or {}).items()), b.bond_scale)
+            )
         )
         cache = self.__dict__.setdefault("_rep_cache", {})
         if key is not None and key in cache:
             return cache[key]
-        if self.table is None:
-            rep = _atom_representation(self, b)
-        else:
-            rep = build_representation(self, b)
+        rep = _atom_representation(self, b) if self.table is None else build_representation(self, b)
         if key is not None:
             cache[key] = rep
         return rep
@@ -467,9 +469,7 @@ def analyze_structure(s: Structure, tol: float) -> Analysis:
     """Analyse a :class:`Structure` (no input coercion)."""
     from . import _core
 
-    raw = _core.find_point_group(
-        s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT
-    )
+    raw = _core.find_point_group(s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT)
     return Analysis(s, raw, tol)
 
 

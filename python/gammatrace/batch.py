@@ -14,8 +14,9 @@ from __future__ import annotations
 
 import math
 import os
+from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass
-from typing import Any, Callable, Iterable, Iterator, Sequence
+from typing import Any, Callable
 
 import numpy as np
 
@@ -26,14 +27,27 @@ __all__ = [
     "Ragged",
     "analyze_batch",
     "iter_batch",
-    "ragged_from_structures",
     "ragged_from_file",
+    "ragged_from_structures",
     "to_dataframe",
 ]
 
 COLUMNS = (
-    "source", "index", "n_atoms", "point_group", "order", "max_deviation", "symmetry_number",
-    "chiral", "gamma_vib", "n_modes", "n_fundamentals", "n_ir", "n_raman", "error_type", "error",
+    "source",
+    "index",
+    "n_atoms",
+    "point_group",
+    "order",
+    "max_deviation",
+    "symmetry_number",
+    "chiral",
+    "gamma_vib",
+    "n_modes",
+    "n_fundamentals",
+    "n_ir",
+    "n_raman",
+    "error_type",
+    "error",
 )
 DEFAULT_CHUNK = 8192
 
@@ -59,7 +73,7 @@ class Ragged:
     def __len__(self) -> int:
         return len(self.offsets) - 1
 
-    def slice(self, a: int, b: int) -> "Ragged":
+    def slice(self, a: int, b: int) -> Ragged:
         """Structures a..b (offsets rebased to zero)."""
         o = self.offsets[a : b + 1]
         return Ragged(
@@ -105,7 +119,7 @@ def ragged_from_structures(structures: Iterable[Any]) -> Ragged:
 
 
 def ragged_from_file(path: str | os.PathLike) -> Ragged:
-    """Read a multi-frame XYZ file straight into ragged arrays (Rust reader, no per-frame objects)."""
+    """Read a multi-frame XYZ file into ragged arrays (Rust reader, no per-frame objects)."""
     from .io import read_xyz_raw
 
     raw = read_xyz_raw(path)
@@ -179,7 +193,7 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
     rot = np.asarray(table.rotation_characters, dtype=np.float64)
     n = n_atoms[rows]
     if table.is_linear:
-        rz = [ir for ir in table.irreps if "Rz" in ir.functions][0]
+        rz = next(ir for ir in table.irreps if "Rz" in ir.functions)
         rot = rot - np.asarray(rz.characters, dtype=np.float64)
         modes = np.where(n > 1, 3 * n - 5, 0)
     else:
@@ -231,8 +245,12 @@ def _run_chunk(chunk: Ragged, tol: float, n_threads: int) -> dict:
     cols["index"] = chunk.indices.copy()
     cols["n_atoms"] = np.diff(chunk.offsets)
     raw = _core.find_point_groups_batch(
-        chunk.positions, chunk.numbers, np.ascontiguousarray(chunk.offsets), tol,
-        LINEAR_SUBGROUP_N, n_threads,
+        chunk.positions,
+        chunk.numbers,
+        np.ascontiguousarray(chunk.offsets),
+        tol,
+        LINEAR_SUBGROUP_N,
+        n_threads,
     )
     groups = np.asarray(raw["point_group"], dtype=object)
     cols["max_deviation"] = np.asarray(raw["max_deviation"], dtype=np.float64)
@@ -299,7 +317,8 @@ def iter_batch(
 def _concat(parts: Sequence[dict]) -> dict:
     if not parts:
         return {k: v for k, v in _empty_columns(0).items()} | {
-            "source": np.zeros(0, dtype=object), "index": np.zeros(0, np.int64)
+            "source": np.zeros(0, dtype=object),
+            "index": np.zeros(0, np.int64),
         }
     return {k: np.concatenate([p[k] for p in parts]) for k in COLUMNS}
 
@@ -337,8 +356,11 @@ def analyze_batch(
         Columns as in :data:`COLUMNS`; failed structures have ``error_type``/``error`` set.
     """
     data = _as_ragged(structures)
-    cols = _concat(list(iter_batch(data, tol=tol, n_threads=n_threads,
-                                   chunk_size=chunk_size, progress=progress)))
+    cols = _concat(
+        list(
+            iter_batch(data, tol=tol, n_threads=n_threads, chunk_size=chunk_size, progress=progress)
+        )
+    )
     return convert(cols, output)
 
 

@@ -15,11 +15,11 @@ from .io import Structure
 
 __all__ = [
     "GOLDEN",
+    "c60",
+    "fcc_cluster",
     "icosahedron_vertices",
     "mackay_icosahedron",
     "mackay_size",
-    "fcc_cluster",
-    "c60",
     "orbit_structure",
 ]
 
@@ -27,7 +27,7 @@ GOLDEN = (1.0 + 5.0**0.5) / 2.0
 
 
 def icosahedron_vertices() -> np.ndarray:
-    """The 12 vertices (0, ±1, ±φ) and cyclic permutations: edge length 2, C5 as in DEVELOPERS.md."""
+    """The 12 vertices: cyclic permutations of (0, ±1, ±φ); edge 2, C5 as in DEVELOPERS.md."""
     base = np.array([(0.0, s1, s2 * GOLDEN) for s1 in (-1, 1) for s2 in (-1, 1)])
     return np.concatenate([base, base[:, [2, 0, 1]], base[:, [1, 2, 0]]])
 

@@ -12,7 +12,8 @@ import argparse
 import json
 import sys
 import traceback
-from typing import Any, Sequence
+from collections.abc import Sequence
+from typing import Any
 
 from .errors import GammatraceError
 
@@ -38,7 +39,9 @@ def _cmd_analyze(args: argparse.Namespace) -> int:
     from .io import FrameError
     from .representations import parse_basis
 
-    bases = ["atoms", "cartesian"] + [b for b in (args.basis or []) if b not in ("atoms", "cartesian")]
+    bases = ["atoms", "cartesian"] + [
+        b for b in (args.basis or []) if b not in ("atoms", "cartesian")
+    ]
     try:
         for spec in bases:
             parse_basis(spec)
@@ -65,8 +68,9 @@ def _cmd_analyze(args: argparse.Namespace) -> int:
 
                 os.makedirs(args.draw, exist_ok=True)
                 stem = os.path.splitext(os.path.basename(result.structure.source))[0] or "stdin"
-                draw_symmetry(result, os.path.join(args.draw,
-                                                   f"{stem}_{result.structure.index}.png"))
+                draw_symmetry(
+                    result, os.path.join(args.draw, f"{stem}_{result.structure.index}.png")
+                )
             if args.format == "json":
                 _write(_dump(result.to_dict(bases, orbits=args.orbits)) + "\n")
             else:
@@ -77,8 +81,9 @@ def _cmd_analyze(args: argparse.Namespace) -> int:
                 _write("\n")
         except GammatraceError as exc:
             status = 1
-            err = FrameError(result.structure.source, result.structure.index,
-                             type(exc).__name__, str(exc))
+            err = FrameError(
+                result.structure.source, result.structure.index, type(exc).__name__, str(exc)
+            )
             if args.format == "json":
                 _write(_dump(err.to_dict()) + "\n")
             _fail(exc, args.traceback)
@@ -139,16 +144,21 @@ def _cmd_screen(args: argparse.Namespace) -> int:
     )
     groups = summary["groups"]
     n = summary["n"]
-    lines = [f"screened {n} structures" + (f" ({summary['skipped']} already done)"
-                                            if summary["skipped"] else "")]
+    lines = [
+        f"screened {n} structures"
+        + (f" ({summary['skipped']} already done)" if summary["skipped"] else "")
+    ]
     for g, members in sorted(groups.items(), key=lambda kv: (-len(kv[1]), kv[0])):
         shown = ", ".join(members[: args.show])
         more = f", ... (+{len(members) - args.show})" if len(members) > args.show else ""
-        lines.append(f"  {g:<6} {len(members):>9}  {100 * len(members) / max(n, 1):5.1f}%  "
-                     f"{shown}{more}")
+        lines.append(
+            f"  {g:<6} {len(members):>9}  {100 * len(members) / max(n, 1):5.1f}%  {shown}{more}"
+        )
     if summary["failures"]:
-        lines.append(f"  failed {len(summary['failures']):>9}  " +
-                     ", ".join(summary["failures"][: args.show]))
+        lines.append(
+            f"  failed {len(summary['failures']):>9}  "
+            + ", ".join(summary["failures"][: args.show])
+        )
     print("\n".join(lines), file=sys.stderr if args.out is None else sys.stdout)
     if args.chart:
         from .pictures import plot_group_counts
@@ -175,16 +185,28 @@ def _parser() -> argparse.ArgumentParser:
 
     a = sub.add_parser("analyze", help="point group, representations and vibrations")
     a.add_argument("paths", nargs="+", metavar="PATH", help="XYZ file(s), '-' for stdin")
-    a.add_argument("--tol", type=float, default=DEFAULT_TOL,
-                   help=f"distance tolerance in Å (default {DEFAULT_TOL})")
+    a.add_argument(
+        "--tol",
+        type=float,
+        default=DEFAULT_TOL,
+        help=f"distance tolerance in Å (default {DEFAULT_TOL})",
+    )
     a.add_argument("--format", choices=("text", "json"), default="text")
-    a.add_argument("--basis", action="append", metavar="SPEC",
-                   help="extra basis: pi, bonds, bond_vectors, orbitals:Fe=spd,H=s "
-                        "(repeatable; atoms and cartesian are always included)")
+    a.add_argument(
+        "--basis",
+        action="append",
+        metavar="SPEC",
+        help="extra basis: pi, bonds, bond_vectors, orbitals:Fe=spd,H=s "
+        "(repeatable; atoms and cartesian are always included)",
+    )
     a.add_argument("--orbits", action="store_true", help="list symmetry-distinct atoms")
     a.add_argument("--brief", action="store_true", help="text: omit the per-class tables")
-    a.add_argument("--draw", default=None, metavar="DIR",
-                   help="write a PNG of each structure with its symmetry elements into DIR")
+    a.add_argument(
+        "--draw",
+        default=None,
+        metavar="DIR",
+        help="write a PNG of each structure with its symmetry elements into DIR",
+    )
     a.set_defaults(func=_cmd_analyze)
 
     t = sub.add_parser("table", help="the character table of a point group")
@@ -201,14 +223,23 @@ def _parser() -> argparse.ArgumentParser:
     sc = sub.add_parser("screen", help="batch-screen ensembles into a table")
     sc.add_argument("paths", nargs="+", metavar="PATH", help="multi-frame XYZ file(s)")
     sc.add_argument("--out", default=None, help="output table (.jsonl, .csv or .parquet)")
-    sc.add_argument("--out-format", choices=("jsonl", "csv", "parquet"), default=None,
-                    help="override the format implied by --out's extension")
-    sc.add_argument("--tol", type=float, default=DEFAULT_TOL,
-                    help=f"distance tolerance in Å (default {DEFAULT_TOL})")
+    sc.add_argument(
+        "--out-format",
+        choices=("jsonl", "csv", "parquet"),
+        default=None,
+        help="override the format implied by --out's extension",
+    )
+    sc.add_argument(
+        "--tol",
+        type=float,
+        default=DEFAULT_TOL,
+        help=f"distance tolerance in Å (default {DEFAULT_TOL})",
+    )
     sc.add_argument("--threads", type=int, default=0, help="core threads (0 = all cores)")
     sc.add_argument("--chunk", type=int, default=8192, help="structures per chunk")
-    sc.add_argument("--resume", action="store_true",
-                    help="skip frames already in --out (JSON Lines / CSV)")
+    sc.add_argument(
+        "--resume", action="store_true", help="skip frames already in --out (JSON Lines / CSV)"
+    )
     sc.add_argument("--no-progress", action="store_true", help="no progress bar")
     sc.add_argument("--show", type=int, default=5, help="frames listed per point group")
     sc.add_argument("--chart", default=None, help="PNG bar chart of point-group counts")
@@ -228,8 +259,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except SystemExit as exc:  # argparse: 2 for a bad command line, 0 for --help
         return int(exc.code or 0)
     if getattr(args, "tol", 1.0) is not None and getattr(args, "tol", 1.0) <= 0:
-        print(f"gammatrace: --tol must be a positive distance in Å, got {args.tol}",
-              file=sys.stderr)
+        print(
+            f"gammatrace: --tol must be a positive distance in Å, got {args.tol}", file=sys.stderr
+        )
         return 2
     try:
         return int(args.func(args))

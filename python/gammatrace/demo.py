@@ -18,7 +18,7 @@ from .builders import c60, fcc_cluster, mackay_icosahedron
 from .errors import InputError
 from .io import Structure, write_xyz
 
-__all__ = ["run_demo", "ethane", "reference_molecules"]
+__all__ = ["ethane", "reference_molecules", "run_demo"]
 
 
 def ethane(torsion_deg: float, cc: float = 1.535, ch: float = 1.094, hcc_deg: float = 111.2):
@@ -38,11 +38,21 @@ def ethane(torsion_deg: float, cc: float = 1.535, ch: float = 1.094, hcc_deg: fl
 def reference_molecules() -> dict[str, tuple[list[str], np.ndarray]]:
     """Idealised small molecules (typical bond lengths and angles)."""
     a = np.radians(104.5 / 2)
-    water = (["O", "H", "H"], np.array([[0, 0, 0], [0, 0.958 * np.sin(a), -0.958 * np.cos(a)],
-                                        [0, -0.958 * np.sin(a), -0.958 * np.cos(a)]]))
+    water = (
+        ["O", "H", "H"],
+        np.array(
+            [
+                [0, 0, 0],
+                [0, 0.958 * np.sin(a), -0.958 * np.cos(a)],
+                [0, -0.958 * np.sin(a), -0.958 * np.cos(a)],
+            ]
+        ),
+    )
     t = 1.087 / np.sqrt(3)
-    methane = (["C"] + ["H"] * 4,
-               np.array([[0, 0, 0], [t, t, t], [t, -t, -t], [-t, t, -t], [-t, -t, t]]))
+    methane = (
+        ["C"] + ["H"] * 4,
+        np.array([[0, 0, 0], [t, t, t], [t, -t, -t], [-t, t, -t], [-t, -t, t]]),
+    )
     ang = np.radians(np.arange(6) * 60.0)
     ring = np.stack([np.cos(ang), np.sin(ang), np.zeros(6)], 1)
     benzene = (["C"] * 6 + ["H"] * 6, np.vstack([1.397 * ring, 2.481 * ring]))

@@ -18,7 +18,8 @@ with the ``spawn`` method), never ``fork`` a process that already runs the Rust 
 from __future__ import annotations
 
 import os
-from typing import Any, Sequence
+from collections.abc import Sequence
+from typing import Any
 
 from .errors import InputError
 
@@ -40,7 +41,9 @@ def plan_partitions(
             parts.append((path, 0, None))
             continue
         if frames_per_partition < 1:
-            raise InputError(f"frames_per_partition: must be at least 1, got {frames_per_partition}")
+            raise InputError(
+                f"frames_per_partition: must be at least 1, got {frames_per_partition}"
+            )
         from .batch import ragged_from_file
 
         n = len(ragged_from_file(path))

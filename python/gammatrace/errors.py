@@ -9,15 +9,15 @@ handlers keep working. The Rust core's ``Error`` variants map onto exactly one c
 from __future__ import annotations
 
 __all__ = [
+    "BasisError",
     "GammatraceError",
     "InputError",
-    "StructureError",
     "ReadError",
-    "ToleranceError",
-    "SymmetryError",
     "ReductionError",
+    "StructureError",
+    "SymmetryError",
     "TableError",
-    "BasisError",
+    "ToleranceError",
 ]
 
 

@@ -10,22 +10,23 @@ from __future__ import annotations
 
 import os
 import sys
+from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Any, Sequence, Union
+from typing import Any, Union
 
 import numpy as np
 
 from .errors import InputError, ReadError, StructureError
 
 __all__ = [
-    "Structure",
     "FrameError",
+    "Structure",
     "as_structure",
-    "read_xyz",
-    "read_structures",
-    "write_xyz",
     "atomic_numbers",
     "element_data",
+    "read_structures",
+    "read_xyz",
+    "write_xyz",
 ]
 
 
@@ -313,8 +314,13 @@ def read_structures(path: str | os.PathLike) -> list[Structure | FrameError]:
                 continue
             for conf in from_rdkit(mol):
                 out.append(
-                    Structure(conf.numbers, conf.positions, source, len(out), mol.GetProp("_Name")
-                              if mol.HasProp("_Name") else "")
+                    Structure(
+                        conf.numbers,
+                        conf.positions,
+                        source,
+                        len(out),
+                        mol.GetProp("_Name") if mol.HasProp("_Name") else "",
+                    )
                 )
         return out
     try:
@@ -325,7 +331,7 @@ def read_structures(path: str | os.PathLike) -> list[Structure | FrameError]:
         ) from None
     try:
         images = ase.io.read(source, index=":")
-    except Exception as exc:  # ASE raises many types; report them as read errors
+    except Exception as exc:  # noqa: BLE001 (ASE raises many types: all become read errors)
         raise ReadError(f"{source}: {exc}") from None
     return [
         Structure(s.numbers, s.positions, source, k)
@@ -339,6 +345,7 @@ def write_xyz(structures: Sequence[Structure], path: str | os.PathLike) -> None:
         for s in structures:
             symbols = element_data(s.numbers)[2]
             fh.write(f"{s.n_atoms}\n{s.comment}\n")
-            for sym, (x, y, z) in zip(symbols, s.positions):
-                fh.write(f"{sym:<2s} {x:16.10f} {y:16.10f} {z:16.10f}\n")
-
+            fh.writelines(
+                f"{sym:<2s} {x:16.10f} {y:16.10f} {z:16.10f}\n"
+                for sym, (x, y, z) in zip(symbols, s.positions)
+            )

@@ -3,7 +3,8 @@ bar chart of point-group counts for a batch. PNG files through matplotlib's Agg 
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Mapping
+from collections.abc import Mapping
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -12,7 +13,7 @@ from .errors import InputError
 if TYPE_CHECKING:  # pragma: no cover
     from .analysis import Analysis
 
-__all__ = ["symmetry_elements", "draw_symmetry", "plot_group_counts"]
+__all__ = ["draw_symmetry", "plot_group_counts", "symmetry_elements"]
 
 
 def _pyplot():
@@ -26,7 +27,7 @@ def _pyplot():
     return plt
 
 
-def symmetry_elements(analysis: "Analysis") -> dict:
+def symmetry_elements(analysis: Analysis) -> dict:
     """Rotation axes (unit vector, order), mirror-plane normals and the inversion centre.
 
     Axes and normals are in the input frame; ``center`` is the centre of mass.
@@ -57,11 +58,19 @@ def symmetry_elements(analysis: "Analysis") -> dict:
     return {"axes": axes, "planes": normals, "inversion": inversion, "center": analysis.center}
 
 
-_COLOURS = {1: "#dddddd", 6: "#444444", 7: "#3050f8", 8: "#ff0d0d", 9: "#90e050",
-            16: "#ffff30", 17: "#1ff01f", 79: "#ffd123"}
+_COLOURS = {
+    1: "#dddddd",
+    6: "#444444",
+    7: "#3050f8",
+    8: "#ff0d0d",
+    9: "#90e050",
+    16: "#ffff30",
+    17: "#1ff01f",
+    79: "#ffd123",
+}
 
 
-def draw_symmetry(analysis: "Analysis", path: str, *, max_atoms: int = 5000) -> str:
+def draw_symmetry(analysis: Analysis, path: str, *, max_atoms: int = 5000) -> str:
     """Draw the structure with its rotation axes (labelled Cn), mirror planes and inversion
     centre to a PNG file; returns the path. Structures above ``max_atoms`` are subsampled."""
     plt = _pyplot()
@@ -76,8 +85,16 @@ def draw_symmetry(analysis: "Analysis", path: str, *, max_atoms: int = 5000) -> 
     fig = plt.figure(figsize=(7, 7))
     ax = fig.add_subplot(projection="3d")
     colours = [_COLOURS.get(int(z), "#a0a0c0") for z in nums]
-    ax.scatter(pos[:, 0], pos[:, 1], pos[:, 2], c=colours, s=60 if len(pos) < 200 else 8,
-               edgecolors="k", linewidths=0.3, depthshade=True)
+    ax.scatter(
+        pos[:, 0],
+        pos[:, 1],
+        pos[:, 2],
+        c=colours,
+        s=60 if len(pos) < 200 else 8,
+        edgecolors="k",
+        linewidths=0.3,
+        depthshade=True,
+    )
     span = 1.25 * radius
     for axis, order in el["axes"]:
         p = np.outer([-span, span], axis)
@@ -91,9 +108,14 @@ def draw_symmetry(analysis: "Analysis", path: str, *, max_atoms: int = 5000) -> 
         g = np.linspace(-span, span, 2)
         uu, vv = np.meshgrid(g, g)
         pts = uu[..., None] * u + vv[..., None] * v
-        ax.plot_surface(pts[..., 0], pts[..., 1], pts[..., 2], color="tab:orange",
-                        alpha=min(0.15, 1.0 / len(el["planes"])),
-                        linewidth=0)
+        ax.plot_surface(
+            pts[..., 0],
+            pts[..., 1],
+            pts[..., 2],
+            color="tab:orange",
+            alpha=min(0.15, 1.0 / len(el["planes"])),
+            linewidth=0,
+        )
     if el["inversion"]:
         ax.scatter([0], [0], [0], marker="*", s=200, c="tab:red", label="inversion centre")
         ax.legend(loc="upper left")

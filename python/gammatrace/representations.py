@@ -22,8 +22,9 @@ d_ij ≤ scale · (r_i + r_j), with ``scale = 1.2`` by default, unless given exp
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any, Mapping
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -32,7 +33,7 @@ from .errors import BasisError, SymmetryError
 if TYPE_CHECKING:  # pragma: no cover
     from .analysis import Analysis
 
-__all__ = ["Basis", "Representation", "parse_basis", "ORBITAL_LETTERS", "DEFAULT_BOND_SCALE"]
+__all__ = ["DEFAULT_BOND_SCALE", "ORBITAL_LETTERS", "Basis", "Representation", "parse_basis"]
 
 #: Spectroscopic letters of angular momentum l = 0, 1, 2 ...
 ORBITAL_LETTERS = "spdfghi"
@@ -66,7 +67,7 @@ class Basis:
         return self.kind
 
     @classmethod
-    def orbitals(cls, shells: Mapping[Any, str]) -> "Basis":
+    def orbitals(cls, shells: Mapping[Any, str]) -> Basis:
         """Atomic orbitals: ``{"Fe": "spd", "H": "s"}`` or ``{26: "spd"}``; ``"*"`` = others.
 
         Letters s, p, d, f, g, h, i (l = 0…6); a letter twice means two shells.
@@ -82,17 +83,17 @@ class Basis:
         return cls("orbitals", shells=dict(shells))
 
     @classmethod
-    def bond_stretches(cls, bonds: Any = None, scale: float = DEFAULT_BOND_SCALE) -> "Basis":
+    def bond_stretches(cls, bonds: Any = None, scale: float = DEFAULT_BOND_SCALE) -> Basis:
         """Bond stretches: explicit ``(n_bonds, 2)`` atom pairs, or found with ``scale``."""
         return cls("bonds", bonds=_coerce_bonds(bonds), bond_scale=float(scale))
 
     @classmethod
-    def bond_vectors(cls, bonds: Any = None, scale: float = DEFAULT_BOND_SCALE) -> "Basis":
+    def bond_vectors(cls, bonds: Any = None, scale: float = DEFAULT_BOND_SCALE) -> Basis:
         """Vectors along bonds (oriented from the first atom to the second)."""
         return cls("bond_vectors", bonds=_coerce_bonds(bonds), bond_scale=float(scale))
 
     @classmethod
-    def vector_set(cls, vectors: Any) -> "Basis":
+    def vector_set(cls, vectors: Any) -> Basis:
         """The user's own 3-vectors: ``(n_atoms, 3)`` or ``(n_atoms, m, 3)``."""
         arr = np.asarray(vectors, dtype=np.float64)
         if arr.ndim == 2:
@@ -196,7 +197,7 @@ class Representation:
     @property
     def dimension(self) -> int:
         """The dimension (character of E)."""
-        return int(round(float(self.characters[0]))) if len(self.characters) else 0
+        return round(float(self.characters[0])) if len(self.characters) else 0
 
     def to_dict(self) -> dict:
         """``{"characters": [...], "irreps": {...}}`` as in shared/INTERFACE.md."""
@@ -221,8 +222,10 @@ class Representation:
                 )
             )
         widths = [max(len(r[i]) for r in rows) for i in range(4)]
-        lines = ["  ".join(c.rjust(w) if i else c.ljust(w) for i, (c, w) in
-                           enumerate(zip(r, widths))) for r in rows]
+        lines = [
+            "  ".join(c.rjust(w) if i else c.ljust(w) for i, (c, w) in enumerate(zip(r, widths)))
+            for r in rows
+        ]
         lines.insert(1, "  ".join("-" * w for w in widths))
         return "\n".join(lines)
 
@@ -247,7 +250,7 @@ def format_number(x: float) -> str:
 # --------------------------------------------------------------------------------------------
 
 
-def _shell_counts(analysis: "Analysis", shells: Mapping[Any, str]) -> np.ndarray:
+def _shell_counts(analysis: Analysis, shells: Mapping[Any, str]) -> np.ndarray:
     from .io import atomic_numbers
 
     numbers = analysis.structure.numbers
@@ -290,7 +293,7 @@ def plane_normal(positions: np.ndarray, center: np.ndarray, tol: float) -> np.nd
     x = positions - center
     if len(x) < 3:
         raise BasisError("pi: needs a planar structure of at least 3 atoms")
-    _, s, vt = np.linalg.svd(x, full_matrices=False)
+    _, _s, vt = np.linalg.svd(x, full_matrices=False)
     normal = vt[-1]
     height = np.abs(x @ normal)
     worst = int(np.argmax(height))
@@ -302,12 +305,17 @@ def plane_normal(positions: np.ndarray, center: np.ndarray, tol: float) -> np.nd
     return normal / np.linalg.norm(normal)
 
 
-def count_characters(analysis: "Analysis", basis: Basis) -> tuple[np.ndarray, np.ndarray]:
+def count_characters(analysis: Analysis, basis: Basis) -> tuple[np.ndarray, np.ndarray]:
     """Per-operation characters and unshifted items for a basis (Rust does the counting)."""
     from . import _core
 
     s = analysis.structure
-    pos, center, ops, tol = s.positions, tuple(analysis.center), analysis.operation_matrices, analysis.tol
+    pos, center, ops, tol = (
+        s.positions,
+        tuple(analysis.center),
+        analysis.operation_matrices,
+        analysis.tol,
+    )
     proper = np.ascontiguousarray(analysis.proper)
     angle = np.ascontiguousarray(analysis.angle)
     kind = basis.kind
@@ -385,7 +393,7 @@ def per_class(
     return chars
 
 
-def build_representation(analysis: "Analysis", basis: Basis) -> Representation:
+def build_representation(analysis: Analysis, basis: Basis) -> Representation:
     """Count, check per class and reduce a basis on an analysed structure."""
     chars_op, unshifted_op = count_characters(analysis, basis)
     labels = tuple(c.label for c in analysis.classes)
@@ -403,6 +411,4 @@ def build_representation(analysis: "Analysis", basis: Basis) -> Representation:
         else:
             contributions.append(per_item)
     irreps = analysis.table.reduce(chars, what=f"basis '{basis.name}'")
-    return Representation(
-        basis, chars, chars_op, irreps, unshifted, contributions, labels
-    )
+    return Representation(basis, chars, chars_op, irreps, unshifted, contributions, labels)

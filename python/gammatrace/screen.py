@@ -14,14 +14,15 @@ import csv
 import json
 import os
 from collections import Counter, defaultdict
-from typing import Any, Sequence
+from collections.abc import Sequence
+from typing import Any
 
 import numpy as np
 
 from .batch import COLUMNS, DEFAULT_CHUNK, Ragged, iter_batch, ragged_from_file
 from .errors import InputError
 
-__all__ = ["screen", "FORMATS", "summarize"]
+__all__ = ["FORMATS", "screen", "summarize"]
 
 FORMATS = ("jsonl", "csv", "parquet")
 
@@ -99,7 +100,7 @@ class _Writer:
             self.fh = None
         else:
             exists = append and os.path.exists(path) and os.path.getsize(path) > 0
-            self.fh = open(path, "a" if append else "w", encoding="utf-8", newline="")
+            self.fh = open(path, "a" if append else "w", encoding="utf-8", newline="")  # noqa: SIM115 (closed in close())
             if fmt == "csv":
                 self.csv = csv.writer(self.fh)
                 if not exists:
@@ -135,8 +136,9 @@ def summarize(cols_list: Sequence[dict]) -> dict:
     groups: dict[str, list[str]] = defaultdict(list)
     failures: list[str] = []
     for cols in cols_list:
-        for src, idx, g, err in zip(cols["source"], cols["index"], cols["point_group"],
-                                    cols["error"]):
+        for src, idx, g, err in zip(
+            cols["source"], cols["index"], cols["point_group"], cols["error"]
+        ):
             tag = f"{src}:{int(idx)}"
             if err:
                 failures.append(tag)

@@ -16,7 +16,7 @@ import numpy as np
 if TYPE_CHECKING:  # pragma: no cover
     from .analysis import Analysis
 
-__all__ = ["Vibrations", "vibrations", "format_irreps"]
+__all__ = ["Vibrations", "format_irreps", "vibrations"]
 
 
 @dataclass(frozen=True)
@@ -72,7 +72,7 @@ def format_irreps(irreps: dict) -> str:
     return " + ".join(f"{n if n != 1 else ''}{label}" for label, n in irreps.items())
 
 
-def vibrations(analysis: "Analysis") -> Vibrations:
+def vibrations(analysis: Analysis) -> Vibrations:
     """Γ_vib of an analysed structure, with IR and Raman activity.
 
     Raises

@@ -2,7 +2,7 @@
 //! orientation"): axial families by formula (any n), polyhedral groups by closure of their
 //! generators. Each list starts with E and comes with the indices of a generating set.
 
-use crate::ops::{mat_mul, max_abs_diff, Mat3, IDENTITY};
+use crate::ops::{mat_mul, max_abs_diff, rotation_matrix, Mat3, IDENTITY};
 use std::f64::consts::PI;
 
 /// The point groups the detector reports, with the n of the axial families.
@@ -118,30 +118,6 @@ fn dihedral(n: usize) -> Vec<Mat3> {
     v
 }
 
-fn rotation_about(u: [f64; 3], theta: f64) -> Mat3 {
-    let norm = (u[0] * u[0] + u[1] * u[1] + u[2] * u[2]).sqrt();
-    let u = [u[0] / norm, u[1] / norm, u[2] / norm];
-    let (s, c) = theta.sin_cos();
-    let t = 1.0 - c;
-    [
-        [
-            c + t * u[0] * u[0],
-            t * u[0] * u[1] - s * u[2],
-            t * u[0] * u[2] + s * u[1],
-        ],
-        [
-            t * u[1] * u[0] + s * u[2],
-            c + t * u[1] * u[1],
-            t * u[1] * u[2] - s * u[0],
-        ],
-        [
-            t * u[2] * u[0] - s * u[1],
-            t * u[2] * u[1] + s * u[0],
-            c + t * u[2] * u[2],
-        ],
-    ]
-}
-
 /// Closure of `gens` under multiplication (breadth first: every element times every
 /// generator), E first and the generators next.
 fn close(gens: &[Mat3]) -> (Vec<Mat3>, Vec<usize>) {
@@ -176,7 +152,8 @@ pub fn standard_operations(family: Family) -> (Vec<Mat3>, Vec<usize>) {
     let cyc: Mat3 = [[0.0, 0.0, 1.0], [1.0, 0.0, 0.0], [0.0, 1.0, 0.0]]; // C3 about (1,1,1)
     let c2z = rz(PI);
     let phi = (1.0 + 5f64.sqrt()) / 2.0;
-    let c5 = rotation_about([0.0, 1.0, phi], 2.0 * PI / 5.0);
+    let s = (1.0 + phi * phi).sqrt();
+    let c5 = rotation_matrix(&[0.0, 1.0 / s, phi / s], 2.0 * PI / 5.0);
     match family {
         Family::C1 | Family::Kh => (vec![IDENTITY], vec![]),
         Family::Cs => (vec![IDENTITY, SIGMA_H], vec![1]),
@@ -223,7 +200,8 @@ pub fn standard_operations(family: Family) -> (Vec<Mat3>, Vec<usize>) {
         Family::Th => close(&[cyc, c2z, INVERSION]),
         Family::O => close(&[rz(PI / 2.0), cyc]),
         Family::Oh => close(&[rz(PI / 2.0), cyc, INVERSION]),
-        Family::I => close(&[c5, cyc, c2z]),
-        Family::Ih => close(&[c5, cyc, c2z, INVERSION]),
+        // Elements of orders 5 and 3 generate I: A5 has no proper subgroup of order 15·k.
+        Family::I => close(&[c5, cyc]),
+        Family::Ih => close(&[c5, cyc, INVERSION]),
     }
 }

@@ -478,6 +478,20 @@ fn test_textbook_molecules() {
         ring(3, 0.94, -0.38, 0.0, 1),
     ]);
     check_all_ways(&nh3, "C3v", 6, vec![1, 2, 3]);
+    // Cnv, odd n: x lies in a σv plane, here the plane of an H and the C3 axis.
+    let s = find_point_group(&nh3.0, &nh3.1, &DetectOptions::default()).unwrap();
+    let in_plane = (1..4).any(|i| {
+        let h = sub(&nh3.0[i], &s.center);
+        let t = dot(&h, &s.frame[2]);
+        let q = crate::ops::normalize(&[
+            h[0] - t * s.frame[2][0],
+            h[1] - t * s.frame[2][1],
+            h[2] - t * s.frame[2][2],
+        ])
+        .unwrap();
+        (dot(&q, &s.frame[0]).abs() - 1.0).abs() < 1e-9
+    });
+    assert!(in_plane);
     let a = 1.089 / 3f64.sqrt();
     let ch4 = (
         vec![[0.0; 3], [a, a, a], [a, -a, -a], [-a, a, -a], [-a, -a, a]],
@@ -723,6 +737,34 @@ fn test_large_cluster_verifies_generators_only() {
 }
 
 #[test]
+fn test_single_defect_in_a_large_cluster_lowers_the_group() {
+    // 6000 atoms (above the screening threshold): an Ih cluster with one atom of another
+    // element. Whatever the sampled atoms, the answer must rest on all atoms.
+    let mut rng = Rng(8);
+    let mut gens = rot_group_i();
+    gens.push(PointOp::inversion());
+    let seeds: Vec<([f64; 3], i64)> = (0..50)
+        .map(|k| {
+            let r = 4.0 + 0.37 * k as f64;
+            let d = crate::ops::normalize(&[rng.sym(), rng.sym(), rng.sym()]).unwrap();
+            ([d[0] * r, d[1] * r, d[2] * r], 6)
+        })
+        .collect();
+    let (p, mut z) = orbit(&gens, &seeds);
+    assert_eq!(p.len(), 6000);
+    let d = DetectOptions::default();
+    assert_eq!(find_point_group(&p, &z, &d).unwrap().point_group, "Ih");
+    for defect in [17, 2500, 5999] {
+        let keep = z[defect];
+        z[defect] = 14;
+        let s = find_point_group(&p, &z, &d).unwrap();
+        // Generic seeds: no operation but E keeps the odd atom in place.
+        assert_eq!(s.point_group, "C1", "defect at {defect}");
+        z[defect] = keep;
+    }
+}
+
+#[test]
 fn test_bad_input_is_reported_not_panicked() {
     let d = DetectOptions::default();
     assert_eq!(find_point_group(&[], &[], &d), Err(Error::EmptyStructure));
@@ -861,16 +903,22 @@ fn timing_large_icosahedral_cluster() {
     let t = Instant::now();
     let mapped = map_atoms(&grid, &p, &z, &c5.matrix, 0.01);
     let t_map = t.elapsed();
-    let t = Instant::now();
+    // Best of 5 on one thread (the machine is shared: the minimum is the least disturbed).
     let pool1 = rayon::ThreadPoolBuilder::new()
         .num_threads(1)
         .build()
         .unwrap();
-    let mapped1 = pool1.install(|| map_atoms(&grid, &p, &z, &c5.matrix, 0.01));
-    let t_map1 = t.elapsed();
+    let mut t_map1 = std::time::Duration::MAX;
+    let mut mapped1 = None;
+    for _ in 0..5 {
+        let t = Instant::now();
+        mapped1 = Some(pool1.install(|| map_atoms(&grid, &p, &z, &c5.matrix, 0.01)));
+        t_map1 = t_map1.min(t.elapsed());
+    }
+    let mapped1 = mapped1.unwrap();
     println!(
         "{n} atoms, radius {radius:.0} Å, cell {:.2} Å: grid {:?}, overlap {:?} ({:?}), \
-         map C5 {:?} ({:.1} ns/atom; 1 thread {:.1} ns/atom; ok {} {})",
+         map C5 {:?} ({:.1} ns/atom; 1 thread, best of 5: {:.1} ns/atom; ok {} {})",
         grid.cell_size(),
         t_grid,
         t_ov,

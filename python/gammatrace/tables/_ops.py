@@ -60,7 +60,7 @@ def rotation(axis, angle_rad: float) -> np.ndarray:
 def rot_z(angle_rad) -> np.ndarray:
     """Rotations about z by each angle in ``angle_rad`` (scalar or 1-D), shape (..., 3, 3)."""
     t = np.asarray(angle_rad, dtype=np.float64)
-    out = np.zeros(t.shape + (3, 3))
+    out = np.zeros((*t.shape, 3, 3))
     c, s = np.cos(t), np.sin(t)
     out[..., 0, 0] = c
     out[..., 0, 1] = -s
@@ -158,7 +158,8 @@ def lookup(table: np.ndarray, queries: np.ndarray, tol: float = 1e-6) -> np.ndar
     if len(distance) and distance.max() > tol:
         bad = int(np.argmax(distance))
         raise RuntimeError(
-            f"internal: operation {bad} is not in the generated group (distance {distance[bad]:.3g})"
+            f"internal: operation {bad} is not in the generated group "
+            f"(distance {distance[bad]:.3g})"
         )
     return index
 

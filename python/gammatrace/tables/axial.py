@@ -42,7 +42,7 @@ def _perp(beta, z_sign: float) -> np.ndarray:
     containing z and that axis.
     """
     b = np.asarray(beta, dtype=np.float64)
-    out = np.zeros(b.shape + (3, 3))
+    out = np.zeros((*b.shape, 3, 3))
     c, s = np.cos(2 * b), np.sin(2 * b)
     out[..., 0, 0] = c
     out[..., 0, 1] = s
@@ -86,7 +86,7 @@ def axial_ops(family: str, n: int):
     if family == "D":
         return dn, gens
     if family == "Dh":
-        return np.concatenate([dn, SIGMA_H @ dn]), gens + [SIGMA_H]
+        return np.concatenate([dn, SIGMA_H @ dn]), [*gens, SIGMA_H]
     if family == "Dd":
         s2n, _ = axial_ops("S", 2 * n)
         ops = np.concatenate([s2n, _perp(np.pi * k / n, -1.0), _perp(np.pi * (k + 0.5) / n, 1.0)])
@@ -282,7 +282,7 @@ def _class_names(family: str, n: int, ops, cls, reps):
             keys.append(proper_key(j))
         elif partner is not None:
             q = cls[lookup(ops, (partner @ ops[rep])[None])[0]]
-            keys.append((10,) + proper_key(index_of[int(q)]))
+            keys.append((10, *proper_key(index_of[int(q)])))
         elif kinds[j] == "Sz":
             keys.append((1, float(angle[j])))
         else:  # vertical mirrors: σv before σd

@@ -116,12 +116,12 @@ def _data(name: str):
     if name == "T":
         return [_T_GENS, [(lab, s, True, a) for lab, s, a in _T["classes"]], _T["irreps"]]
     if name == "Td":
-        return [_T_GENS + [_SIGMA_D], *_td()]
+        return [[*_T_GENS, _SIGMA_D], *_td()]
     if name == "Th":
         improper = [("i", 1, 180.0, 0), ("8S6", 8, 60.0, 1), ("3σh", 3, 0.0, 2)]
-        return [_T_GENS + [INVERSION], *_with_inversion(_T, improper)]
+        return [[*_T_GENS, INVERSION], *_with_inversion(_T, improper)]
     if name == "O":
-        return [_T_GENS + [_C4Z], [(lab, s, True, a) for lab, s, a in _O["classes"]], _O["irreps"]]
+        return [[*_T_GENS, _C4Z], [(lab, s, True, a) for lab, s, a in _O["classes"]], _O["irreps"]]
     if name == "Oh":
         improper = [
             ("i", 1, 180.0, 0),
@@ -130,9 +130,9 @@ def _data(name: str):
             ("3σh", 3, 0.0, 4),
             ("6σd", 6, 0.0, 2),
         ]
-        return [_T_GENS + [_C4Z, INVERSION], *_with_inversion(_oh_proper(), improper)]
+        return [[*_T_GENS, _C4Z, INVERSION], *_with_inversion(_oh_proper(), improper)]
     if name == "I":
-        return [_T_GENS + [_C5], [(lab, s, True, a) for lab, s, a in _I["classes"]], _I["irreps"]]
+        return [[*_T_GENS, _C5], [(lab, s, True, a) for lab, s, a in _I["classes"]], _I["irreps"]]
     if name == "Ih":
         # i·C5² = S10 (improper 36°) and i·C5 = S10³ (108°), printed S10 first.
         improper = [
@@ -142,7 +142,7 @@ def _data(name: str):
             ("20S6", 20, 60.0, 3),
             ("15σ", 15, 0.0, 4),
         ]
-        return [_T_GENS + [_C5, INVERSION], *_with_inversion(_I, improper)]
+        return [[*_T_GENS, _C5, INVERSION], *_with_inversion(_I, improper)]
     raise ValueError(f"internal: {name} is not a polyhedral group")
 
 

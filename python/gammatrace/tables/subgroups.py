@@ -106,13 +106,13 @@ def _enumerate(ops: np.ndarray):
         for s, gens in frontier:
             members = np.zeros(h, dtype=bool)
             members[s] = True
-            for c, (g,) in cyc:
+            for _c, (g,) in cyc:
                 if members[g]:
                     continue
-                t = _closure(gens + [g], table)
+                t = _closure([*gens, g], table)
                 key = t.tobytes()
                 if key not in found:
-                    found[key] = (t, gens + [g])
+                    found[key] = (t, [*gens, g])
                     nxt.append(found[key])
         frontier = nxt
     # One representative per conjugacy class within the group.

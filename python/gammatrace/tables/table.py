@@ -331,11 +331,11 @@ class CharacterTable:
             [ir.label] + [_fmt_number(x) for x in ir.characters] + ["; ".join(ir.functions)]
             for ir in self.irreps
         ]
-        widths = [max(len(r[j]) for r in [head] + rows) for j in range(len(head) - 1)]
+        widths = [max(len(r[j]) for r in [head, *rows]) for j in range(len(head) - 1)]
         lines = []
-        for r in [head] + rows:
+        for r in [head, *rows]:
             cells = [r[0].ljust(widths[0])] + [r[j].rjust(widths[j]) for j in range(1, len(widths))]
-            lines.append("  ".join(cells + [r[-1]]).rstrip())
+            lines.append("  ".join([*cells, r[-1]]).rstrip())
         lines.insert(1, "-" * len(lines[0]))
         if self.is_linear:
             lines.append(
