@@ -4,8 +4,7 @@ Memory is measured as the peak resident set size (VmHWM, reset after the imports
 subprocess, so the Rust core's allocations count too. The bounds are generous multiples of the
 data held (they catch allocation driven by a claimed count, quadratic growth, or copies per
 frame), not performance targets. What does not fit in CI time (10^7 atoms, 10^7 frames) is
-described in
-fuzz/RESULTS.md.
+described in fuzz/RESULTS.md.
 """
 
 from __future__ import annotations
