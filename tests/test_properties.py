@@ -18,6 +18,7 @@ conftest.py.
 from __future__ import annotations
 
 import contextlib
+import os
 
 import gammatrace as gt
 import numpy as np
@@ -191,6 +192,9 @@ def _noise(rng: np.random.Generator, n: int, low: float, high: float) -> np.ndar
 
 
 tols = st.sampled_from([0.01, 0.05, 0.1])
+# per-atom noise below the tolerance, as a fraction of it: an exact operation then maps every
+# atom within 2 * NOISE_BELOW * tol of an image (see the xfail test below for 0.45)
+NOISE_BELOW = float(os.environ.get("GAMMATRACE_NOISE_BELOW", "0.2"))
 
 
 @suppress
@@ -198,9 +202,14 @@ tols = st.sampled_from([0.01, 0.05, 0.1])
 def test_noise_below_the_tolerance_keeps_the_group(group, rng, tol):
     numbers, pos = generic_structure(group, rng, spacing=20 * tol)
     pos = pos @ random_rotation(rng).T
-    noisy = pos + _noise(rng, len(pos), 0.0, 0.2 * tol)
+    clean = gt.analyze(numbers, pos, tol=tol)
+    # with a loose tolerance a random structure may lie within tol of a larger group
+    note(f"clean: {clean.point_group}, max deviation {clean.max_deviation}")
+    # every operation must stay within tol after the noise (each atom and its image move)
+    assume(clean.max_deviation + 2 * NOISE_BELOW * tol < tol)
+    noisy = pos + _noise(rng, len(pos), 0.0, NOISE_BELOW * tol)
     res = gt.analyze(numbers, noisy, tol=tol)
-    assert res.point_group == group
+    assert res.point_group == clean.point_group
     assert res.max_deviation <= tol
 
 
@@ -209,11 +218,19 @@ def test_noise_below_the_tolerance_keeps_the_group(group, rng, tol):
 def test_noise_above_the_tolerance_never_raises_the_group(group, rng, tol):
     numbers, pos = generic_structure(group, rng, spacing=40 * tol)
     pos = pos @ random_rotation(rng).T
+    clean = gt.analyze(numbers, pos, tol=tol)
+    # noise of up to 5 tol can only create an operation that held within 11 tol before it:
+    # keep structures with no such near-symmetry (tiny ones may be nearly planar, say)
+    try:
+        wide = gt.analyze(numbers, pos, tol=11 * tol)
+    except gt.GammatraceError:
+        wide = None
+    assume(wide is not None and wide.order == clean.order)
     noisy = pos + _noise(rng, len(pos), 2.0 * tol, 5.0 * tol)
     res = gt.analyze(numbers, noisy, tol=tol)
-    note(f"{group} -> {res.point_group}")
+    note(f"{group}: clean {clean.point_group} -> noisy {res.point_group}")
     assert not res.is_linear
-    assert res.order <= len(gt.get_table(group).operations)
+    assert res.order <= clean.order
     assert res.max_deviation <= tol
 
 
