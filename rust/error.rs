@@ -151,7 +151,7 @@ impl fmt::Display for Error {
             ),
             Error::BadTolerance { value } => write!(
                 f,
-                "tolerance must be a positive finite distance in Å, got {value}"
+                "tolerance must be a positive finite distance in Å, got {value:.3e}"
             ),
             Error::NotASymmetry { atom, distance } => write!(
                 f,
@@ -176,7 +176,12 @@ impl fmt::Display for Error {
                 line,
                 reason,
             } => {
-                write!(f, "line {line} of {source} (frame {frame}): {reason}")
+                write!(
+                    f,
+                    "line {line} of {} (frame {frame}): {}",
+                    printable(source),
+                    printable(reason)
+                )
             }
             Error::Io { source, reason } => write!(f, "{source}: {reason}"),
             Error::InvalidArgument { name, reason } => write!(f, "{name}: {reason}"),
@@ -189,6 +194,22 @@ impl fmt::Display for Error {
 }
 
 impl std::error::Error for Error {}
+
+/// Text quoted from a file, with control characters (ESC, CR, NUL, a stray byte-order
+/// mark...) written as escapes, so that a message stays one printable line.
+fn printable(text: &str) -> String {
+    text.chars()
+        .flat_map(|c| {
+            let escape = c.is_control() || c == '\u{feff}';
+            let shown: Vec<char> = if escape {
+                c.escape_default().collect()
+            } else {
+                vec![c]
+            };
+            shown
+        })
+        .collect()
+}
 
 /// Shorthand for core results.
 pub type Result<T> = std::result::Result<T, Error>;

@@ -871,6 +871,14 @@ fn parse_segment(
                     "expected {} columns (from Properties), found {n}",
                     layout.needed
                 )
+            } else if n == 3
+                && parse_f64(sym).is_some()
+                && sym.iter().any(|b| matches!(b, b'.' | b'e' | b'E'))
+            {
+                // three numbers, the first written as a real (not an atomic number): the
+                // element symbol is missing
+                "the element symbol is missing: expected 'Symbol x y z', found 3 numbers"
+                    .to_string()
             } else {
                 format!("expected 3 coordinates, found {}", n - 1)
             };
@@ -905,6 +913,8 @@ fn parse_segment(
 /// atomic number (the caller's periodic table). Never fails as a whole: each bad frame has
 /// zero atoms and its error in `errors` (see the module notes). Empty input gives zero frames.
 pub fn read_xyz_bytes(data: &[u8], source: &str, to_number: &ToNumber) -> XyzFrames {
+    // A UTF-8 byte-order mark (written by some editors) is not part of the first line.
+    let data = data.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(data);
     let scanned = Scanner { data, source }.scan();
     let headers: Vec<Option<Header>> = scanned
         .par_iter()

@@ -52,7 +52,6 @@ EXPECTED: dict[str, list] = {
     "huge_coordinate.xyz": [(S, None)],
     "huge_fortran_coordinate.xyz": [(S, None)],
     "crlf_bad_coordinate.xyz": [(R, 4)],
-    "utf8_bom.xyz": [(R, 1)],
     "control_chars_in_count.xyz": [(R, 1)],
     "extxyz_short_properties.xyz": [(R, 2)],
     "extxyz_no_species.xyz": [(R, 2)],
@@ -80,12 +79,10 @@ EXPECTED: dict[str, list] = {
     "extra_columns.xyz": ["C2v"],
     "lowercase_symbols.xyz": ["C2v"],
     "very_long_number.xyz": ["C2v"],
+    "utf8_bom.xyz": ["C2v"],  # a byte-order mark before the count line is skipped
     "extxyz_unterminated_quote.xyz": ["C2v"],
 }
 EMPTY = ["empty.xyz", "only_whitespace.xyz"]
-# messages that reach a terminal with raw control characters in them (see test below)
-RAW_CONTROL = {"binary_garbage.xyz", "binary_after_frame.xyz", "gzip_header.xyz"}
-RAW_CONTROL |= {"control_chars_in_count.xyz", "nul_in_atom_line.xyz", "utf8_bom.xyz"}
 
 
 def _path(name: str) -> str:
@@ -229,22 +226,7 @@ def _control_characters(text: str) -> list[str]:
     return [c for c in text if unicodedata.category(c) in ("Cc", "Cf")]
 
 
-@pytest.mark.parametrize(
-    "name",
-    [
-        pytest.param(
-            n,
-            marks=pytest.mark.xfail(
-                strict=True,
-                reason="reader messages quote the offending line raw: control characters "
-                "(ESC, CR, NUL, BOM...) reach the terminal through the CLI's stderr line",
-            ),
-        )
-        if n in RAW_CONTROL
-        else n
-        for n in sorted(EXPECTED)
-    ],
-)
+@pytest.mark.parametrize("name", sorted(EXPECTED))
 def test_error_messages_hold_no_control_characters(name, capsys):
     _, _, err = _cli(capsys, name)
     assert not _control_characters(err.replace("\n", "")), repr(err)
@@ -254,11 +236,6 @@ def test_error_messages_hold_no_control_characters(name, capsys):
         assert not _control_characters(m), repr(m)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a UTF-8 byte-order mark before the count line gives \"atom count '3' is not a "
-    'whole number" (the BOM is invisible in the message): read it as the frame or name it',
-)
 def test_byte_order_mark_is_read_or_named():
     (frame,) = gt.read_xyz(_path("utf8_bom.xyz"))
     if isinstance(frame, gt.FrameError):
@@ -267,11 +244,6 @@ def test_byte_order_mark_is_read_or_named():
         assert gt.analyze(frame).point_group == "C2v"
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a line with three numbers and no element symbol is reported as 'expected 3 "
-    "coordinates, found 2': the message should say the element symbol is missing",
-)
 def test_missing_symbol_message_names_the_symbol():
     (frame,) = gt.read_xyz(_path("missing_symbol.xyz"))
     reason = frame.message.split("(frame 0):", 1)[1]  # the file name holds "symbol" too
@@ -284,11 +256,6 @@ def test_empty_file_reads_as_no_frames(name):
 
 
 @pytest.mark.parametrize("name", EMPTY)
-@pytest.mark.xfail(
-    strict=True,
-    reason="an empty (or all-blank) file yields no row and no error: analyze_many yields "
-    "nothing and the CLI exits 0 with empty output, so a lost file goes unnoticed",
-)
 def test_empty_file_is_reported_by_the_cli(name, capsys):
     status, _out, err = _cli(capsys, name)
     assert status == 1
@@ -359,20 +326,11 @@ def test_bad_arrays_raise_typed_errors(case):
     assert str(info.value)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="uint64 atomic numbers above 2^63 wrap: 2^64-1 is reported as 'atomic number -1'",
-)
 def test_uint64_atomic_number_is_reported_as_given():
     with pytest.raises(gt.StructureError, match="18446744073709551615"):
         gt.analyze(np.array([2**64 - 1, 1, 1], dtype=np.uint64), WATER_POS)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="complex positions are cast to float (numpy ComplexWarning, imaginary part "
-    "dropped) instead of an InputError naming positions",
-)
 def test_complex_positions_are_refused():
     pos = np.array(WATER_POS, dtype=complex)
     pos[0, 0] = 1j
@@ -386,12 +344,6 @@ def test_bad_tolerance_is_an_input_error(tol):
         gt.analyze(["O", "H", "H"], WATER_POS, tol=tol)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="tol=1e-300 raises ToleranceError 'the identity is not among the 0 operations "
-    "found at tolerance 0.000000000000000': E always holds; expect C1 or a refusal naming "
-    "the smallest usable tolerance",
-)
 def test_tiny_tolerance_gives_a_group_or_a_clear_refusal():
     try:
         res = gt.analyze(["O", "H", "H"], WATER_POS, tol=1e-300)
@@ -401,11 +353,6 @@ def test_tiny_tolerance_gives_a_group_or_a_clear_refusal():
         assert res.point_group in ("C1", "Cs", "C2v")
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="tol=1e300 is accepted and the overlapping-atoms message prints the tolerance "
-    "as a 301-digit number",
-)
 def test_absurd_tolerance_message_is_short():
     with pytest.raises(gt.GammatraceError) as info:
         gt.analyze(["O", "H", "H"], WATER_POS, tol=1e300)

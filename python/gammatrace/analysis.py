@@ -32,6 +32,8 @@ __all__ = [
 
 #: Default distance tolerance in ångström (see DEVELOPERS.md, "Tolerance").
 DEFAULT_TOL = 0.01
+#: Smallest and largest tolerance accepted, Å.
+MIN_TOL, MAX_TOL = 1e-6, 10.0
 #: Verify every operation (and keep its permutation) while n_atoms * order stays below this;
 #: above it detection verifies E and the generators, and the other permutations are mapped
 #: on first use (:attr:`Analysis.permutations`).
@@ -102,6 +104,11 @@ def _check_tol(tol: Any) -> float:
         raise InputError(f"tol: expected a distance in Å, got {tol!r}") from None
     if not math.isfinite(t) or t <= 0:
         raise InputError(f"tol: must be a positive finite distance in Å, got {tol!r}")
+    if not MIN_TOL <= t <= MAX_TOL:
+        raise InputError(
+            f"tol: {t:.3g} Å is outside the usable range {MIN_TOL:g} to {MAX_TOL:g} Å "
+            "(below it coordinates carry no such precision; above it atoms of a molecule merge)"
+        )
     return t
 
 
@@ -212,8 +219,11 @@ class Analysis:
         if missing:
             s = self.structure
             more, _ = _core.map_operations(
-                s.positions, s.numbers, tuple(self.center),
-                np.ascontiguousarray(self.operation_matrices[missing]), self.tol,
+                s.positions,
+                s.numbers,
+                tuple(self.center),
+                np.ascontiguousarray(self.operation_matrices[missing]),
+                self.tol,
             )
             out[missing] = more
         return out
@@ -577,6 +587,13 @@ def analyze_many(
                 continue
         else:
             frames = [item]
+        if not frames:
+            src = str(item)
+            message = f"{src}: no structure in the file (it is empty)"
+            if not catch:
+                raise InputError(message)
+            yield FrameError(src, 0, "ReadError", message)
+            continue
         for fr in frames:
             if isinstance(fr, FrameError):
                 if not catch:

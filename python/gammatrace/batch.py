@@ -12,7 +12,6 @@ gamma_vib, n_modes, n_fundamentals, n_ir, n_raman, error_type, error``.
 
 from __future__ import annotations
 
-import math
 import os
 from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass
@@ -288,8 +287,9 @@ def iter_batch(
     Between chunks control returns to Python, so Ctrl-C stops cleanly after the last
     completed chunk and a writer can flush what is done.
     """
-    if not (isinstance(tol, (int, float)) and math.isfinite(tol) and tol > 0):
-        raise InputError(f"tol: must be a positive finite distance in Å, got {tol!r}")
+    from .analysis import _check_tol
+
+    tol = _check_tol(tol)
     if chunk_size < 1:
         raise InputError(f"chunk_size: must be at least 1, got {chunk_size}")
     bar = None

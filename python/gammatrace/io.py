@@ -124,6 +124,9 @@ def _coerce_numbers(elements: Any, n_expected: int | None) -> np.ndarray:
     if arr.ndim != 1:
         raise InputError(f"symbols/numbers: expected a 1-D sequence, got shape {arr.shape}")
     if arr.dtype.kind in "iu":
+        if arr.dtype.kind == "u" and arr.size and arr.max() > np.iinfo(np.int64).max:
+            k = int(np.argmax(arr))
+            raise StructureError(f"atom {k} has atomic number {arr[k]}, outside 1..=118")
         nums = np.ascontiguousarray(arr, dtype=np.int64)
     elif arr.dtype.kind in "UOS":
         nums = atomic_numbers([str(s) for s in arr.tolist()])
@@ -142,6 +145,8 @@ def _coerce_numbers(elements: Any, n_expected: int | None) -> np.ndarray:
 
 
 def _coerce_positions(positions: Any) -> np.ndarray:
+    if np.iscomplexobj(positions):
+        raise InputError("positions: complex numbers given; expected real coordinates in Å")
     try:
         pos = np.ascontiguousarray(positions, dtype=np.float64)
     except (TypeError, ValueError) as exc:

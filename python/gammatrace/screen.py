@@ -91,6 +91,18 @@ def _done_counts(path: str, fmt: str) -> Counter:
     return done
 
 
+def _empty_file_row(source: str) -> dict:
+    """One error row for a file that holds no structure (so a lost file is noticed)."""
+    from .batch import _empty_columns
+
+    cols = _empty_columns(1)
+    cols["source"] = np.array([source], dtype=object)
+    cols["index"] = np.zeros(1, dtype=np.int64)
+    cols["error_type"][0] = "ReadError"
+    cols["error"][0] = f"{source}: no structure in the file (it is empty)"
+    return cols
+
+
 class _Writer:
     def __init__(self, path: str, fmt: str, append: bool):
         self.fmt = fmt
@@ -185,7 +197,13 @@ def screen(
             except ImportError:
                 bar = None
         try:
-            for d in datas:
+            for p, d in zip(paths, datas):
+                if len(d) == 0 and not done.get(os.fspath(p)):
+                    cols = _empty_file_row(os.fspath(p))
+                    if writer is not None:
+                        writer.write(cols)
+                    parts.append({k: cols[k] for k in ("source", "index", "point_group", "error")})
+                    continue
                 for cols in iter_batch(d, tol=tol, n_threads=n_threads, chunk_size=chunk_size):
                     if writer is not None:
                         writer.write(cols)
