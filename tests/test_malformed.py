@@ -264,7 +264,7 @@ def test_empty_file_is_reported_by_the_cli(name, capsys):
 
 def test_missing_file_is_a_read_error(tmp_path, capsys):
     path = str(tmp_path / "absent.xyz")
-    with pytest.raises(gt.ReadError, match="absent.xyz"):
+    with pytest.raises(gt.ReadError, match=r"absent\.xyz"):
         gt.read_xyz(path)
     (res,) = gt.analyze_many([path])
     assert isinstance(res, gt.FrameError) and res.type == R

@@ -52,7 +52,9 @@ CORPUS: dict[str, bytes] = {
     "non_numeric_coordinate.xyz": b"3\nwater\nO 0.0 0.0 0.1173\nH 0.0 zero -0.4692\n"
     b"H 0.0 -0.7572 -0.4692\n",
     "missing_coordinate.xyz": b"3\nwater\nO 0.0 0.0 0.1173\nH 0.0 0.7572\nH 0.0 -0.7572 -0.4692\n",
-    "missing_symbol.xyz": b"3\nwater\n0.0 0.0 0.1173\nH 0.0 0.7572 -0.4692\nH 0.0 -0.7572 -0.4692\n",
+    "missing_symbol.xyz": (
+        b"3\nwater\n0.0 0.0 0.1173\nH 0.0 0.7572 -0.4692\nH 0.0 -0.7572 -0.4692\n"
+    ),
     "comma_decimal.xyz": b"3\nwater\nO 0,0 0,0 0,1173\nH 0,0 0,7572 -0,4692\n"
     b"H 0,0 -0,7572 -0,4692\n",
     "nan_coordinate.xyz": b"3\nwater\nO 0.0 0.0 nan\nH 0.0 0.7572 -0.4692\nH 0.0 -0.7572 -0.4692\n",
