@@ -623,6 +623,20 @@ impl Scanner<'_> {
             }
             if present < n {
                 let k = present - blank_run;
+                // A count claiming more atoms than the file holds must not swallow the good
+                // frames after it: resume at the next plausible frame, if there is one.
+                if let Some((q, lq)) = self.resync(atoms_start, line + 2) {
+                    frames.push(Scanned::Bad(self.error(
+                        frame,
+                        line,
+                        format!(
+                            "the count line says {n} atoms, but the file ends first; the next \
+                             frame starts at line {lq}"
+                        ),
+                    )));
+                    (pos, line) = (q, lq);
+                    continue;
+                }
                 frames.push(Scanned::Bad(self.error(
                     frame,
                     line + 2 + k,

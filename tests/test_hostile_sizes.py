@@ -147,19 +147,13 @@ def test_an_absurd_atom_count_is_refused_without_allocating(claimed):
     assert out["rss_mb"] - out["base_mb"] < 50
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a count line claiming more atoms than lines remain swallows the good frames after "
-    "it: '1000000000' + 1 atom + 3 water frames gives one error ('file ends after 16 of "
-    "1000000000 atoms', count and comment lines taken as atoms) and no frames; a claim of "
-    "9 resynchronises correctly",
-)
 def test_one_frame_claiming_more_atoms_than_the_file_holds_keeps_the_next_ones():
     from gammatrace import _core
 
     water = b"3\nwater\nO 0.0 0.0 0.1173\nH 0.0 0.7572 -0.4692\nH 0.0 -0.7572 -0.4692\n"
     raw = _core.read_xyz_bytes(b"1000000000\nclaim\nO 0 0 0\n" + water * 3, "claim.xyz")
     assert raw["errors"][0][0] == "ReadError"
+    assert "next frame starts at line 4" in raw["errors"][0][1]
     assert raw["errors"][1:] == [None, None, None]
 
 
