@@ -75,3 +75,16 @@ def test_cli_modes_bad_hessian_exit_1(tmp_path, capsys):
     np.save(h_path, np.zeros((4, 4)))
     assert main(["modes", str(xyz), "--hessian", str(h_path)]) == 1
     assert "shape" in capsys.readouterr().err
+
+
+def test_one_basis_spec_serves_characters_and_salcs():
+    # the same spec gives the representation and the symmetry-adapted basis; the SALC
+    # multiplicities equal the reduction (Cotton ch. 9: Fe d at an Oh site -> Eg + T2g,
+    # the six ligand s orbitals -> A1g + Eg + T1u)
+    from conftest import octahedral
+
+    res = gt.analyze(*octahedral("Fe", "F", 2.0))
+    for spec in ("orbitals:Fe=d", "orbitals:F=s", "bonds", gt.Basis.orbitals({"Fe": "spd"})):
+        sab = res.symmetry_adapted_basis(spec)
+        counted = res.representation(spec).irreps
+        assert {k: v for k, v in sab.multiplicities.items() if v} == counted

@@ -349,10 +349,44 @@ class Analysis:
 
     def symmetry_adapted_basis(self, basis: Any = "cartesian"):
         """The orthogonal sparse change of basis X (rows = SALCs) for ``basis``; see
-        :func:`gammatrace.basis_change.symmetry_adapted_basis`."""
+        :func:`gammatrace.basis_change.symmetry_adapted_basis`.
+
+        ``basis`` is a spec as for :meth:`representation` (``"cartesian"``, ``"atoms"``,
+        ``"bonds"``, ``"bond_vectors"``, ``"orbitals:Fe=spd,H=s"``, a :class:`Basis`) or a
+        :class:`gammatrace.basis_change.Basis`.
+        """
         from .basis_change import symmetry_adapted_basis
 
-        return symmetry_adapted_basis(self.symmetry_data(), basis)
+        return symmetry_adapted_basis(self.symmetry_data(), self._matrix_basis(basis))
+
+    def _matrix_basis(self, basis: Any):
+        """The change-of-basis description of a representation basis spec."""
+        from . import basis_change
+
+        if isinstance(basis, basis_change.Basis):
+            return basis
+        b = parse_basis(basis)
+        if b.kind in ("cartesian", "atoms"):
+            return basis_change.Basis(b.kind)
+        if b.kind == "orbitals":
+            # one shell list per element present, as the counting basis reads it: "*" for
+            # elements not named, none for elements not named without "*"
+            from .representations import _shell_counts
+
+            counts = _shell_counts(self, b.shells or {})
+            shells: dict = {}
+            for z, row in zip(self.structure.numbers.tolist(), counts):
+                shells[int(z)] = [l for l, c in enumerate(row) for _ in range(int(c))]
+            return basis_change.Basis.orbitals(shells)
+        if b.kind in ("bonds", "bond_vectors"):
+            pairs = b.bonds if b.bonds is not None else self.bonds(b.bond_scale)
+            if b.kind == "bonds":
+                return basis_change.Basis.bonds(pairs)
+            return basis_change.Basis.bond_vectors(pairs)
+        raise BasisError(
+            f"basis '{b.kind}': no symmetry-adapted basis for it yet (cartesian, atoms, "
+            "orbitals, bonds and bond_vectors have one)"
+        )
 
     def label_modes(self, hessian: Any = None, **kwargs: Any):
         """Label normal modes from a Cartesian Hessian or mode vectors; see
@@ -489,7 +523,7 @@ _L_LABELS = "SPDFGHI"
 
 def _atom_representation(analysis: Analysis, b: Basis) -> Representation:
     """A single atom (K_h): label representations by angular momentum and parity."""
-    from .representations import ORBITAL_LETTERS, _shell_counts
+    from .representations import _shell_counts
 
     def label(l: int) -> str:
         return _L_LABELS[l] + ("g" if l % 2 == 0 else "u")
@@ -504,7 +538,6 @@ def _atom_representation(analysis: Analysis, b: Basis) -> Representation:
         for l, c in enumerate(counts):
             if c:
                 irreps[label(l)] = int(c)
-        del ORBITAL_LETTERS
     elif b.kind in ("bonds", "bond_vectors"):
         irreps = {}
     else:

@@ -15,38 +15,15 @@ from typing import Any
 
 import numpy as np
 
-from .errors import BasisError, GammatraceError, InputError
+from .errors import GammatraceError, InputError
 
 __all__ = ["add_commands", "basis_from_spec"]
 
 
 def basis_from_spec(analysis: Any, spec: str):
-    """A :class:`gammatrace.basis_change.Basis` from a command-line spec.
-
-    ``cartesian``, ``atoms``, ``orbitals:Fe=spd,H=s``, ``bonds`` or ``bond_vectors``
-    (bonds found from covalent radii).
-    """
-    from .basis_change import Basis
-
-    kind, _, opts = spec.partition(":")
-    kind = kind.strip().lower()
-    if kind in ("cartesian", "atoms") and not opts:
-        return Basis.cartesian() if kind == "cartesian" else Basis.atoms()
-    if kind == "orbitals":
-        shells = {}
-        for item in opts.split(","):
-            el, eq, letters = item.partition("=")
-            if not eq or not letters:
-                raise BasisError(f"orbitals: expected ELEMENT=letters, got {item!r}")
-            shells[el.strip()] = letters.strip().lower()
-        return Basis.orbitals(shells)
-    if kind in ("bonds", "bond_vectors") and not opts:
-        pairs = analysis.bonds()
-        return Basis.bonds(pairs) if kind == "bonds" else Basis.bond_vectors(pairs)
-    raise BasisError(
-        f"basis: unknown spec {spec!r}; use cartesian, atoms, bonds, bond_vectors or "
-        "orbitals:El=letters,..."
-    )
+    """A :class:`gammatrace.basis_change.Basis` from a command-line spec (as ``--basis`` of
+    ``analyze``: ``cartesian``, ``atoms``, ``bonds``, ``bond_vectors``, ``orbitals:Fe=spd``)."""
+    return analysis._matrix_basis(spec)
 
 
 def _one(path: str, tol: float):
