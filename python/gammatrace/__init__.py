@@ -5,7 +5,9 @@ The public API is this module's ``__all__``:
 - :func:`analyze` one structure -> :class:`Analysis` (point group, operations, classes,
   representations, vibrations, symmetry number, chirality, orbits);
 - :func:`analyze_many` many structures (files, frames, objects), failures kept in place;
-- :func:`get_table` the character table of any point group;
+- :func:`analyze_batch` many structures in parallel in the core, as a table;
+- :func:`get_table` the character table of any point group; :func:`subgroups` and
+  :func:`correlate` for descent in symmetry;
 - :class:`Basis` the bases representations are built on;
 - :func:`read_xyz`, :class:`Structure` input.
 
@@ -15,6 +17,7 @@ Everything else, ``gammatrace._core`` included, is private.
 from __future__ import annotations
 
 from .analysis import DEFAULT_TOL, Analysis, Operation, Orbit, analyze, analyze_many
+from .batch import analyze_batch
 from .errors import (
     BasisError,
     GammatraceError,
@@ -29,7 +32,7 @@ from .errors import (
 from .io import FrameError, Structure, read_structures, read_xyz
 from .representations import Basis, Representation
 from .spectroscopy import Vibrations
-from .tables import CharacterTable, get_table
+from .tables import CharacterTable, correlate, get_table, subgroups
 
 __version__ = "0.1.0"
 
@@ -55,8 +58,11 @@ __all__ = [
     "Vibrations",
     "__version__",
     "analyze",
+    "analyze_batch",
     "analyze_many",
+    "correlate",
     "get_table",
     "read_structures",
     "read_xyz",
+    "subgroups",
 ]
