@@ -63,6 +63,12 @@ def generic_structure(group: str, rng: np.random.Generator, spacing: float = 0.3
     # general position: every orbit has |G| points and no two atoms come close
     assume(s.n_atoms == k * len(ops))
     assume(_min_distance(s.positions) > spacing)
+    if group in ("C1", "Cs", "Ci"):
+        # a handful of random atoms can lie in one plane within the tolerance, which adds a
+        # mirror (common practice: a planar structure has at least Cs); keep them out of plane
+        x = s.positions - s.positions.mean(axis=0)
+        normal = np.linalg.svd(x)[2][-1]
+        assume(np.abs(x @ normal).max() > 0.2)
     return s.numbers, s.positions
 
 
