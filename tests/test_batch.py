@@ -187,3 +187,22 @@ def test_demo_runs(tmp_path, capsys):
     assert run_demo(out=str(tmp_path)) == 0
     out = capsys.readouterr().out
     assert "INVENTED" in out and "D3d" in out and "Ih" in out and "ERROR" in out
+
+
+@pytest.mark.parametrize("group", ["C3", "C5", "S6", "C3h", "C4h", "T", "Th", "D3d", "Oh"])
+def test_batch_equals_single_analysis_for_complex_pair_groups(group):
+    # groups whose E irreps are real forms of complex-conjugate pairs (norm 2 in the
+    # reduction formula) must reduce the same way in batches as one at a time
+    from gammatrace.builders import orbit_structure
+
+    rng = np.random.default_rng(11)
+    s = orbit_structure(gt.get_table(group).operations, rng.normal(size=(3, 3)) * 2, [6, 1, 8])
+    single = gt.analyze(s).vibrations()
+    table = analyze_batch([s], output="dict")
+    assert table["error"][0] == ""
+    assert table["point_group"][0] == group
+    assert table["n_fundamentals"][0] == single.n_fundamentals
+    assert table["n_ir"][0] == single.n_ir and table["n_raman"][0] == single.n_raman
+    from gammatrace.spectroscopy import format_irreps
+
+    assert table["gamma_vib"][0] == format_irreps(single.irreps)

@@ -165,6 +165,8 @@ def _format_rows(table, mult: np.ndarray) -> np.ndarray:
 
 def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, cols: dict):
     """Vectorised classes, Γ_3N, Γ_vib and activity for all rows of one point group."""
+    from . import _core
+    from .spectroscopy import external_characters, vibration_count
     from .tables import get_table
 
     table = get_table(group)
@@ -177,10 +179,13 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
     frames = raw["frame"][rows]
     std = np.einsum("kij,khjl,kml->khim", frames, ops, frames)
     cls = np.asarray(table.assign_classes(std.reshape(-1, 3, 3)), dtype=np.int64).reshape(-1, h)
-    proper = raw["proper"][idx]
-    angle = np.radians(raw["angle"][idx])
-    unshifted = raw["unshifted"][idx].astype(np.float64)
-    chi_op = unshifted * (np.where(proper, 1.0, -1.0) + 2.0 * np.cos(angle))
+    # Γ_3N per operation: unshifted atoms × the core's per-atom contribution of x, y, z (l = 1)
+    per_atom = _core.orbital_contributions(
+        np.ascontiguousarray(raw["proper"][idx].reshape(-1)),
+        np.ascontiguousarray(raw["angle"][idx].reshape(-1)),
+        1,
+    ).reshape(idx.shape)
+    chi_op = raw["unshifted"][idx].astype(np.float64) * per_atom
     k, nc = len(rows), len(table.classes)
     flat = (np.arange(k)[:, None] * nc + cls).reshape(-1)
     sums = np.bincount(flat, weights=chi_op.reshape(-1), minlength=k * nc).reshape(k, nc)
@@ -188,20 +193,10 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
     chars = sums / sizes
     spread = np.abs(chi_op - np.take_along_axis(chars, cls, axis=1)).max(axis=1)
     bad = spread > 1e-6
-    trans = np.asarray(table.vector_characters, dtype=np.float64)
-    rot = np.asarray(table.rotation_characters, dtype=np.float64)
-    n = n_atoms[rows]
-    if table.is_linear:
-        rz = next(ir for ir in table.irreps if "Rz" in ir.functions)
-        rot = rot - np.asarray(rz.characters, dtype=np.float64)
-        modes = np.where(n > 1, 3 * n - 5, 0)
-    else:
-        modes = 3 * n - 6
-    gvib = chars - trans[None, :] - rot[None, :]
-    # reduction formula for all rows at once; integrality checked row by row below
-    char_matrix = np.asarray(table.character_matrix, dtype=np.float64)
-    order = float(sizes.sum())
-    mult_f = (gvib * sizes[None, :]) @ char_matrix.T / order
+    modes = vibration_count(table, n_atoms[rows])
+    gvib = chars - external_characters(table)[None, :]
+    # the table's reduction formula for all rows at once; integrality checked row by row
+    mult_f = table.raw_multiplicities(gvib)
     mult = np.rint(mult_f).astype(np.int64)
     bad |= np.abs(mult_f - mult).max(axis=1) > 1e-6
     dims = np.asarray([ir.dim for ir in table.irreps])

@@ -72,6 +72,26 @@ def format_irreps(irreps: dict) -> str:
     return " + ".join(f"{n if n != 1 else ''}{label}" for label, n in irreps.items())
 
 
+def external_characters(table) -> np.ndarray:
+    """Characters of Γ_trans + Γ_rot per class (for a linear group only Rx, Ry rotate).
+
+    Γ_vib = Γ_3N − this; shared by single analyses and batches.
+    """
+    trans = np.asarray(table.vector_characters, dtype=np.float64)
+    rot = np.asarray(table.rotation_characters, dtype=np.float64)
+    if table.is_linear:
+        # Rotation about the molecular axis is not a degree of freedom: drop the Rz irrep.
+        rz = [ir for ir in table.irreps if "Rz" in ir.functions]
+        rot = rot - np.asarray(rz[0].characters, dtype=np.float64)
+    return trans + rot
+
+
+def vibration_count(table, n_atoms) -> np.ndarray:
+    """3N − 6 (3N − 5 for a linear group; 0 for one atom) for each entry of ``n_atoms``."""
+    n = np.asarray(n_atoms, dtype=np.int64)
+    return np.where(n > 1, 3 * n - (5 if table.is_linear else 6), 0)
+
+
 def vibrations(analysis: Analysis) -> Vibrations:
     """Γ_vib of an analysed structure, with IR and Raman activity.
 
@@ -85,18 +105,8 @@ def vibrations(analysis: Analysis) -> Vibrations:
     if table is None:  # a single atom: no vibrations
         return Vibrations({}, 0, {}, {}, 0, 0, 0, False, np.zeros(1))
     gamma_3n = analysis.representation("cartesian").characters
-    trans = np.asarray(table.vector_characters, dtype=np.float64)
-    rot = np.asarray(table.rotation_characters, dtype=np.float64)
-    if table.is_linear:
-        # Rotation about the molecular axis is not a degree of freedom: drop the Rz irrep.
-        rz = [ir for ir in table.irreps if "Rz" in ir.functions]
-        rot = rot - np.asarray(rz[0].characters, dtype=np.float64)
-        modes = 3 * n - 5
-    else:
-        modes = 3 * n - 6
-    if n == 1:
-        modes = 0
-    chars = gamma_3n - trans - rot
+    chars = gamma_3n - external_characters(table)
+    modes = int(vibration_count(table, np.array([n]))[0])
     irreps = table.reduce(chars, what="Γ_vib")
     negative = {k: v for k, v in irreps.items() if v < 0}
     if negative:

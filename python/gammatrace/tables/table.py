@@ -182,8 +182,15 @@ class CharacterTable:
 
     # -- reduction ---------------------------------------------------------------------
 
-    def _raw_multiplicities(self, chars: np.ndarray) -> np.ndarray:
-        return chars @ (self.character_matrix * self.class_sizes).T / (self._h * self._kappa)
+    def raw_multiplicities(self, chars) -> np.ndarray:
+        """The reduction formula without rounding or checks: n_i = (1/h) Σ g χ χ_i / κ_i.
+
+        ``chars`` is ``(n_classes,)`` or ``(k, n_classes)``; the result has the matching
+        leading shape. For callers that check integrality themselves (batches flag bad rows
+        instead of raising); :meth:`reduce` and :meth:`reduce_many` use it.
+        """
+        arr = np.asarray(chars, dtype=np.float64)
+        return arr @ (self.character_matrix * self.class_sizes).T / (self._h * self._kappa)
 
     def _check_chars(self, chars, ndim: int) -> np.ndarray:
         arr = np.asarray(chars, dtype=np.float64)
@@ -238,7 +245,7 @@ class CharacterTable:
         {'A1': 3, 'A2': 1, 'E': 4}
         """
         chars = self._check_chars(chars_per_class, 1)
-        raw = self._raw_multiplicities(chars)
+        raw = self.raw_multiplicities(chars)
         n = np.round(raw)
         if np.abs(raw - n).max() > _INTEGER_TOL or (n < 0).any():
             raise ReductionError(self._residual_message(what, chars, raw))
@@ -261,7 +268,7 @@ class CharacterTable:
             For the first row that does not reduce (the message names the row).
         """
         arr = self._check_chars(chars, 2)
-        raw = self._raw_multiplicities(arr)
+        raw = self.raw_multiplicities(arr)
         n = np.round(raw)
         bad = np.flatnonzero((np.abs(raw - n).max(axis=1) > _INTEGER_TOL) | (n < 0).any(axis=1))
         if len(bad):
