@@ -430,8 +430,8 @@ class Analysis:
         """Schoenflies names of the stabilisers of the given atoms."""
         if self.table is None:
             return [ATOM_GROUP] * len(representatives)
-        from .identify import identify_operations
         from .sites import _canonical_indices, _images
+        from .tables.subgroups import identify_group
 
         canon = _canonical_indices(self)
         images = _images(self, representatives, canon)  # (h, k), rows = canonical operations
@@ -442,7 +442,7 @@ class Analysis:
             stab = np.flatnonzero(images[:, j] == atom)
             key = stab.tobytes()
             if key not in cache:
-                cache[key] = identify_operations(ops[stab])
+                cache[key] = identify_group(ops[stab])
             out.append(cache[key])
         return out
 

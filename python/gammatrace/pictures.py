@@ -32,29 +32,21 @@ def symmetry_elements(analysis: Analysis) -> dict:
 
     Axes and normals are in the input frame; ``center`` is the centre of mass.
     """
-    from .identify import _axis_and_angle, _rotation_order
+    from .tables._ops import describe, fraction_of_turn
 
-    h = len(analysis.operation_matrices)
+    proper, angle, axis = describe(analysis.operation_matrices)
     axes: list[tuple[np.ndarray, int]] = []
-    normals: list[np.ndarray] = []
-    inversion = False
-    for m, proper in zip(analysis.operation_matrices, analysis.proper):
-        if proper:
-            axis, angle = _axis_and_angle(m)
-            n = _rotation_order(angle, h)
-            if n < 2:
-                continue
-            for k, (a, o) in enumerate(axes):
-                if abs(abs(float(a @ axis)) - 1) < 1e-6:
-                    axes[k] = (a, max(o, n))
-                    break
-            else:
-                axes.append((axis, n))
-        elif np.allclose(m, -np.eye(3), atol=1e-6):
-            inversion = True
-        elif abs(np.trace(m) - 1.0) < 1e-6:
-            w, v = np.linalg.eigh((m + m.T) / 2)
-            normals.append(v[:, int(np.argmin(w))])
+    for a, t in zip(axis[proper & (angle > 1e-6)], angle[proper & (angle > 1e-6)]):
+        n = fraction_of_turn(t, 4000).denominator
+        for k, (b, o) in enumerate(axes):
+            if abs(abs(float(a @ b)) - 1) < 1e-6:
+                axes[k] = (b, max(o, n))
+                break
+        else:
+            axes.append((a, n))
+    improper = ~proper
+    normals = list(axis[improper & (angle < 1e-6)])  # σ = σh·C(0): the axis is the normal
+    inversion = bool((improper & (np.abs(angle - 180.0) < 1e-6)).any())
     return {"axes": axes, "planes": normals, "inversion": inversion, "center": analysis.center}
 
 

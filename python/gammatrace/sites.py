@@ -27,7 +27,6 @@ import numpy as np
 
 from .analysis import ATOM_GROUP, Analysis
 from .errors import BasisError, SymmetryError
-from .identify import identify_operations
 from .representations import json_number, parse_basis
 from .spectroscopy import format_irreps
 from .tables import get_table
@@ -264,7 +263,7 @@ def _display_name(analysis: Analysis, name: str, h_site: int) -> str:
 def _site_frame(table, idx: np.ndarray):
     """Name, site table, frame (in the molecule's standard frame) and classes of a stabiliser."""
     ops = table.operations[idx]
-    name = identify_operations(ops)
+    name = identify_group(ops)
     site_tab = get_table(name)
     frames = _frames(name, ops, site_tab)
     if not frames:  # the two namers disagree only for degenerate inputs; try the other one
