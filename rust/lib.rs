@@ -150,6 +150,31 @@ mod glue {
             .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))
     }
 
+    /// An `(n, 3)` float64 array as rows of 3 (borrowed, no copy).
+    fn coords<'a>(a: &'a PyReadonlyArray2<'_, f64>, name: &str) -> PyResult<&'a [[f64; 3]]> {
+        rows3(slice2(a, name)?, name)
+    }
+
+    /// A `(k, 3, 3)` float64 array as 3×3 matrices (borrowed, no copy).
+    fn matrices<'a>(a: &'a PyReadonlyArray3<'_, f64>, name: &str) -> PyResult<&'a [[[f64; 3]; 3]]> {
+        mats3(slice3(a, name)?, name)
+    }
+
+    /// Rows of atom indices (permutations, bond pairs) as an int64 `(rows, width)` array.
+    fn index_rows<'py, R: AsRef<[u32]>>(
+        py: Python<'py>,
+        rows: &[R],
+        width: usize,
+    ) -> PyResult<Bound<'py, PyArray2<i64>>> {
+        let flat: Vec<i64> = rows
+            .iter()
+            .flat_map(|r| r.as_ref().iter().map(|&j| j as i64))
+            .collect();
+        let arr = Array2::from_shape_vec((rows.len(), width), flat)
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        Ok(arr.into_pyarray(py))
+    }
+
     fn slice1<'a, T: numpy::Element>(
         a: &'a PyReadonlyArray1<'_, T>,
         name: &str,
@@ -175,7 +200,7 @@ mod glue {
         linear_n: usize,
         verify_all_limit: usize,
     ) -> PyResult<Bound<'py, PyDict>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let pos = coords(&positions, "positions")?;
         let num = slice1(&numbers, "numbers")?;
         let opts = detect::DetectOptions {
             tol,
@@ -204,14 +229,7 @@ mod glue {
         out.set_item("classes", PyList::new(py, &sym.classes)?)?;
         out.set_item("generators", PyList::new(py, &sym.generators)?)?;
         out.set_item("verified", PyList::new(py, &sym.verified)?)?;
-        let flat: Vec<i64> = sym
-            .permutations
-            .iter()
-            .flat_map(|p| p.iter().map(|&j| j as i64))
-            .collect();
-        let perms = Array2::from_shape_vec((sym.permutations.len(), n), flat)
-            .map_err(|e| PyValueError::new_err(e.to_string()))?;
-        out.set_item("permutations", perms.into_pyarray(py))?;
+        out.set_item("permutations", index_rows(py, &sym.permutations, n)?)?;
         out.set_item("max_deviation", sym.max_deviation)?;
         Ok(out)
     }
@@ -228,20 +246,16 @@ mod glue {
         operations: PyReadonlyArray3<'py, f64>,
         tol: f64,
     ) -> PyResult<MappedOperations<'py>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let pos = coords(&positions, "positions")?;
         let num = slice1(&numbers, "numbers")?;
-        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let ops = matrices(&operations, "operations")?;
         let (perms, devs) = py
             .detach(|| guarded(|| detect::map_operations(pos, num, center, ops, tol)))
             .map_err(CoreError)?;
-        let n = pos.len();
-        let flat: Vec<i64> = perms
-            .iter()
-            .flat_map(|p| p.iter().map(|&j| j as i64))
-            .collect();
-        let arr = Array2::from_shape_vec((perms.len(), n), flat)
-            .map_err(|e| PyValueError::new_err(e.to_string()))?;
-        Ok((arr.into_pyarray(py), Array1::from(devs).into_pyarray(py)))
+        Ok((
+            index_rows(py, &perms, pos.len())?,
+            Array1::from(devs).into_pyarray(py),
+        ))
     }
 
     /// Unshifted atoms per operation.
@@ -253,8 +267,8 @@ mod glue {
         operations: PyReadonlyArray3<'py, f64>,
         tol: f64,
     ) -> PyResult<Bound<'py, PyArray1<u64>>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
-        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let pos = coords(&positions, "positions")?;
+        let ops = matrices(&operations, "operations")?;
         let out = py.detach(|| count::count_unshifted(pos, center, ops, tol));
         Ok(out.into_pyarray(py))
     }
@@ -272,8 +286,8 @@ mod glue {
         shell_counts: PyReadonlyArray2<'py, u32>,
         tol: f64,
     ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
-        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let pos = coords(&positions, "positions")?;
+        let ops = matrices(&operations, "operations")?;
         let prop = slice1(&proper, "proper")?;
         let ang = slice1(&angle, "angle")?;
         let n_l = shell_counts.shape()[1];
@@ -312,8 +326,8 @@ mod glue {
         normal: [f64; 3],
         tol: f64,
     ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
-        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let pos = coords(&positions, "positions")?;
+        let ops = matrices(&operations, "operations")?;
         let out = py.detach(|| count::pi_characters(pos, center, ops, normal, tol));
         Ok(out.into_pyarray(py))
     }
@@ -326,18 +340,12 @@ mod glue {
         radii: PyReadonlyArray1<'py, f64>,
         scale: f64,
     ) -> PyResult<Bound<'py, PyArray2<i64>>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let pos = coords(&positions, "positions")?;
         let rad = slice1(&radii, "radii")?;
         let bonds = py
             .detach(|| count::find_bonds(pos, rad, scale))
             .map_err(CoreError)?;
-        let flat: Vec<i64> = bonds
-            .iter()
-            .flat_map(|b| [b[0] as i64, b[1] as i64])
-            .collect();
-        let arr = Array2::from_shape_vec((bonds.len(), 2), flat)
-            .map_err(|e| PyValueError::new_err(e.to_string()))?;
-        Ok(arr.into_pyarray(py))
+        index_rows(py, &bonds, 2)
     }
 
     /// Characters of bond stretches (oriented=False) or vectors along bonds (oriented=True).
@@ -351,8 +359,8 @@ mod glue {
         oriented: bool,
         tol: f64,
     ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
-        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
+        let pos = coords(&positions, "positions")?;
+        let ops = matrices(&operations, "operations")?;
         if bonds.ndim() != 2 || (bonds.shape()[1] != 2 && bonds.shape()[0] != 0) {
             return Err(PyValueError::new_err(format!(
                 "bonds: expected shape (n_bonds, 2), got {:?}",
@@ -390,9 +398,9 @@ mod glue {
         per_atom: usize,
         tol: f64,
     ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
-        let ops = mats3(slice3(&operations, "operations")?, "operations")?;
-        let vec = rows3(slice2(&vectors, "vectors")?, "vectors")?;
+        let pos = coords(&positions, "positions")?;
+        let ops = matrices(&operations, "operations")?;
+        let vec = coords(&vectors, "vectors")?;
         let out = py
             .detach(|| {
                 guarded(|| count::vector_set_characters(pos, center, ops, vec, per_atom, tol))
@@ -557,7 +565,7 @@ mod glue {
         linear_n: usize,
         n_threads: usize,
     ) -> PyResult<Bound<'py, PyDict>> {
-        let pos = rows3(slice2(&positions, "positions")?, "positions")?;
+        let pos = coords(&positions, "positions")?;
         let num = slice1(&numbers, "numbers")?;
         let off_raw = slice1(&offsets, "offsets")?;
         let mut off = Vec::with_capacity(off_raw.len());

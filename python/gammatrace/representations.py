@@ -327,9 +327,11 @@ def count_characters(analysis: Analysis, basis: Basis) -> tuple[np.ndarray, np.n
                 f"bonds: bond {k} ({bonds[k, 0]}, {bonds[k, 1]}) names an atom that does not "
                 f"exist (the structure has {s.n_atoms} atoms)"
             )
-        chars = _core.bond_characters(pos, center, ops, bonds, kind == "bond_vectors", tol)
+        # a stretch's character is the count of bonds kept; vectors need the signed count too
         unshifted = _core.bond_characters(pos, center, ops, bonds, False, tol)
-        return chars, unshifted
+        if kind == "bonds":
+            return unshifted.copy(), unshifted
+        return _core.bond_characters(pos, center, ops, bonds, True, tol), unshifted
     unshifted = analysis.unshifted_atoms
     if kind == "atoms":
         return unshifted.copy(), unshifted
