@@ -28,10 +28,11 @@ def _dump(obj: Any) -> str:
     return json.dumps(obj, ensure_ascii=False, allow_nan=False)
 
 
-def _fail(exc: BaseException, show_traceback: bool) -> None:
+def _fail(exc: BaseException, show_traceback: bool, where: str = "") -> None:
+    """The one stderr line of a failure (``--traceback`` adds the full story)."""
     if show_traceback:
         traceback.print_exception(type(exc), exc, exc.__traceback__, file=sys.stderr)
-    print(f"gammatrace: {type(exc).__name__}: {exc}", file=sys.stderr)
+    print(f"gammatrace: {type(exc).__name__}: {where}{exc}", file=sys.stderr)
 
 
 def _cmd_analyze(args: argparse.Namespace) -> int:

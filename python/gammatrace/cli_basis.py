@@ -15,7 +15,7 @@ from typing import Any
 
 import numpy as np
 
-from .errors import GammatraceError, InputError
+from .errors import InputError
 
 __all__ = ["add_commands", "basis_from_spec"]
 
@@ -185,7 +185,7 @@ def add_commands(subparsers: Any) -> None:
         help="cartesian, atoms, bonds, bond_vectors, orbitals:Fe=spd,H=s",
     )
     s.add_argument("--out", default=None, help="save X and its labels (.npz)")
-    s.set_defaults(func=_guard(_cmd_salc))
+    s.set_defaults(func=_cmd_salc)
 
     m = subparsers.add_parser("modes", help="label normal modes from a Cartesian Hessian")
     common(m)
@@ -196,22 +196,9 @@ def add_commands(subparsers: Any) -> None:
         help="force-constant unit: mdyn/angstrom, hartree/bohr2 or eV/angstrom2",
     )
     m.add_argument("--mass-weighted", action="store_true", help="the Hessian is mass-weighted")
-    m.set_defaults(func=_guard(_cmd_modes))
+    m.set_defaults(func=_cmd_modes)
 
     y = subparsers.add_parser("symmetrize", help="project onto the exact point group")
     common(y)
     y.add_argument("--out", default=None, help="write the symmetrized structure (XYZ)")
-    y.set_defaults(func=_guard(_cmd_symmetrize))
-
-
-def _guard(func):
-    def run(args: argparse.Namespace) -> int:
-        try:
-            return func(args)
-        except GammatraceError as exc:
-            if getattr(args, "traceback", False):
-                raise
-            print(f"gammatrace: {type(exc).__name__}: {exc}", file=sys.stderr)
-            return 1
-
-    return run
+    y.set_defaults(func=_cmd_symmetrize)

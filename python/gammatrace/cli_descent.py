@@ -16,29 +16,14 @@ JSON Lines, one object per structure, in input order; a structure that fails is 
 from __future__ import annotations
 
 import argparse
-import json
 import sys
-import traceback
 from collections.abc import Sequence
 from typing import Any
 
+from .cli import _dump, _fail, _write
 from .errors import GammatraceError
 
 __all__ = ["add_commands"]
-
-
-def _write(text: str) -> None:
-    sys.stdout.buffer.write(text.encode("utf-8"))
-
-
-def _dump(obj: Any) -> str:
-    return json.dumps(obj, ensure_ascii=False, allow_nan=False)
-
-
-def _fail(exc: BaseException, show_traceback: bool, where: str = "") -> None:
-    if show_traceback:
-        traceback.print_exception(type(exc), exc, exc.__traceback__, file=sys.stderr)
-    print(f"gammatrace: {type(exc).__name__}: {where}{exc}", file=sys.stderr)
 
 
 def _error_record(source: str, index: int, exc: BaseException) -> dict:
