@@ -915,22 +915,7 @@ mod tests {
         }
     }
 
-    /// Small deterministic generator (xorshift64*), so the tests need no extra crate.
-    struct Rng(u64);
-    impl Rng {
-        fn next(&mut self) -> f64 {
-            self.0 ^= self.0 >> 12;
-            self.0 ^= self.0 << 25;
-            self.0 ^= self.0 >> 27;
-            (self.0.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
-        }
-        fn sym(&mut self, s: f64) -> f64 {
-            (2.0 * self.next() - 1.0) * s
-        }
-        fn point(&mut self, s: f64) -> [f64; 3] {
-            [self.sym(s), self.sym(s), self.sym(s)]
-        }
-    }
+    use crate::testutil::Rng;
 
     /// A symmetric structure: orbits of seeds under `group` (some seeds moved onto fixed
     /// elements of single operations), rotated by a random rotation and shifted to `center`.

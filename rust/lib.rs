@@ -20,6 +20,8 @@ pub mod lookup;
 pub mod ops;
 pub mod readers;
 pub mod structure;
+#[cfg(test)]
+mod testutil;
 
 pub use error::{Error, Result};
 

@@ -496,17 +496,7 @@ mod tests {
     use super::*;
     use crate::ops::PointOp;
 
-    /// splitmix64: a small deterministic generator for test inputs.
-    struct Rng(u64);
-    impl Rng {
-        fn next(&mut self) -> f64 {
-            self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-            let mut z = self.0;
-            z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-            z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-            ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-        }
-    }
+    use crate::testutil::Rng;
 
     fn cubic_lattice(n: usize, a: f64) -> Vec<[f64; 3]> {
         let mut v = Vec::new();

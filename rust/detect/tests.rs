@@ -7,23 +7,12 @@
 use super::*;
 use crate::ops::{max_abs_diff, IDENTITY};
 
-/// splitmix64: deterministic test randomness.
-struct Rng(u64);
-impl Rng {
-    fn next(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    }
-    fn sym(&mut self) -> f64 {
-        2.0 * self.next() - 1.0
-    }
-    fn rotation(&mut self) -> Mat3 {
-        let axis = [self.sym(), self.sym(), self.sym() + 0.1];
-        PointOp::rotation(axis, 360.0 * self.next()).matrix
-    }
+use crate::testutil::Rng;
+
+/// A random proper rotation.
+fn random_rotation(rng: &mut Rng) -> Mat3 {
+    let axis = [rng.sym(1.0), rng.sym(1.0), rng.sym(1.0) + 0.1];
+    PointOp::rotation(axis, 360.0 * rng.next()).matrix
 }
 
 type Atoms = (Vec<[f64; 3]>, Vec<i64>);
@@ -106,7 +95,7 @@ fn generic_orbit(gens: &[PointOp], seeds: &[([f64; 3], i64)]) -> Atoms {
         }
         for (p, _) in s.iter_mut() {
             for c in p.iter_mut() {
-                *c += 0.2 * rng.sym();
+                *c += 0.2 * rng.sym(1.0);
             }
         }
     }
@@ -220,8 +209,12 @@ fn check_consistency(p: &[[f64; 3]], z: &[i64], sym: &Symmetry, tol: f64) {
 
 /// Random rotation, translation and atom permutation.
 fn scramble(atoms: &Atoms, rng: &mut Rng) -> Atoms {
-    let r = rng.rotation();
-    let t = [rng.sym() * 10.0, rng.sym() * 10.0, rng.sym() * 10.0];
+    let r = random_rotation(rng);
+    let t = [
+        rng.sym(1.0) * 10.0,
+        rng.sym(1.0) * 10.0,
+        rng.sym(1.0) * 10.0,
+    ];
     let n = atoms.0.len();
     let mut idx: Vec<usize> = (0..n).collect();
     for i in (1..n).rev() {
@@ -247,9 +240,9 @@ fn perturb(atoms: &Atoms, rng: &mut Rng) -> Atoms {
         .iter()
         .map(|q| {
             [
-                q[0] + a * rng.sym(),
-                q[1] + a * rng.sym(),
-                q[2] + a * rng.sym(),
+                q[0] + a * rng.sym(1.0),
+                q[1] + a * rng.sym(1.0),
+                q[2] + a * rng.sym(1.0),
             ]
         })
         .collect();
@@ -717,7 +710,7 @@ fn test_large_cluster_verifies_generators_only() {
     let seeds: Vec<([f64; 3], i64)> = (0..210)
         .map(|k| {
             let r = 3.0 + 0.1 * k as f64;
-            let d = crate::ops::normalize(&[rng.sym(), rng.sym(), rng.sym()]).unwrap();
+            let d = crate::ops::normalize(&[rng.sym(1.0), rng.sym(1.0), rng.sym(1.0)]).unwrap();
             ([d[0] * r, d[1] * r, d[2] * r], 6 + (k % 2) as i64)
         })
         .collect();
@@ -746,7 +739,7 @@ fn test_single_defect_in_a_large_cluster_lowers_the_group() {
     let seeds: Vec<([f64; 3], i64)> = (0..50)
         .map(|k| {
             let r = 4.0 + 0.37 * k as f64;
-            let d = crate::ops::normalize(&[rng.sym(), rng.sym(), rng.sym()]).unwrap();
+            let d = crate::ops::normalize(&[rng.sym(1.0), rng.sym(1.0), rng.sym(1.0)]).unwrap();
             ([d[0] * r, d[1] * r, d[2] * r], 6)
         })
         .collect();
@@ -866,7 +859,7 @@ fn timing_large_icosahedral_cluster() {
     for k in 0..n_seeds {
         // A seed whose 120 images stay ≥ 1 Å apart (off every symmetry element).
         let images = loop {
-            let q = [rng.sym(), rng.sym(), rng.sym()];
+            let q = [rng.sym(1.0), rng.sym(1.0), rng.sym(1.0)];
             if norm(&q) > 1.0 || norm(&q) < 0.05 {
                 continue;
             }
