@@ -38,6 +38,8 @@ MIN_TOL, MAX_TOL = 1e-6, 10.0
 #: above it detection verifies E and the generators, and the other permutations are mapped
 #: on first use (:attr:`Analysis.permutations`).
 VERIFY_ALL_LIMIT = 2_000_000
+#: Largest Frobenius distance between a detected operation and the canonical one it stands for.
+CANONICAL_MATCH = 0.1
 #: Group name reported for a single atom.
 ATOM_GROUP = "K_h"
 DEFAULT_BASES = ("atoms", "cartesian")
@@ -136,10 +138,39 @@ class Analysis:
             self.classes = [ClassInfo("E", 1, True, 0.0)]
             return
         self.table = get_table(self.point_group)
-        std = np.einsum("ij,kjl,ml->kim", self.frame, self.operation_matrices, self.frame)
-        self.op_class = np.asarray(self.table.assign_classes(std), dtype=np.int64)
+        self.op_class = np.asarray(self.table.operation_class, dtype=np.int64)[self.canonical_index]
         self.classes = list(self.table.classes)
         self._check_classes(raw["classes"])
+
+    @cached_property
+    def canonical_index(self) -> np.ndarray:
+        """``int64 (h,)``: which of the table's canonical operations each detected operation is.
+
+        The one place where detected operations meet the table (DEVELOPERS.md): each is
+        rotated into the standard frame and matched to the nearest canonical matrix; the
+        match must be one-to-one. Classes, site groups and group products all follow from it.
+
+        Raises
+        ------
+        SymmetryError
+            When the detected operations do not map one-to-one onto the table's.
+        """
+        from .tables._ops import nearest
+
+        table = self.table
+        std = np.einsum("ij,kjl,ml->kim", self.frame, self.operation_matrices, self.frame)
+        idx, dist = nearest(table.operations, std)
+        if (
+            len(idx) != len(table.operations)
+            or len(np.unique(idx)) != len(idx)
+            or (len(dist) and dist.max() > CANONICAL_MATCH)
+        ):
+            raise SymmetryError(
+                f"{self.point_group}: the {len(idx)} detected operations do not map one-to-one "
+                f"onto the table's {len(table.operations)} (largest distance "
+                f"{dist.max() if len(dist) else 0.0:.3g})"
+            )
+        return np.asarray(idx, dtype=np.int64)
 
     def _check_classes(self, core_classes: list) -> None:
         """The core's conjugacy classes must coincide with the table's classes."""
@@ -430,10 +461,10 @@ class Analysis:
         """Schoenflies names of the stabilisers of the given atoms."""
         if self.table is None:
             return [ATOM_GROUP] * len(representatives)
-        from .sites import _canonical_indices, _images
+        from .sites import _images
         from .tables.subgroups import identify_group
 
-        canon = _canonical_indices(self)
+        canon = self.canonical_index
         images = _images(self, representatives, canon)  # (h, k), rows = canonical operations
         ops = self.table.operations
         cache: dict = {}

@@ -12,8 +12,8 @@
   :func:`check_induced` compares it with the counted characters and raises on disagreement.
 
 Every group element is handled by its index among the canonical operations of the molecular
-character table (``CharacterTable.operations``, standard frame); detected operations are
-mapped there by nearest matrix, as :class:`~gammatrace.analysis.Analysis` does for classes.
+character table (``CharacterTable.operations``, standard frame), through
+:attr:`~gammatrace.analysis.Analysis.canonical_index`, the same match that gives the classes.
 The public names are re-exported by :mod:`gammatrace.descent`.
 """
 
@@ -30,7 +30,7 @@ from .errors import BasisError, SymmetryError
 from .representations import json_number, parse_basis
 from .spectroscopy import format_irreps
 from .tables import get_table
-from .tables._ops import lookup, nearest
+from .tables._ops import lookup
 from .tables.subgroups import _describe, _frames, identify_group
 
 __all__ = [
@@ -42,8 +42,6 @@ __all__ = [
     "induced_representation",
     "site_analysis",
 ]
-#: Largest Frobenius distance between a detected operation and the canonical one it stands for.
-_OP_MATCH = 0.1
 
 
 # --------------------------------------------------------------------------------------------
@@ -62,24 +60,6 @@ def _group_tables(name: str) -> tuple[np.ndarray, np.ndarray, int]:
     for arr in (prod, inv):
         arr.setflags(write=False)
     return prod, inv, ident
-
-
-def _canonical_indices(analysis: Analysis) -> np.ndarray:
-    """Index among the table's canonical operations of every detected operation (a bijection)."""
-    table = analysis.table
-    std = np.einsum("ij,kjl,ml->kim", analysis.frame, analysis.operation_matrices, analysis.frame)
-    idx, dist = nearest(table.operations, std)
-    if (
-        len(idx) != len(table.operations)
-        or len(np.unique(idx)) != len(idx)
-        or (len(dist) and dist.max() > _OP_MATCH)
-    ):
-        raise SymmetryError(
-            f"{analysis.point_group}: the {len(idx)} detected operations do not map one-to-one "
-            f"onto the table's {len(table.operations)} (largest distance "
-            f"{dist.max() if len(dist) else 0.0:.3g})"
-        )
-    return idx
 
 
 def _images(analysis: Analysis, atoms: np.ndarray, canon: np.ndarray) -> np.ndarray:
@@ -331,7 +311,7 @@ def site_analysis(analysis: Analysis) -> SiteAnalysis:
     rank[order] = np.arange(len(order))
     by_atom = np.argsort(rank[ids], kind="stable")
     groups = np.split(by_atom, np.cumsum(np.bincount(rank[ids]))[:-1])
-    canon = _canonical_indices(analysis)
+    canon = analysis.canonical_index
     to_analysis = np.empty_like(canon)
     to_analysis[canon] = np.arange(len(canon))
     img = _images(analysis, reps, canon)
