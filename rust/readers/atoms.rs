@@ -1,0 +1,201 @@
+//! Atom lines: the comment line of each frame and the parallel parse of its atom lines.
+
+use super::extxyz::{layout_from_properties, parse_info, Layout, STANDARD};
+use super::lines::{find_newline, show, skip_spaces, token_end};
+use super::numbers::parse_f64;
+use super::scan::Span;
+use super::ToNumber;
+use crate::error::Error;
+
+/// A run of atom lines of one frame, parsed as one piece.
+#[derive(Debug, Clone, Copy)]
+pub(super) struct Segment {
+    pub(super) frame: usize,
+    pub(super) start: usize,
+    pub(super) n_lines: usize,
+    pub(super) first_atom: usize,
+    pub(super) first_line: usize,
+}
+
+#[derive(Default)]
+pub(super) struct UnitOut {
+    pub(super) positions: Vec<[f64; 3]>,
+    pub(super) numbers: Vec<i64>,
+    /// Per segment: (frame, atoms pushed, first error).
+    pub(super) results: Vec<(usize, usize, Option<Error>)>,
+}
+
+pub(super) struct Header {
+    pub(super) comment: String,
+    pub(super) info: Vec<(String, String)>,
+    pub(super) layout: std::result::Result<Layout, Error>,
+}
+
+pub(super) fn parse_header(data: &[u8], span: &Span, frame: usize, source: &str) -> Header {
+    let bytes = &data[span.comment.clone()];
+    let comment = match std::str::from_utf8(bytes) {
+        Ok(text) => text.to_owned(),
+        Err(_) => String::from_utf8_lossy(bytes).into_owned(),
+    };
+    let info = parse_info(&comment).unwrap_or_default();
+    let props = info
+        .iter()
+        .find(|(k, _)| k.eq_ignore_ascii_case("properties"));
+    let layout = match props {
+        None => Ok(STANDARD),
+        Some((_, v)) => layout_from_properties(v).map_err(|reason| Error::MalformedXyz {
+            source: source.to_string(),
+            frame,
+            line: span.count_line + 1,
+            reason,
+        }),
+    };
+    Header {
+        comment,
+        info,
+        layout,
+    }
+}
+
+/// Symbol -> number with a tiny cache (molecules repeat few elements).
+pub(super) struct Elements<'a> {
+    pub(super) to_number: &'a ToNumber,
+    /// (symbol packed into a u64, number); symbols of 1..=8 bytes only.
+    pub(super) cache: Vec<(u64, i64)>,
+}
+
+/// A symbol of 1..=8 bytes packed into a u64 (zero-padded), for a cheap cache compare.
+#[inline]
+pub(super) fn pack(sym: &[u8]) -> Option<u64> {
+    if sym.is_empty() || sym.len() > 8 {
+        return None;
+    }
+    let mut b = [0u8; 8];
+    b[..sym.len()].copy_from_slice(sym);
+    Some(u64::from_le_bytes(b))
+}
+
+impl Elements<'_> {
+    pub(super) fn number(&mut self, sym: &[u8]) -> std::result::Result<i64, String> {
+        let key = pack(sym);
+        if let Some(key) = key {
+            if let Some((_, z)) = self.cache.iter().find(|(s, _)| *s == key) {
+                return Ok(*z);
+            }
+        }
+        let z = if sym.iter().all(u8::is_ascii_digit) {
+            let z: i64 = std::str::from_utf8(sym)
+                .ok()
+                .and_then(|s| s.parse().ok())
+                .unwrap_or(0);
+            if !(1..=118).contains(&z) {
+                return Err(format!("atomic number '{}' is outside 1..118", show(sym)));
+            }
+            z
+        } else {
+            let s = std::str::from_utf8(sym).ok();
+            match s.and_then(|s| (self.to_number)(s)) {
+                Some(z) => z,
+                None => return Err(format!("unknown element symbol '{}'", show(sym))),
+            }
+        };
+        if let (Some(key), true) = (key, self.cache.len() < 16) {
+            self.cache.push((key, z));
+        }
+        Ok(z)
+    }
+}
+
+pub(super) fn parse_segment(
+    data: &[u8],
+    seg: &Segment,
+    n_atoms: usize,
+    layout: &Layout,
+    elements: &mut Elements,
+    out: &mut UnitOut,
+    source: &str,
+) -> Option<Error> {
+    let mut pos = seg.start;
+    let len = data.len();
+    let err = |k: usize, reason: String| Error::MalformedXyz {
+        source: source.to_string(),
+        frame: seg.frame,
+        line: seg.first_line + k,
+        reason,
+    };
+    for k in 0..seg.n_lines {
+        // One pass over the line: keep the element and position columns, count columns
+        // up to `needed`, then jump to the next line past any extra columns.
+        let mut sym: &[u8] = &[];
+        let mut coord: [&[u8]; 3] = [&[]; 3];
+        let mut n = 0usize;
+        let mut i = pos;
+        while n < layout.needed {
+            i = skip_spaces(data, i);
+            if i >= len || data[i] == b'\n' {
+                break;
+            }
+            let start = i;
+            i = token_end(data, i);
+            let t = &data[start..i];
+            if n == layout.species {
+                sym = t;
+            } else if n >= layout.pos && n < layout.pos + 3 {
+                coord[n - layout.pos] = t;
+            }
+            n += 1;
+        }
+        pos = match find_newline(data, i) {
+            Some(e) => e + 1,
+            None => len,
+        };
+        if n == 0 {
+            return Some(err(
+                k,
+                format!(
+                    "blank line where atom {} of {n_atoms} was expected",
+                    seg.first_atom + k + 1
+                ),
+            ));
+        }
+        if n < layout.needed {
+            let reason = if layout.extended {
+                format!(
+                    "expected {} columns (from Properties), found {n}",
+                    layout.needed
+                )
+            } else if n == 3
+                && parse_f64(sym).is_some()
+                && sym.iter().any(|b| matches!(b, b'.' | b'e' | b'E'))
+            {
+                // three numbers, the first written as a real (not an atomic number): the
+                // element symbol is missing
+                "the element symbol is missing: expected 'Symbol x y z', found 3 numbers"
+                    .to_string()
+            } else {
+                format!("expected 3 coordinates, found {}", n - 1)
+            };
+            return Some(err(k, reason));
+        }
+        let mut xyz = [0.0; 3];
+        for (a, v) in xyz.iter_mut().enumerate() {
+            let t = coord[a];
+            match parse_f64(t) {
+                Some(x) if x.is_finite() => *v = x,
+                Some(x) if x.is_nan() => return Some(err(k, "NaN coordinate".to_string())),
+                Some(_) => return Some(err(k, "infinite coordinate".to_string())),
+                None => {
+                    return Some(err(k, format!("coordinate '{}' is not a number", show(t))));
+                }
+            }
+        }
+        match elements.number(sym) {
+            Ok(z) => {
+                out.positions.push(xyz);
+                out.numbers.push(z);
+            }
+            Err(reason) => return Some(err(k, reason)),
+        }
+    }
+    None
+}
