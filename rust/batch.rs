@@ -8,6 +8,7 @@
 use crate::count;
 use crate::detect::{self, DetectOptions};
 use crate::error::{Error, Result};
+use crate::parallel;
 
 /// Per-structure results of [`summarize_batch`], all vectors in input order.
 #[derive(Debug, Default)]
@@ -115,13 +116,7 @@ pub fn summarize_batch(
             ),
         });
     }
-    let pool = rayon::ThreadPoolBuilder::new()
-        .num_threads(n_threads)
-        .build()
-        .map_err(|e| Error::InvalidArgument {
-            name: "n_threads".into(),
-            reason: e.to_string(),
-        })?;
+    let pool = parallel::pool(n_threads)?;
     let n = offsets.len() - 1;
     let results: Vec<Result<One>> = pool.install(|| {
         use rayon::prelude::*;

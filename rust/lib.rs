@@ -16,8 +16,10 @@ pub mod batch;
 pub mod count;
 pub mod detect;
 pub mod error;
+pub mod grid;
 pub mod lookup;
 pub mod ops;
+pub mod parallel;
 pub mod readers;
 pub mod structure;
 #[cfg(test)]

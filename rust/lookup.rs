@@ -1,58 +1,24 @@
 //! Tolerant nearest-atom lookup on a uniform cell grid: the hot kernel of detection and
 //! counting.
 //!
-//! The atoms are bucketed into cubic cells (counting sort, O(N)); each cell's atoms are stored
-//! contiguously (positions, atomic numbers, input indices), so a query scans only the cells
-//! that the ball of radius `tol` around the point touches — one cell for most points, since
-//! the cell edge is chosen near the atomic spacing and far above `tol`. The cell table is a
-//! dense array when the bounding box holds few enough cells (≤ 4N + 1024), otherwise an
-//! open-addressing hash of the occupied cells, so memory stays linear in N for shells, tubes
-//! and sparse clusters alike.
-//!
-//! The cell edge starts at L/∛N (L the largest extent of the bounding box) and shrinks while
-//! occupied cells hold more than 2.5 atoms on average, never below 2·tol (nor below
-//! L/2²⁰, which keeps cell keys in 64 bits).
+//! The grid itself (cells, dense or hashed) is grid.rs; this file adds the tolerance, the
+//! element-aware query and the two kernels that detection runs: [`find_overlap`] and
+//! [`map_atoms`].
 
 use crate::error::{Error, Result};
+use crate::grid::{CellEdge, CellGrid};
 use crate::ops::{mat_vec, Mat3, Vec3};
-use rayon::prelude::*;
+use crate::parallel;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
 /// Above this many atoms `map_atoms` and `find_overlap` run in parallel (current rayon pool;
 /// callers choose the thread count with `ThreadPool::install`). Results do not depend on it.
 pub const PARALLEL_MIN_ATOMS: usize = 50_000;
 
-const CHUNK: usize = 4096;
-const EMPTY: u64 = u64::MAX;
-
-#[derive(Clone, Copy)]
-struct Slot {
-    key: u64,
-    start: u32,
-    count: u32,
-}
-
-enum Cells {
-    Dense { starts: Vec<u32> },
-    Hash { mask: usize, slots: Vec<Slot> },
-}
-
 /// A cell grid over a set of atoms (positions in Å, atomic numbers), built for a tolerance.
 pub struct Grid {
     tol: f64,
-    inv_cell: f64,
-    cell: f64,
-    origin: Vec3,
-    dims: [i64; 3],
-    cells: Cells,
-    pos: Vec<Vec3>,
-    num: Vec<i64>,
-    idx: Vec<u32>,
-}
-
-#[inline]
-fn hash(key: u64, mask: usize) -> usize {
-    (key.wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 20) as usize & mask
+    cells: CellGrid,
 }
 
 fn check_tol(tol: f64) -> Result<()> {
@@ -60,51 +26,6 @@ fn check_tol(tol: f64) -> Result<()> {
         Ok(())
     } else {
         Err(Error::BadTolerance { value: tol })
-    }
-}
-
-/// Hash table of cell key → atom count, capacity a power of two ≥ 2·N.
-fn count_cells(keys: &[u64]) -> (usize, Vec<Slot>) {
-    let cap = (2 * keys.len().max(8)).next_power_of_two();
-    let mask = cap - 1;
-    let mut slots = vec![
-        Slot {
-            key: EMPTY,
-            start: 0,
-            count: 0
-        };
-        cap
-    ];
-    for &k in keys {
-        let mut h = hash(k, mask);
-        loop {
-            let s = &mut slots[h];
-            if s.key == k {
-                s.count += 1;
-                break;
-            }
-            if s.key == EMPTY {
-                s.key = k;
-                s.count = 1;
-                break;
-            }
-            h = (h + 1) & mask;
-        }
-    }
-    (mask, slots)
-}
-
-fn find_slot(slots: &[Slot], mask: usize, key: u64) -> Option<usize> {
-    let mut h = hash(key, mask);
-    loop {
-        let s = slots.get(h)?;
-        if s.key == key {
-            return Some(h);
-        }
-        if s.key == EMPTY {
-            return None;
-        }
-        h = (h + 1) & mask;
     }
 }
 
@@ -122,129 +43,19 @@ impl Grid {
             });
         }
         check_tol(tol)?;
-        let n = positions.len();
-        if n >= u32::MAX as usize {
-            return Err(Error::InvalidArgument {
-                name: "positions".into(),
-                reason: format!("{n} atoms is more than the lookup supports (2^32 - 2)"),
-            });
-        }
-        let mut lo = [f64::INFINITY; 3];
-        let mut hi = [f64::NEG_INFINITY; 3];
-        for (atom, p) in positions.iter().enumerate() {
-            for k in 0..3 {
-                if !p[k].is_finite() {
-                    return Err(Error::NonFiniteCoordinate { atom });
-                }
-                lo[k] = lo[k].min(p[k]);
-                hi[k] = hi[k].max(p[k]);
-            }
-        }
-        if n == 0 {
-            lo = [0.0; 3];
-            hi = [0.0; 3];
-        }
-        let extent = (0..3).map(|k| hi[k] - lo[k]).fold(0.0_f64, f64::max);
-        let floor = (2.0 * tol).max(extent / (1u64 << 20) as f64);
-        let mut cell = if extent > 0.0 {
-            (extent / (n.max(1) as f64).cbrt()).max(floor)
-        } else {
-            floor.max(1.0)
-        };
-        let origin = lo;
-        let mut keys = vec![0u64; n];
-        let mut dims;
-        let mut counted;
-        let mut rounds = 0;
-        loop {
-            let inv = 1.0 / cell;
-            dims = [0i64; 3];
-            for k in 0..3 {
-                dims[k] = ((hi[k] - lo[k]) * inv) as i64 + 1;
-            }
-            for (key, p) in keys.iter_mut().zip(positions) {
-                *key = cell_key(p, &origin, inv, &dims);
-            }
-            counted = count_cells(&keys);
-            let occupied = counted.1.iter().filter(|s| s.key != EMPTY).count().max(1);
-            let load = n as f64 / occupied as f64;
-            rounds += 1;
-            if load <= 2.5 || cell <= floor * 1.000_001 || rounds >= 8 {
-                break;
-            }
-            cell = (cell / load.sqrt()).max(floor);
-        }
-        let n_cells = dims.iter().map(|&d| d as f64).product::<f64>();
-        let mut pos = vec![[0.0; 3]; n];
-        let mut num = vec![0i64; n];
-        let mut idx = vec![0u32; n];
-        let cells = if n_cells <= (4 * n + 1024) as f64 {
-            let nc = n_cells as usize;
-            let mut starts = vec![0u32; nc + 1];
-            for &k in &keys {
-                starts[k as usize + 1] += 1;
-            }
-            for c in 0..nc {
-                starts[c + 1] += starts[c];
-            }
-            let mut fill = starts.clone();
-            for (i, &k) in keys.iter().enumerate() {
-                let s = fill[k as usize] as usize;
-                fill[k as usize] += 1;
-                pos[s] = positions[i];
-                num[s] = numbers[i];
-                idx[s] = i as u32;
-            }
-            Cells::Dense { starts }
-        } else {
-            let (mask, mut slots) = counted;
-            // Lay the cells out in key order (rows along x), not hash order, so that nearby
-            // cells are nearby in memory.
-            let mut occupied: Vec<(u64, usize)> = slots
-                .iter()
-                .enumerate()
-                .filter(|(_, s)| s.key != EMPTY)
-                .map(|(h, s)| (s.key, h))
-                .collect();
-            occupied.sort_unstable();
-            let mut acc = 0u32;
-            for &(_, h) in &occupied {
-                slots[h].start = acc;
-                acc += slots[h].count;
-            }
-            let mut fill: Vec<u32> = slots.iter().map(|s| s.start).collect();
-            for (i, &k) in keys.iter().enumerate() {
-                if let Some(h) = find_slot(&slots, mask, k) {
-                    let s = fill[h] as usize;
-                    fill[h] += 1;
-                    pos[s] = positions[i];
-                    num[s] = numbers[i];
-                    idx[s] = i as u32;
-                }
-            }
-            Cells::Hash { mask, slots }
-        };
-        Ok(Grid {
-            tol,
-            inv_cell: 1.0 / cell,
-            cell,
-            origin,
-            dims,
-            cells,
-            pos,
-            num,
-            idx,
-        })
+        // Cells of at least 2·tol: a ball of radius tol touches at most 2 cells per axis.
+        let cells = CellGrid::build(positions, numbers, CellEdge::Adaptive { min: 2.0 * tol })?;
+        Ok(Grid { tol, cells })
     }
 
     /// Number of atoms in the grid.
     pub fn len(&self) -> usize {
-        self.pos.len()
+        self.cells.len()
     }
 
     /// True when the grid holds no atoms.
     pub fn is_empty(&self) -> bool {
-        self.pos.is_empty()
+        self.cells.is_empty()
     }
 
     /// The tolerance the grid was built for, Å.
@@ -254,12 +65,17 @@ impl Grid {
 
     /// Input indices of the atoms in the grid's storage (cell) order.
     pub fn atoms_in_cell_order(&self) -> &[u32] {
-        &self.idx
+        self.cells.atoms_in_cell_order()
     }
 
     /// The cell edge, Å.
     pub fn cell_size(&self) -> f64 {
-        self.cell
+        self.cells.cell_size()
+    }
+
+    /// The underlying cell grid.
+    pub fn cells(&self) -> &CellGrid {
+        &self.cells
     }
 
     /// Nearest atom of element `element` within the grid's tolerance of `point`:
@@ -271,86 +87,25 @@ impl Grid {
     /// Nearest atom of element `element` within `radius` Å of `point` (any radius; the work
     /// grows with the number of cells the ball touches).
     pub fn query_within(&self, point: &Vec3, element: i64, radius: f64) -> Option<(usize, f64)> {
+        let g = &self.cells;
         let mut best = (usize::MAX, radius * radius);
-        self.scan(point, radius, |s, d2| {
-            if self.num[s] == element && d2 <= best.1 {
+        g.scan(point, radius, |s, d2| {
+            if g.num[s] == element && d2 <= best.1 {
                 best = (s, d2);
             }
         });
         if best.0 == usize::MAX {
             None
         } else {
-            Some((self.idx[best.0] as usize, best.1.sqrt()))
-        }
-    }
-
-    /// Visit every stored atom (sorted slot, squared distance) in the cells that the ball of
-    /// `radius` around `point` touches.
-    #[inline]
-    fn scan<F: FnMut(usize, f64)>(&self, point: &Vec3, radius: f64, mut visit: F) {
-        let mut lo = [0i64; 3];
-        let mut hi = [0i64; 3];
-        for k in 0..3 {
-            // Truncation instead of floor (a libm call without SSE4.1): it differs only on
-            // (-1, 0), which the clamp to cell 0 absorbs (at worst one empty-handed cell).
-            let a = ((point[k] - radius - self.origin[k]) * self.inv_cell) as i64;
-            let b = ((point[k] + radius - self.origin[k]) * self.inv_cell) as i64;
-            lo[k] = a.max(0);
-            hi[k] = b.min(self.dims[k] - 1);
-            if lo[k] > hi[k] {
-                return;
-            }
-        }
-        for z in lo[2]..=hi[2] {
-            for y in lo[1]..=hi[1] {
-                for x in lo[0]..=hi[0] {
-                    let key = (x + self.dims[0] * (y + self.dims[1] * z)) as u64;
-                    let (start, end) = match &self.cells {
-                        Cells::Dense { starts } => {
-                            let k = key as usize;
-                            match (starts.get(k), starts.get(k + 1)) {
-                                (Some(&a), Some(&b)) => (a as usize, b as usize),
-                                _ => continue,
-                            }
-                        }
-                        Cells::Hash { mask, slots } => match find_slot(slots, *mask, key) {
-                            Some(h) => {
-                                let s = slots[h];
-                                (s.start as usize, (s.start + s.count) as usize)
-                            }
-                            None => continue,
-                        },
-                    };
-                    for s in start..end {
-                        let q = &self.pos[s];
-                        let d = [q[0] - point[0], q[1] - point[1], q[2] - point[2]];
-                        visit(s, d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
-                    }
-                }
-            }
+            Some((g.idx[best.0] as usize, best.1.sqrt()))
         }
     }
 
     /// Distance to the nearest atom of `element` at any distance (brute force, O(N));
     /// infinite when the grid holds no such atom. For error messages only.
     pub fn nearest_distance(&self, point: &Vec3, element: i64) -> f64 {
-        let mut best = f64::INFINITY;
-        for (q, &z) in self.pos.iter().zip(&self.num) {
-            if z == element {
-                let d = [q[0] - point[0], q[1] - point[1], q[2] - point[2]];
-                best = best.min(d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
-            }
-        }
-        best.sqrt()
+        self.cells.nearest_distance(point, element)
     }
-}
-
-fn cell_key(p: &Vec3, origin: &Vec3, inv: f64, dims: &[i64; 3]) -> u64 {
-    let mut c = [0i64; 3];
-    for k in 0..3 {
-        c[k] = (((p[k] - origin[k]) * inv) as i64).clamp(0, dims[k] - 1);
-    }
-    (c[0] + dims[0] * (c[1] + dims[1] * c[2])) as u64
 }
 
 /// Two atoms within the grid's tolerance of each other (any elements): the pair `(i, j, d)`
@@ -360,9 +115,9 @@ pub fn find_overlap(grid: &Grid) -> Option<(usize, usize, f64)> {
     let probe = |range: std::ops::Range<usize>| -> Option<(usize, usize, f64)> {
         let mut best: Option<(usize, usize, f64)> = None;
         for s in range {
-            grid.scan(&grid.pos[s], tol, |t, d2| {
+            grid.cells.scan(&grid.cells.pos[s], tol, |t, d2| {
                 if t != s && d2 <= tol * tol {
-                    let (a, b) = (grid.idx[s] as usize, grid.idx[t] as usize);
+                    let (a, b) = (grid.cells.idx[s] as usize, grid.cells.idx[t] as usize);
                     let pair = (a.min(b), a.max(b), d2.sqrt());
                     if best.is_none_or(|q| (pair.0, pair.1) < (q.0, q.1)) {
                         best = Some(pair);
@@ -378,14 +133,9 @@ pub fn find_overlap(grid: &Grid) -> Option<(usize, usize, f64)> {
         (x, None) => x,
         (None, y) => y,
     };
-    if n <= PARALLEL_MIN_ATOMS {
-        probe(0..n)
-    } else {
-        (0..n.div_ceil(CHUNK))
-            .into_par_iter()
-            .map(|c| probe(c * CHUNK..((c + 1) * CHUNK).min(n)))
-            .reduce(|| None, pick)
-    }
+    parallel::map_chunks(n, PARALLEL_MIN_ATOMS, probe)
+        .into_iter()
+        .fold(None, pick)
 }
 
 /// Map every atom under the operation `op_matrix` (acting on the coordinates the grid was
@@ -425,9 +175,10 @@ pub fn map_atoms(
     }
     let n = positions.len();
     debug_assert!(grid
+        .cells
         .idx
         .iter()
-        .zip(&grid.pos)
+        .zip(&grid.cells.pos)
         .take(64)
         .all(|(&i, p)| positions[i as usize] == *p));
     // image[s]: the image of the atom stored in grid slot s.
@@ -440,8 +191,8 @@ pub fn map_atoms(
             if s > first_fail.load(Ordering::Relaxed) {
                 return dev;
             }
-            let q = mat_vec(op_matrix, &grid.pos[s]);
-            match grid.query_within(&q, grid.num[s], tol) {
+            let q = mat_vec(op_matrix, &grid.cells.pos[s]);
+            match grid.query_within(&q, grid.cells.num[s], tol) {
                 Some((j, d)) => {
                     *slot = j as u32;
                     dev = dev.max(d);
@@ -454,18 +205,12 @@ pub fn map_atoms(
         }
         dev
     };
-    let max_dev = if n <= PARALLEL_MIN_ATOMS {
-        run(0, &mut image)
-    } else {
-        image
-            .par_chunks_mut(CHUNK)
-            .enumerate()
-            .map(|(c, out)| run(c * CHUNK, out))
-            .reduce(|| 0.0, f64::max)
-    };
+    let max_dev = parallel::map_chunks_mut(&mut image, PARALLEL_MIN_ATOMS, run)
+        .into_iter()
+        .fold(0.0, f64::max);
     let fail = first_fail.load(Ordering::Relaxed);
     if fail != usize::MAX {
-        let atom = grid.idx[fail] as usize;
+        let atom = grid.cells.idx[fail] as usize;
         let q = mat_vec(op_matrix, &positions[atom]);
         return Err(Error::NotASymmetry {
             atom,
@@ -475,7 +220,7 @@ pub fn map_atoms(
     let mut perm = vec![0u32; n];
     let mut owner = vec![u32::MAX; n];
     for (s, &j) in image.iter().enumerate() {
-        let i = grid.idx[s];
+        let i = grid.cells.idx[s];
         perm[i as usize] = j;
         let o = &mut owner[j as usize];
         if *o != u32::MAX {
@@ -565,7 +310,7 @@ mod tests {
             .collect();
         let z = vec![6i64; p.len()];
         let g = Grid::build(&p, &z, 0.01).unwrap();
-        assert!(matches!(g.cells, Cells::Hash { .. }));
+        assert!(g.cells().is_hashed());
         for (i, x) in p.iter().enumerate() {
             let (j, d) = g.query(x, 6).unwrap();
             assert_eq!((j, d), (i, 0.0));
@@ -670,18 +415,14 @@ mod tests {
         // reported atom is the first in cell order, as the serial scan finds it.
         let c4 = PointOp::rotation([0.0, 0.0, 1.0], 90.0);
         let expect = g
-            .idx
+            .atoms_in_cell_order()
             .iter()
             .map(|&i| i as usize)
             .find(|&i| brute_nearest(&p, &z, &c4.apply(&p[i]), z[i], 0.01).is_none())
             .unwrap();
-        let pool = rayon::ThreadPoolBuilder::new()
-            .num_threads(1)
-            .build()
-            .unwrap();
         for result in [
             map_atoms(&g, &p, &z, &c4.matrix, 0.01),
-            pool.install(|| map_atoms(&g, &p, &z, &c4.matrix, 0.01)),
+            parallel::install(1, || map_atoms(&g, &p, &z, &c4.matrix, 0.01)).unwrap(),
         ] {
             match result {
                 Err(Error::NotASymmetry { atom, .. }) => assert_eq!(atom, expect),

@@ -9,7 +9,7 @@
 //! How it is fast: one serial pass finds the frames by jumping over atom lines with a
 //! vectorised newline search (memchr; no tokenising); then the atom lines are parsed in parallel
 //! in units of about [`CHUNK_LINES`] lines (many small frames per unit, or one chunk of a big
-//! frame), on the current rayon pool (wrap a call in `ThreadPool::install` to choose the
+//! frame), on the current rayon pool (wrap a call in `parallel::install` to choose the
 //! thread count). Results are in file order and identical for any thread count.
 //!
 //! Errors never stop the read: each bad frame gets zero atoms and an
@@ -33,8 +33,8 @@ mod scan;
 mod tests;
 
 use crate::error::Error;
+use crate::parallel;
 use atoms::{parse_header, parse_segment, Elements, Header, Segment, UnitOut};
-use rayon::prelude::*;
 use scan::{Scanned, Scanner};
 
 pub use file::read_xyz_path;
@@ -81,14 +81,10 @@ pub fn read_xyz_bytes(data: &[u8], source: &str, to_number: &ToNumber) -> XyzFra
     // A UTF-8 byte-order mark (written by some editors) is not part of the first line.
     let data = data.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(data);
     let scanned = Scanner { data, source }.scan();
-    let headers: Vec<Option<Header>> = scanned
-        .par_iter()
-        .enumerate()
-        .map(|(f, s)| match s {
-            Scanned::Good(span) => Some(parse_header(data, span, f, source)),
-            Scanned::Bad(_) => None,
-        })
-        .collect();
+    let headers: Vec<Option<Header>> = parallel::map_items(&scanned, 1, |f, s| match s {
+        Scanned::Good(span) => Some(parse_header(data, span, f, source)),
+        Scanned::Bad(_) => None,
+    });
 
     // Work units of about CHUNK_LINES atom lines, in file order.
     let mut units: Vec<Vec<Segment>> = Vec::new();
@@ -120,30 +116,27 @@ pub fn read_xyz_bytes(data: &[u8], source: &str, to_number: &ToNumber) -> XyzFra
         units.push(current);
     }
 
-    let outs: Vec<UnitOut> = units
-        .par_iter()
-        .map(|segs| {
-            let mut out = UnitOut::default();
-            let n_lines: usize = segs.iter().map(|s| s.n_lines).sum();
-            out.positions.reserve(n_lines);
-            out.numbers.reserve(n_lines);
-            let mut elements = Elements {
-                to_number,
-                cache: Vec::new(),
+    let outs: Vec<UnitOut> = parallel::map_items(&units, 1, |_, segs| {
+        let mut out = UnitOut::default();
+        let n_lines: usize = segs.iter().map(|s| s.n_lines).sum();
+        out.positions.reserve(n_lines);
+        out.numbers.reserve(n_lines);
+        let mut elements = Elements {
+            to_number,
+            cache: Vec::new(),
+        };
+        for seg in segs {
+            let (n_atoms, layout) = match (&scanned[seg.frame], &headers[seg.frame]) {
+                (Scanned::Good(span), Some(Header { layout: Ok(l), .. })) => (span.n_atoms, *l),
+                _ => continue,
             };
-            for seg in segs {
-                let (n_atoms, layout) = match (&scanned[seg.frame], &headers[seg.frame]) {
-                    (Scanned::Good(span), Some(Header { layout: Ok(l), .. })) => (span.n_atoms, *l),
-                    _ => continue,
-                };
-                let before = out.positions.len();
-                let e = parse_segment(data, seg, n_atoms, &layout, &mut elements, &mut out, source);
-                out.results
-                    .push((seg.frame, out.positions.len() - before, e));
-            }
-            out
-        })
-        .collect();
+            let before = out.positions.len();
+            let e = parse_segment(data, seg, n_atoms, &layout, &mut elements, &mut out, source);
+            out.results
+                .push((seg.frame, out.positions.len() - before, e));
+        }
+        out
+    });
 
     // Assembly: the first error of each frame wins (segments are in line order).
     let n_frames = scanned.len();

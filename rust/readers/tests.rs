@@ -338,13 +338,7 @@ fn mixed_text() -> String {
 #[test]
 fn results_are_identical_for_any_thread_count() {
     let text = mixed_text();
-    let run = |n: usize| {
-        rayon::ThreadPoolBuilder::new()
-            .num_threads(n)
-            .build()
-            .unwrap()
-            .install(|| read(&text))
-    };
+    let run = |n: usize| crate::parallel::install(n, || read(&text)).unwrap();
     let one = run(1);
     assert_eq!(one, run(2));
     assert_eq!(one, run(4));

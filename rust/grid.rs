@@ -1,0 +1,424 @@
+//! The uniform cell grid over a set of atoms: the spatial index under the nearest-atom lookup
+//! (lookup.rs, the hot kernel of detection) and the bond search (count/bonds.rs).
+//!
+//! The atoms are bucketed into cubic cells (counting sort, O(N)); each cell's atoms are stored
+//! contiguously (positions, atomic numbers, input indices), so a query scans only the cells
+//! that a ball around the point touches. The cell table is a dense array when the bounding
+//! box holds few enough cells (≤ 4N + 1024), otherwise an open-addressing hash of the
+//! occupied cells, so memory stays linear in N for shells, tubes and sparse clusters alike.
+//!
+//! The cell edge is either fixed by the caller (the bond cutoff) or adaptive: it starts at
+//! L/∛N (L the largest extent of the bounding box) and shrinks while occupied cells hold more
+//! than 2.5 atoms on average, never below the caller's minimum. In both cases it is at least
+//! L/2²⁰, which keeps cell keys in 64 bits.
+
+use crate::error::{Error, Result};
+use crate::ops::Vec3;
+
+const EMPTY: u64 = u64::MAX;
+
+#[derive(Clone, Copy)]
+struct Slot {
+    key: u64,
+    start: u32,
+    count: u32,
+}
+
+enum Cells {
+    Dense { starts: Vec<u32> },
+    Hash { mask: usize, slots: Vec<Slot> },
+}
+
+/// How the grid chooses its cell edge.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum CellEdge {
+    /// Adaptive edge (see the module notes), never below `min` Å.
+    Adaptive {
+        /// The smallest edge allowed, Å (the lookup uses 2·tol).
+        min: f64,
+    },
+    /// This edge, Å (a non-positive or non-finite edge becomes 1 Å).
+    Fixed(f64),
+}
+
+/// A cell grid over a set of atoms (positions in Å, atomic numbers), stored in cell order.
+pub struct CellGrid {
+    inv_cell: f64,
+    cell: f64,
+    origin: Vec3,
+    dims: [i64; 3],
+    cells: Cells,
+    /// Positions in storage (cell) order.
+    pub(crate) pos: Vec<Vec3>,
+    /// Atomic numbers in storage order.
+    pub(crate) num: Vec<i64>,
+    /// Input index of the atom in each storage slot.
+    pub(crate) idx: Vec<u32>,
+}
+
+#[inline]
+fn hash(key: u64, mask: usize) -> usize {
+    (key.wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 20) as usize & mask
+}
+
+/// Hash table of cell key → atom count, capacity a power of two ≥ 2·N.
+fn count_cells(keys: &[u64]) -> (usize, Vec<Slot>) {
+    let cap = (2 * keys.len().max(8)).next_power_of_two();
+    let mask = cap - 1;
+    let mut slots = vec![
+        Slot {
+            key: EMPTY,
+            start: 0,
+            count: 0
+        };
+        cap
+    ];
+    for &k in keys {
+        let mut h = hash(k, mask);
+        loop {
+            let s = &mut slots[h];
+            if s.key == k {
+                s.count += 1;
+                break;
+            }
+            if s.key == EMPTY {
+                s.key = k;
+                s.count = 1;
+                break;
+            }
+            h = (h + 1) & mask;
+        }
+    }
+    (mask, slots)
+}
+
+fn find_slot(slots: &[Slot], mask: usize, key: u64) -> Option<usize> {
+    let mut h = hash(key, mask);
+    loop {
+        let s = slots.get(h)?;
+        if s.key == key {
+            return Some(h);
+        }
+        if s.key == EMPTY {
+            return None;
+        }
+        h = (h + 1) & mask;
+    }
+}
+
+impl CellGrid {
+    /// Build the grid over `positions` (Å) and `numbers` with the given cell edge rule.
+    ///
+    /// # Errors
+    /// `LengthMismatch`, `NonFiniteCoordinate`, and `InvalidArgument` for more than
+    /// 2³² − 2 atoms. An empty structure gives an empty grid.
+    pub fn build(positions: &[[f64; 3]], numbers: &[i64], edge: CellEdge) -> Result<CellGrid> {
+        if positions.len() != numbers.len() {
+            return Err(Error::LengthMismatch {
+                n_positions: positions.len(),
+                n_numbers: numbers.len(),
+            });
+        }
+        let n = positions.len();
+        if n >= u32::MAX as usize {
+            return Err(Error::InvalidArgument {
+                name: "positions".into(),
+                reason: format!("{n} atoms is more than the lookup supports (2^32 - 2)"),
+            });
+        }
+        let mut lo = [f64::INFINITY; 3];
+        let mut hi = [f64::NEG_INFINITY; 3];
+        for (atom, p) in positions.iter().enumerate() {
+            for k in 0..3 {
+                if !p[k].is_finite() {
+                    return Err(Error::NonFiniteCoordinate { atom });
+                }
+                lo[k] = lo[k].min(p[k]);
+                hi[k] = hi[k].max(p[k]);
+            }
+        }
+        if n == 0 {
+            lo = [0.0; 3];
+            hi = [0.0; 3];
+        }
+        let extent = (0..3).map(|k| hi[k] - lo[k]).fold(0.0_f64, f64::max);
+        // Cells no smaller than extent/2^20 keep cell keys in 64 bits.
+        let key_floor = extent / (1u64 << 20) as f64;
+        let (mut cell, floor, adaptive) = match edge {
+            CellEdge::Adaptive { min } => {
+                let floor = min.max(key_floor);
+                let start = if extent > 0.0 {
+                    (extent / (n.max(1) as f64).cbrt()).max(floor)
+                } else {
+                    floor.max(1.0)
+                };
+                (start, floor, true)
+            }
+            CellEdge::Fixed(edge) => {
+                // A larger cell stays correct (only slower); a zero edge still needs a
+                // positive cell.
+                let c = if edge > 0.0 && edge.is_finite() {
+                    edge
+                } else {
+                    1.0
+                };
+                let c = c.max(key_floor);
+                (c, c, false)
+            }
+        };
+        let origin = lo;
+        let mut keys = vec![0u64; n];
+        let mut dims;
+        let mut counted;
+        let mut rounds = 0;
+        loop {
+            let inv = 1.0 / cell;
+            dims = [0i64; 3];
+            for k in 0..3 {
+                dims[k] = ((hi[k] - lo[k]) * inv) as i64 + 1;
+            }
+            for (key, p) in keys.iter_mut().zip(positions) {
+                *key = cell_key(p, &origin, inv, &dims);
+            }
+            counted = count_cells(&keys);
+            let occupied = counted.1.iter().filter(|s| s.key != EMPTY).count().max(1);
+            let load = n as f64 / occupied as f64;
+            rounds += 1;
+            if !adaptive || load <= 2.5 || cell <= floor * 1.000_001 || rounds >= 8 {
+                break;
+            }
+            cell = (cell / load.sqrt()).max(floor);
+        }
+        let n_cells = dims.iter().map(|&d| d as f64).product::<f64>();
+        let mut pos = vec![[0.0; 3]; n];
+        let mut num = vec![0i64; n];
+        let mut idx = vec![0u32; n];
+        let cells = if n_cells <= (4 * n + 1024) as f64 {
+            let nc = n_cells as usize;
+            let mut starts = vec![0u32; nc + 1];
+            for &k in &keys {
+                starts[k as usize + 1] += 1;
+            }
+            for c in 0..nc {
+                starts[c + 1] += starts[c];
+            }
+            let mut fill = starts.clone();
+            for (i, &k) in keys.iter().enumerate() {
+                let s = fill[k as usize] as usize;
+                fill[k as usize] += 1;
+                pos[s] = positions[i];
+                num[s] = numbers[i];
+                idx[s] = i as u32;
+            }
+            Cells::Dense { starts }
+        } else {
+            let (mask, mut slots) = counted;
+            // Lay the cells out in key order (rows along x), not hash order, so that nearby
+            // cells are nearby in memory.
+            let mut occupied: Vec<(u64, usize)> = slots
+                .iter()
+                .enumerate()
+                .filter(|(_, s)| s.key != EMPTY)
+                .map(|(h, s)| (s.key, h))
+                .collect();
+            occupied.sort_unstable();
+            let mut acc = 0u32;
+            for &(_, h) in &occupied {
+                slots[h].start = acc;
+                acc += slots[h].count;
+            }
+            let mut fill: Vec<u32> = slots.iter().map(|s| s.start).collect();
+            for (i, &k) in keys.iter().enumerate() {
+                if let Some(h) = find_slot(&slots, mask, k) {
+                    let s = fill[h] as usize;
+                    fill[h] += 1;
+                    pos[s] = positions[i];
+                    num[s] = numbers[i];
+                    idx[s] = i as u32;
+                }
+            }
+            Cells::Hash { mask, slots }
+        };
+        Ok(CellGrid {
+            inv_cell: 1.0 / cell,
+            cell,
+            origin,
+            dims,
+            cells,
+            pos,
+            num,
+            idx,
+        })
+    }
+
+    /// Number of atoms in the grid.
+    pub fn len(&self) -> usize {
+        self.pos.len()
+    }
+
+    /// True when the grid holds no atoms.
+    pub fn is_empty(&self) -> bool {
+        self.pos.is_empty()
+    }
+
+    /// Input indices of the atoms in the grid's storage (cell) order.
+    pub fn atoms_in_cell_order(&self) -> &[u32] {
+        &self.idx
+    }
+
+    /// The cell edge, Å.
+    pub fn cell_size(&self) -> f64 {
+        self.cell
+    }
+
+    /// True when the cells live in a hash table (sparse structures), false for a dense array.
+    pub fn is_hashed(&self) -> bool {
+        matches!(self.cells, Cells::Hash { .. })
+    }
+
+    /// Visit every stored atom (storage slot, squared distance to `point` in Å²) in the
+    /// cells that the ball of `radius` Å around `point` touches: a superset of the atoms
+    /// within `radius`, each visited once. A NaN point visits nothing.
+    #[inline]
+    pub fn scan<F: FnMut(usize, f64)>(&self, point: &Vec3, radius: f64, mut visit: F) {
+        let mut lo = [0i64; 3];
+        let mut hi = [0i64; 3];
+        for k in 0..3 {
+            // Truncation instead of floor (a libm call without SSE4.1): it differs only on
+            // (-1, 0), which the clamp to cell 0 absorbs (at worst one empty-handed cell).
+            let a = ((point[k] - radius - self.origin[k]) * self.inv_cell) as i64;
+            let b = ((point[k] + radius - self.origin[k]) * self.inv_cell) as i64;
+            lo[k] = a.max(0);
+            hi[k] = b.min(self.dims[k] - 1);
+            if lo[k] > hi[k] {
+                return;
+            }
+        }
+        for z in lo[2]..=hi[2] {
+            for y in lo[1]..=hi[1] {
+                for x in lo[0]..=hi[0] {
+                    let key = (x + self.dims[0] * (y + self.dims[1] * z)) as u64;
+                    let (start, end) = match &self.cells {
+                        Cells::Dense { starts } => {
+                            let k = key as usize;
+                            match (starts.get(k), starts.get(k + 1)) {
+                                (Some(&a), Some(&b)) => (a as usize, b as usize),
+                                _ => continue,
+                            }
+                        }
+                        Cells::Hash { mask, slots } => match find_slot(slots, *mask, key) {
+                            Some(h) => {
+                                let s = slots[h];
+                                (s.start as usize, (s.start + s.count) as usize)
+                            }
+                            None => continue,
+                        },
+                    };
+                    for s in start..end {
+                        let q = &self.pos[s];
+                        let d = [q[0] - point[0], q[1] - point[1], q[2] - point[2]];
+                        visit(s, d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
+                    }
+                }
+            }
+        }
+    }
+
+    /// Distance to the nearest atom of `element` at any distance (brute force, O(N));
+    /// infinite when the grid holds no such atom. For error messages only.
+    pub fn nearest_distance(&self, point: &Vec3, element: i64) -> f64 {
+        let mut best = f64::INFINITY;
+        for (q, &z) in self.pos.iter().zip(&self.num) {
+            if z == element {
+                let d = [q[0] - point[0], q[1] - point[1], q[2] - point[2]];
+                best = best.min(d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
+            }
+        }
+        best.sqrt()
+    }
+}
+
+fn cell_key(p: &Vec3, origin: &Vec3, inv: f64, dims: &[i64; 3]) -> u64 {
+    let mut c = [0i64; 3];
+    for k in 0..3 {
+        c[k] = (((p[k] - origin[k]) * inv) as i64).clamp(0, dims[k] - 1);
+    }
+    (c[0] + dims[0] * (c[1] + dims[1] * c[2])) as u64
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::testutil::Rng;
+
+    fn brute_within(p: &[[f64; 3]], q: &Vec3, r: f64) -> Vec<usize> {
+        (0..p.len())
+            .filter(|&i| {
+                let d = [p[i][0] - q[0], p[i][1] - q[1], p[i][2] - q[2]];
+                d[0] * d[0] + d[1] * d[1] + d[2] * d[2] <= r * r
+            })
+            .collect()
+    }
+
+    fn scanned_within(g: &CellGrid, q: &Vec3, r: f64) -> Vec<usize> {
+        let mut out = Vec::new();
+        g.scan(q, r, |s, d2| {
+            if d2 <= r * r {
+                out.push(g.atoms_in_cell_order()[s] as usize);
+            }
+        });
+        out.sort_unstable();
+        out
+    }
+
+    #[test]
+    fn scans_find_every_atom_within_the_radius_for_both_edge_rules() {
+        let mut rng = Rng(3);
+        let p: Vec<[f64; 3]> = (0..500)
+            .map(|_| [rng.next() * 20.0, rng.next() * 20.0, rng.next() * 20.0])
+            .collect();
+        let z = vec![1i64; p.len()];
+        for edge in [CellEdge::Adaptive { min: 0.1 }, CellEdge::Fixed(3.0)] {
+            let g = CellGrid::build(&p, &z, edge).unwrap();
+            assert_eq!(g.len(), p.len());
+            for k in 0..50 {
+                let q = p[k * 7];
+                for r in [0.0, 1.0, 3.0, 7.5] {
+                    assert_eq!(
+                        scanned_within(&g, &q, r),
+                        brute_within(&p, &q, r),
+                        "{edge:?} r={r}"
+                    );
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn fixed_edges_are_kept_floored_and_sparse_sets_are_hashed() {
+        let p = [[0.0; 3], [1000.0, 0.0, 0.0], [0.0, 0.0, 1000.0]];
+        let g = CellGrid::build(&p, &[1, 1, 1], CellEdge::Fixed(2.0)).unwrap();
+        assert_eq!(g.cell_size(), 2.0);
+        assert!(g.is_hashed());
+        assert_eq!(scanned_within(&g, &[999.0, 0.0, 0.0], 1.5), vec![1]);
+        // A zero edge (all radii zero) still gives a usable 1 Å cell.
+        let g = CellGrid::build(&p, &[1, 1, 1], CellEdge::Fixed(0.0)).unwrap();
+        assert_eq!(g.cell_size(), 1.0);
+        // Far-apart atoms: the edge grows to extent / 2^20 so that keys fit in 64 bits.
+        let far = [[0.0; 3], [1e9, 0.0, 0.0]];
+        let g = CellGrid::build(&far, &[1, 1], CellEdge::Fixed(0.5)).unwrap();
+        assert_eq!(g.cell_size(), 1e9 / (1u64 << 20) as f64);
+        assert_eq!(scanned_within(&g, &[1e9, 0.0, 0.0], 0.0), vec![1]);
+        assert!(matches!(
+            CellGrid::build(&p, &[1], CellEdge::Fixed(1.0)),
+            Err(Error::LengthMismatch { .. })
+        ));
+        assert!(matches!(
+            CellGrid::build(&[[f64::NAN, 0.0, 0.0]], &[1], CellEdge::Fixed(1.0)),
+            Err(Error::NonFiniteCoordinate { atom: 0 })
+        ));
+        assert!(CellGrid::build(&[], &[], CellEdge::Fixed(1.0))
+            .unwrap()
+            .is_empty());
+    }
+}
