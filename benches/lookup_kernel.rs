@@ -1,15 +1,20 @@
-//! Micro-benchmark of the lookup kernel (`lookup::map_atoms`): nanoseconds per atom mapped,
-//! next to plain streaming passes over the same coordinates in the same run (the
-//! memory-bandwidth floor).
+//! Criterion benchmark of the lookup kernel (`lookup::map_atoms`) next to plain streaming
+//! passes over the same coordinates in the same run (the memory-bandwidth floor), and the
+//! cost of building the cell grid.
 //!
-//! Run: `cargo bench --bench lookup_kernel` (release profile). Arguments after `--`:
-//! `--shells 6,14,31,67` (Mackay icosahedra of about 10³…10⁶ atoms), `--repeats 7`.
-//! The last line of the output is one JSON object with every median, for the report script.
+//! Run: `cargo bench --bench lookup_kernel` (release profile); a filter may follow `--`
+//! (e.g. `-- lookup_1t`). Sizes: Mackay icosahedra of `LOOKUP_KERNEL_SHELLS` shells
+//! (comma-separated, default 6,14,31,67: about 10³…10⁶ atoms); `LOOKUP_KERNEL_SAMPLES`
+//! criterion samples per benchmark (default and minimum 10, 2 s each). Thread counts: 1 and all cores. Benchmark ids are
+//! `lookup_{threads}t/{kind}/{n_atoms}`, kind one of `grid_build`, `stream_sum`,
+//! `map_atoms_{op}`, `stream_transform_{op}`; `python -m benches.report` reads the medians
+//! from `target/criterion/`. Each mapping is checked once, outside the timed calls.
 
 use _core::lookup::{map_atoms, Grid};
+use criterion::{criterion_group, criterion_main, Bencher, BenchmarkId, Criterion, Throughput};
 use rayon::prelude::*;
 use std::hint::black_box;
-use std::time::Instant;
+use std::time::{Duration, Instant};
 
 type Vec3 = [f64; 3];
 type Mat3 = [[f64; 3]; 3];
@@ -119,28 +124,6 @@ fn operations() -> Vec<(&'static str, Mat3)> {
     ]
 }
 
-fn median(mut xs: Vec<f64>) -> f64 {
-    xs.sort_by(f64::total_cmp);
-    let m = xs.len() / 2;
-    if xs.len() % 2 == 1 {
-        xs[m]
-    } else {
-        0.5 * (xs[m - 1] + xs[m])
-    }
-}
-
-/// Median wall time (s) of `repeats` calls of `f`, after one warm-up call.
-fn time_median<F: FnMut()>(repeats: usize, mut f: F) -> f64 {
-    f();
-    let mut times = Vec::with_capacity(repeats);
-    for _ in 0..repeats {
-        let t = Instant::now();
-        f();
-        times.push(t.elapsed().as_secs_f64());
-    }
-    median(times)
-}
-
 /// Read-only streaming pass: the sum of every coordinate.
 fn stream_sum(pos: &[Vec3], parallel: bool) -> f64 {
     if parallel {
@@ -168,115 +151,94 @@ fn stream_transform(pos: &[Vec3], out: &mut [Vec3], r: &Mat3, parallel: bool) {
     }
 }
 
-fn parse_args() -> (Vec<usize>, usize) {
-    let args: Vec<String> = std::env::args().collect();
-    let mut shells = vec![6, 14, 31, 67];
-    let mut repeats = 7;
-    let mut k = 1;
-    while k < args.len() {
-        match args[k].as_str() {
-            "--shells" if k + 1 < args.len() => {
-                shells = args[k + 1]
-                    .split(',')
-                    .filter_map(|s| s.trim().parse().ok())
-                    .collect();
-                k += 1;
-            }
-            "--repeats" if k + 1 < args.len() => {
-                repeats = args[k + 1].parse().unwrap_or(repeats);
-                k += 1;
-            }
-            _ => {} // cargo passes --bench; anything else is ignored
-        }
-        k += 1;
-    }
-    (shells, repeats.max(1))
+fn shells() -> Vec<usize> {
+    std::env::var("LOOKUP_KERNEL_SHELLS")
+        .ok()
+        .map(|v| v.split(',').filter_map(|s| s.trim().parse().ok()).collect())
+        .filter(|v: &Vec<usize>| !v.is_empty())
+        .unwrap_or_else(|| vec![6, 14, 31, 67])
 }
 
-fn main() {
-    let (shells, repeats) = parse_args();
-    let n_cores = std::thread::available_parallelism().map_or(1, |n| n.get());
-    let pools: Vec<(usize, rayon::ThreadPool)> = [1, n_cores]
-        .iter()
-        .filter_map(|&t| {
-            rayon::ThreadPoolBuilder::new()
-                .num_threads(t)
-                .build()
-                .ok()
-                .map(|p| (t, p))
+/// Times `iters` calls of `f` inside `pool` (entering the pool once, outside the clock).
+fn on_pool(b: &mut Bencher, pool: &rayon::ThreadPool, mut f: impl FnMut() + Send) {
+    b.iter_custom(|iters| {
+        pool.install(|| {
+            let start = Instant::now();
+            for _ in 0..iters {
+                f();
+            }
+            start.elapsed()
         })
-        .collect();
-    let mut rows = Vec::new();
-    println!(
-        "{:>9} {:>7} {:>4} {:>12} {:>12} {:>12} {:>12} {:>8}",
-        "n_atoms",
-        "threads",
-        "op",
-        "map ns/atom",
-        "sum ns/atom",
-        "R·x ns/atom",
-        "grid ns/atom",
-        "map/R·x"
-    );
-    for &n_shells in &shells {
-        let pos = mackay(n_shells);
-        let n = pos.len();
-        let numbers = vec![79_i64; n];
-        let mut out = vec![[0.0; 3]; n];
-        for (threads, pool) in &pools {
-            let parallel = *threads > 1;
-            pool.install(|| {
-                let t_grid = time_median(repeats, || {
-                    black_box(Grid::build(black_box(&pos), &numbers, TOL).ok());
-                });
-                let Ok(grid) = Grid::build(&pos, &numbers, TOL) else {
-                    eprintln!("grid build failed for {n} atoms");
-                    return;
-                };
-                let t_sum = time_median(repeats, || {
-                    black_box(stream_sum(black_box(&pos), parallel));
-                });
-                for (name, op) in operations() {
-                    let t_rx = time_median(repeats, || {
-                        stream_transform(black_box(&pos), &mut out, &op, parallel);
-                        black_box(&out);
-                    });
-                    let mut ok = true;
-                    let t_map = time_median(repeats, || {
-                        let r = map_atoms(&grid, black_box(&pos), &numbers, &op, TOL);
-                        ok &= matches!(&r, Ok((perm, dev)) if perm.len() == n && *dev < TOL);
-                        black_box(r.ok());
-                    });
-                    if !ok {
-                        eprintln!("{name} did not map the {n}-atom cluster onto itself");
-                    }
-                    let per = |t: f64| t * 1e9 / n as f64;
-                    println!(
-                        "{:>9} {:>7} {:>4} {:>12.2} {:>12.2} {:>12.2} {:>12.2} {:>8.2}",
-                        n,
-                        threads,
-                        name,
-                        per(t_map),
-                        per(t_sum),
-                        per(t_rx),
-                        per(t_grid),
-                        t_map / t_rx
-                    );
-                    rows.push(format!(
-                        "{{\"n_atoms\": {n}, \"threads\": {threads}, \"op\": \"{name}\", \
-                         \"ok\": {ok}, \"map_ns_per_atom\": {:.4}, \"stream_sum_ns_per_atom\": {:.4}, \
-                         \"stream_transform_ns_per_atom\": {:.4}, \"grid_build_ns_per_atom\": {:.4}}}",
-                        per(t_map),
-                        per(t_sum),
-                        per(t_rx),
-                        per(t_grid)
-                    ));
-                }
-            });
-        }
-    }
-    println!(
-        "JSON: {{\"repeats\": {repeats}, \"tol\": {TOL}, \"rows\": [{}]}}",
-        rows.join(", ")
-    );
+    });
 }
+
+fn lookup_kernel(c: &mut Criterion) {
+    let n_cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+    let mut threads = vec![1, n_cores];
+    threads.dedup();
+    let clusters: Vec<Vec<Vec3>> = shells().into_iter().map(mackay).collect();
+    let samples = std::env::var("LOOKUP_KERNEL_SAMPLES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(10usize)
+        .max(10);
+    for &t in &threads {
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(t)
+            .build()
+            .expect("a rayon pool");
+        let parallel = t > 1;
+        let mut group = c.benchmark_group(format!("lookup_{t}t"));
+        group
+            .sample_size(samples)
+            .warm_up_time(Duration::from_millis(500))
+            .measurement_time(Duration::from_secs(2));
+        for pos in &clusters {
+            let n = pos.len();
+            let numbers = vec![79_i64; n];
+            let mut out = vec![[0.0; 3]; n];
+            group.throughput(Throughput::Elements(n as u64));
+            group.bench_with_input(BenchmarkId::new("grid_build", n), pos, |b, pos| {
+                on_pool(b, &pool, || {
+                    black_box(Grid::build(black_box(pos), &numbers, TOL).ok());
+                })
+            });
+            let grid = Grid::build(pos, &numbers, TOL).expect("the cell grid");
+            group.bench_with_input(BenchmarkId::new("stream_sum", n), pos, |b, pos| {
+                on_pool(b, &pool, || {
+                    black_box(stream_sum(black_box(pos), parallel));
+                })
+            });
+            for (name, op) in operations() {
+                // Checked once, outside the timed calls: every atom finds its image.
+                let (perm, dev) = pool
+                    .install(|| map_atoms(&grid, pos, &numbers, &op, TOL))
+                    .unwrap_or_else(|e| panic!("{name} on {n} atoms: {e}"));
+                assert!(perm.len() == n && dev < TOL, "{name} on {n} atoms");
+                group.bench_with_input(
+                    BenchmarkId::new(format!("map_atoms_{name}"), n),
+                    pos,
+                    |b, pos| {
+                        on_pool(b, &pool, || {
+                            black_box(map_atoms(&grid, black_box(pos), &numbers, &op, TOL).ok());
+                        })
+                    },
+                );
+                group.bench_with_input(
+                    BenchmarkId::new(format!("stream_transform_{name}"), n),
+                    pos,
+                    |b, pos| {
+                        on_pool(b, &pool, || {
+                            stream_transform(black_box(pos), &mut out, &op, parallel);
+                            black_box(&out);
+                        })
+                    },
+                );
+            }
+        }
+        group.finish();
+    }
+}
+
+criterion_group!(benches, lookup_kernel);
+criterion_main!(benches);
