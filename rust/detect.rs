@@ -31,14 +31,14 @@
 //!    that, failures (a structure at the edge of the tolerance) repeat them with the candidate
 //!    tolerance scaled by 0.85 and 0.7 before the error is returned.
 
-mod canonical;
+pub mod canonical;
 mod frame;
 
 use crate::error::{Error, Result};
 use crate::lookup::{find_overlap, map_atoms, Grid};
 use crate::ops::{dot, fit_orthogonal, mat_mul, mat_vec, norm, transpose, Mat3, PointOp, Vec3};
 use crate::structure;
-use canonical::{standard_operations, Family};
+use canonical::{group_data, Family};
 use std::collections::HashMap;
 
 /// Default distance tolerance, Å (DEVELOPERS.md, "Tolerance").
@@ -46,7 +46,7 @@ pub const DEFAULT_TOLERANCE: f64 = 0.01;
 /// Default M of the finite subgroups C_Mv / D_Md that stand for C∞v / D∞h.
 pub const LINEAR_SUBGROUP_N: usize = 13;
 /// Default bound on n_atoms × order up to which every operation is verified.
-pub const DEFAULT_VERIFY_ALL_LIMIT: usize = 20_000_000;
+pub const DEFAULT_VERIFY_ALL_LIMIT: usize = 2_000_000;
 
 /// Above this many atoms, candidate operations are screened on a sample of the atoms
 /// (the reported generators are still verified on all of them).
@@ -92,6 +92,12 @@ pub struct Symmetry {
     pub ops: Vec<PointOp>,
     /// Conjugacy classes as indices into `ops` (classes[0] = [0]).
     pub classes: Vec<Vec<usize>>,
+    /// Index of each operation among the group's canonical operations
+    /// ([`canonical::group_data`]); detection reports them in canonical order, so this is
+    /// 0, 1, …, h − 1: the contract, stated once, that no caller has to re-derive.
+    pub canonical_index: Vec<usize>,
+    /// Conjugacy class of each operation: the smallest operation index in its class.
+    pub class_of: Vec<usize>,
     /// Indices of a generating set of `ops` (empty for C1 and K_h).
     pub generators: Vec<usize>,
     /// Indices of the operations verified against the atoms: E first, then all the others or
@@ -279,6 +285,8 @@ fn single_atom(center: Vec3) -> Symmetry {
         frame: crate::ops::IDENTITY,
         ops: vec![PointOp::identity()],
         classes: vec![vec![0]],
+        canonical_index: vec![0],
+        class_of: vec![0],
         generators: vec![],
         verified: vec![0],
         permutations: vec![vec![0]],
@@ -320,13 +328,15 @@ fn finish(
     center: Vec3,
     opts: &DetectOptions,
 ) -> Result<Symmetry> {
-    let (std_ops, generators) = standard_operations(fam);
+    let data = group_data(fam)?;
+    let generators = data.generators.clone();
     let frt = transpose(&fr);
-    let ops: Vec<PointOp> = std_ops
+    let ops: Vec<PointOp> = data
+        .ops
         .iter()
         .map(|r| PointOp::from_matrix(mat_mul(&frt, &mat_mul(r, &fr))))
         .collect();
-    let classes = conjugacy_classes(&std_ops);
+    let classes = classes_from(&data.class_of);
     let n = ctx.x.len();
     let verified: Vec<usize> = if n.saturating_mul(ops.len()) <= opts.verify_all_limit {
         (0..ops.len()).collect()
@@ -353,6 +363,8 @@ fn finish(
         frame: fr,
         ops,
         classes,
+        canonical_index: (0..data.ops.len()).collect(),
+        class_of: data.class_of.clone(),
         generators,
         verified,
         permutations,
@@ -360,49 +372,16 @@ fn finish(
     })
 }
 
-fn matrix_key(m: &Mat3) -> [i64; 9] {
-    let mut k = [0i64; 9];
-    for i in 0..3 {
-        for j in 0..3 {
-            k[3 * i + j] = (m[i][j] * 1e6).round() as i64;
-        }
-    }
-    k
-}
-
-/// Conjugacy classes of an exact group of matrices: class of g = {s g s⁻¹}.
-fn conjugacy_classes(ops: &[Mat3]) -> Vec<Vec<usize>> {
-    let index: HashMap<[i64; 9], usize> = ops
-        .iter()
-        .enumerate()
-        .map(|(i, m)| (matrix_key(m), i))
-        .collect();
-    let find = |m: &Mat3| -> Option<usize> {
-        index.get(&matrix_key(m)).copied().or_else(|| {
-            ops.iter()
-                .position(|o| crate::ops::max_abs_diff(o, m) < 1e-6)
-        })
-    };
-    let mut class_of = vec![usize::MAX; ops.len()];
+/// Conjugacy classes as member lists (ascending) from the class of each operation.
+fn classes_from(class_of: &[usize]) -> Vec<Vec<usize>> {
     let mut classes: Vec<Vec<usize>> = Vec::new();
-    for g in 0..ops.len() {
-        if class_of[g] != usize::MAX {
-            continue;
+    let mut slot = vec![usize::MAX; class_of.len()];
+    for (k, &c) in class_of.iter().enumerate() {
+        if slot[c] == usize::MAX {
+            slot[c] = classes.len();
+            classes.push(Vec::new());
         }
-        let c = classes.len();
-        let mut members = vec![g];
-        class_of[g] = c;
-        for s in ops {
-            let conj = mat_mul(s, &mat_mul(&ops[g], &transpose(s)));
-            if let Some(k) = find(&conj) {
-                if class_of[k] == usize::MAX {
-                    class_of[k] = c;
-                    members.push(k);
-                }
-            }
-        }
-        members.sort_unstable();
-        classes.push(members);
+        classes[slot[c]].push(k);
     }
     classes
 }

@@ -29,12 +29,13 @@ pub use error::{Error, Result};
 
 #[cfg(feature = "python")]
 mod glue {
+    use crate::detect::canonical;
     use crate::error::Error;
     use crate::{batch, count, detect, readers, structure};
     use numpy::ndarray::{Array1, Array2, Array3};
     use numpy::{
-        IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
-        PyUntypedArrayMethods,
+        IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2,
+        PyReadonlyArray3, PyUntypedArrayMethods,
     };
     use pyo3::exceptions::{PyException, PyValueError};
     use pyo3::prelude::*;
@@ -193,17 +194,58 @@ mod glue {
             .collect()
     }
 
-    /// Point-group detection: returns a dict of numpy arrays (see _core.pyi).
+    fn index_array(py: Python<'_>, v: &[usize]) -> Py<PyArray1<i64>> {
+        let a: Vec<i64> = v.iter().map(|&i| i as i64).collect();
+        Array1::from(a).into_pyarray(py).unbind()
+    }
+
+    fn ops_array(py: Python<'_>, mats: &[[[f64; 3]; 3]]) -> PyResult<Py<PyArray3<f64>>> {
+        let arr = Array3::from_shape_vec((mats.len(), 3, 3), flat_mats(mats))
+            .map_err(|e| PyValueError::new_err(e.to_string()))?;
+        Ok(arr.into_pyarray(py).unbind())
+    }
+
+    /// The point group of one structure as detection found it: a frozen record of numpy
+    /// arrays moved out of the core (see _core.pyi for each field).
+    #[pyclass(frozen, get_all, module = "gammatrace._core")]
+    struct Detection {
+        point_group: String,
+        center: Py<PyArray1<f64>>,
+        frame: Py<PyArray2<f64>>,
+        operations: Py<PyArray3<f64>>,
+        proper: Py<PyArray1<bool>>,
+        angle: Py<PyArray1<f64>>,
+        axis: Py<PyArray2<f64>>,
+        canonical_index: Py<PyArray1<i64>>,
+        class_of: Py<PyArray1<i64>>,
+        generators: Py<PyArray1<i64>>,
+        verified: Py<PyArray1<i64>>,
+        permutations: Py<PyArray2<i64>>,
+        max_deviation: f64,
+    }
+
+    /// The canonical operations of one group and their arithmetic (see _core.pyi).
+    #[pyclass(frozen, get_all, module = "gammatrace._core")]
+    struct GroupData {
+        name: String,
+        operations: Py<PyArray3<f64>>,
+        generators: Py<PyArray1<i64>>,
+        class_of: Py<PyArray1<i64>>,
+        inverse: Py<PyArray1<i64>>,
+        square: Py<PyArray1<i64>>,
+    }
+
+    /// Point-group detection: a `Detection` (see _core.pyi).
     #[pyfunction]
     #[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit))]
-    fn find_point_group<'py>(
-        py: Python<'py>,
-        positions: PyReadonlyArray2<'py, f64>,
-        numbers: PyReadonlyArray1<'py, i64>,
+    fn find_point_group(
+        py: Python<'_>,
+        positions: PyReadonlyArray2<'_, f64>,
+        numbers: PyReadonlyArray1<'_, i64>,
         tol: f64,
         linear_n: usize,
         verify_all_limit: usize,
-    ) -> PyResult<Bound<'py, PyDict>> {
+    ) -> PyResult<Detection> {
         let pos = coords(&positions, "positions")?;
         let num = slice1(&numbers, "numbers")?;
         let opts = detect::DetectOptions {
@@ -214,28 +256,60 @@ mod glue {
         let sym = py
             .detach(|| guarded(|| detect::find_point_group(pos, num, &opts)))
             .map_err(CoreError)?;
-        let h = sym.ops.len();
         let n = pos.len();
-        let out = PyDict::new(py);
-        out.set_item("point_group", &sym.point_group)?;
-        out.set_item("center", Array1::from(sym.center.to_vec()).into_pyarray(py))?;
-        out.set_item("frame", Array2::from(sym.frame.to_vec()).into_pyarray(py))?;
         let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
-        let ops_arr = Array3::from_shape_vec((h, 3, 3), flat_mats(&mats))
-            .map_err(|e| PyValueError::new_err(e.to_string()))?;
-        out.set_item("operations", ops_arr.into_pyarray(py))?;
         let proper: Vec<bool> = sym.ops.iter().map(|o| o.proper).collect();
         let angle: Vec<f64> = sym.ops.iter().map(|o| o.angle).collect();
         let axis: Vec<[f64; 3]> = sym.ops.iter().map(|o| o.axis).collect();
-        out.set_item("proper", Array1::from(proper).into_pyarray(py))?;
-        out.set_item("angle", Array1::from(angle).into_pyarray(py))?;
-        out.set_item("axis", Array2::from(axis).into_pyarray(py))?;
-        out.set_item("classes", PyList::new(py, &sym.classes)?)?;
-        out.set_item("generators", PyList::new(py, &sym.generators)?)?;
-        out.set_item("verified", PyList::new(py, &sym.verified)?)?;
-        out.set_item("permutations", index_rows(py, &sym.permutations, n)?)?;
-        out.set_item("max_deviation", sym.max_deviation)?;
-        Ok(out)
+        Ok(Detection {
+            point_group: sym.point_group,
+            center: Array1::from(sym.center.to_vec()).into_pyarray(py).unbind(),
+            frame: Array2::from(sym.frame.to_vec()).into_pyarray(py).unbind(),
+            operations: ops_array(py, &mats)?,
+            proper: Array1::from(proper).into_pyarray(py).unbind(),
+            angle: Array1::from(angle).into_pyarray(py).unbind(),
+            axis: Array2::from(axis).into_pyarray(py).unbind(),
+            canonical_index: index_array(py, &sym.canonical_index),
+            class_of: index_array(py, &sym.class_of),
+            generators: index_array(py, &sym.generators),
+            verified: index_array(py, &sym.verified),
+            permutations: index_rows(py, &sym.permutations, n)?.unbind(),
+            max_deviation: sym.max_deviation,
+        })
+    }
+
+    /// The canonical operations of a group named as `Family::name` spells it.
+    #[pyfunction]
+    #[pyo3(signature = (name, linear_n))]
+    fn canonical_group(py: Python<'_>, name: &str, linear_n: usize) -> PyResult<GroupData> {
+        let fam = canonical::Family::from_name(name, linear_n)
+            .ok_or_else(|| PyValueError::new_err(format!("no canonical group named {name:?}")))?;
+        let data = py
+            .detach(|| guarded(|| canonical::group_data(fam)))
+            .map_err(CoreError)?;
+        Ok(GroupData {
+            name: fam.name(),
+            operations: ops_array(py, &data.ops)?,
+            generators: index_array(py, &data.generators),
+            class_of: index_array(py, &data.class_of),
+            inverse: index_array(py, &data.inverse),
+            square: index_array(py, &data.square),
+        })
+    }
+
+    /// Index of each query matrix among a group's canonical operations (exact membership).
+    #[pyfunction]
+    fn locate_operations<'py>(
+        py: Python<'py>,
+        operations: PyReadonlyArray3<'py, f64>,
+        queries: PyReadonlyArray3<'py, f64>,
+    ) -> PyResult<Bound<'py, PyArray1<i64>>> {
+        let ops = matrices(&operations, "operations")?;
+        let q = matrices(&queries, "queries")?;
+        let found = py
+            .detach(|| guarded(|| canonical::locate(ops, q)))
+            .map_err(CoreError)?;
+        Ok(index_array(py, &found).into_bound(py))
     }
 
     type MappedOperations<'py> = (Bound<'py, PyArray2<i64>>, Bound<'py, PyArray1<f64>>);
@@ -638,6 +712,13 @@ mod glue {
         m.add_function(wrap_pyfunction!(atomic_numbers, m)?)?;
         m.add_function(wrap_pyfunction!(element_data, m)?)?;
         m.add_function(wrap_pyfunction!(find_point_groups_batch, m)?)?;
+        m.add_function(wrap_pyfunction!(canonical_group, m)?)?;
+        m.add_function(wrap_pyfunction!(locate_operations, m)?)?;
+        m.add_class::<Detection>()?;
+        m.add_class::<GroupData>()?;
+        m.add("DEFAULT_TOLERANCE", detect::DEFAULT_TOLERANCE)?;
+        m.add("LINEAR_SUBGROUP_N", detect::LINEAR_SUBGROUP_N)?;
+        m.add("VERIFY_ALL_LIMIT", detect::DEFAULT_VERIFY_ALL_LIMIT)?;
         Ok(())
     }
 }

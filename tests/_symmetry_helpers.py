@@ -312,3 +312,14 @@ def symmetry_data(
 
 def random_rotation(seed):
     return Rotation.random(random_state=seed).as_matrix()
+
+
+def member_index(group, queries, tol=1e-9):
+    """Index of each query matrix in ``group`` (an independent check, scipy's KD-tree).
+
+    Raises AssertionError when a query is not (within ``tol``) an element of the group.
+    """
+    group = np.asarray(group, dtype=float).reshape(-1, 9)
+    dist, idx = cKDTree(group).query(np.asarray(queries, dtype=float).reshape(-1, 9))
+    assert dist.max() <= tol, f"a matrix is {dist.max():.3g} from every element"
+    return idx

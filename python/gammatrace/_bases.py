@@ -68,6 +68,9 @@ class SymmetryData:
         and ``operation_class`` in the standard frame).
     op_class : ndarray, shape (h,)
         Class index (into ``table.classes``) of each operation.
+    canonical_index : ndarray, shape (h,), optional
+        Which of ``table.operations`` each operation is (as detection reports it); by
+        default operation k is canonical operation k.
 
     Raises
     ------
@@ -85,6 +88,7 @@ class SymmetryData:
     permutations: np.ndarray
     table: Any
     op_class: np.ndarray
+    canonical_index: np.ndarray | None = None
 
     def __post_init__(self):
         pos = np.ascontiguousarray(self.positions, dtype=np.float64)

@@ -9,10 +9,47 @@ from typing_extensions import TypeAlias
 F64: TypeAlias = npt.NDArray[np.float64]
 I64: TypeAlias = npt.NDArray[np.int64]
 
+DEFAULT_TOLERANCE: float  # default distance tolerance, Å
+LINEAR_SUBGROUP_N: int  # M of the C_Mv / D_Md that stand for C∞v / D∞h
+VERIFY_ALL_LIMIT: int  # verify every operation while n_atoms * order stays below this
+
+class Detection:
+    """The point group of one structure as detection found it (frozen; arrays moved, not copied)."""
+
+    point_group: str  # Schoenflies name ("C2v", "D∞h", "K_h")
+    center: F64  # (3,) centre of mass; operations act on positions - center
+    frame: F64  # (3, 3) rows = standard x, y, z axes in input coordinates
+    operations: F64  # (h, 3, 3) input frame, E first, in canonical order
+    proper: npt.NDArray[np.bool_]  # (h,)
+    angle: F64  # (h,) degrees in [0, 180]
+    axis: F64  # (h, 3) unit axis (plane normal for a mirror)
+    canonical_index: I64  # (h,) canonical operation of each operation (0, 1, ..., h - 1)
+    class_of: I64  # (h,) conjugacy class (smallest member's index)
+    generators: I64  # indices of a generating set
+    verified: I64  # (k,) operations verified against the atoms (all, or E + generators)
+    permutations: I64  # (k, n_atoms) atom i -> permutations[j, i] under verified[j]
+    max_deviation: float  # largest image distance over the verified operations, Å
+
+class GroupData:
+    """A group's canonical operations (standard frame) and their arithmetic (frozen)."""
+
+    name: str
+    operations: F64  # (h, 3, 3), E first
+    generators: I64
+    class_of: I64  # (h,) conjugacy class (smallest member's index)
+    inverse: I64  # (h,) index of each inverse
+    square: I64  # (h,) index of each square
+
 def find_point_group(
     positions: F64, numbers: I64, tol: float, linear_n: int, verify_all_limit: int
-) -> dict[str, Any]:
-    """Detect the point group; dict of group name, frame, operations, classes, permutations."""
+) -> Detection:
+    """Detect the point group: name, frame, canonical operations, classes, permutations."""
+
+def canonical_group(name: str, linear_n: int) -> GroupData:
+    """The canonical operations of a group (core spelling of its name) with their arithmetic."""
+
+def locate_operations(operations: F64, queries: F64) -> I64:
+    """Index of each query among the operations (exact: entries within 1e-6), else InputError."""
 
 def map_operations(
     positions: F64,

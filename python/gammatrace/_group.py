@@ -4,8 +4,9 @@ Detected operations are only as exact as the tolerance that found them. Everythi
 change-of-basis code needs an exact representation, so the operations are first made exact:
 
 * when the character table carries canonical operations (``table.operations``, standard frame),
-  each detected operation is replaced by the canonical operation it is nearest to (after
-  rotating it into the standard frame with ``frame``), and written back in the input frame;
+  each detected operation is replaced by the canonical operation it stands for
+  (``canonical_index``, as the core reports it; by default operation k is canonical operation
+  k), written back in the input frame; the products come from the core's group arithmetic;
 * otherwise they are idealised by the group average ρ'(g) = (1/h) Σ_x ρ(gx) ρ(x)⁻¹ followed by
   the nearest orthogonal matrix, which converges quadratically to an exact representation of
   the group whose multiplication table the detected matrices define.
@@ -37,6 +38,7 @@ from scipy.spatial import cKDTree
 
 from . import _sph_harm
 from .errors import SymmetryError, TableError
+from .tables._ops import locate
 
 __all__ = ["GroupData", "group_data"]
 
@@ -93,7 +95,10 @@ def _polar(m: np.ndarray) -> np.ndarray:
 
 
 def multiplication_table(ops: np.ndarray) -> np.ndarray:
-    """Multiplication table of a finite group of 3x3 matrices, matched to the nearest element.
+    """Multiplication table of approximate group matrices, matched to the nearest element.
+
+    Only for tables without canonical operations (a table made by hand), before and after
+    idealising the matrices by group averaging; detected operations never come here.
 
     Raises
     ------
@@ -248,24 +253,41 @@ def _reference_matrices(ops_std, mult, inverse, labels, dims, chars, nu):
     return tuple(out)
 
 
-def _match_canonical(ops_std: np.ndarray, table, op_class: np.ndarray) -> np.ndarray | None:
+def _canonical(ops_std: np.ndarray, sym) -> tuple[np.ndarray, np.ndarray] | None:
+    """Exact operations and multiplication table from the table's canonical operations.
+
+    None when the table carries no canonical operations (a table made by hand).
+
+    Raises
+    ------
+    SymmetryError
+        When the operations are not the canonical ones they are said to be (farther than
+        0.2 in Frobenius norm, far beyond any tolerance).
+    """
+    table = sym.table
     canon = getattr(table, "operations", None)
     if canon is None:
         return None
     canon = np.asarray(canon, dtype=np.float64)
-    if canon.shape != ops_std.shape:
-        return None
-    tree = cKDTree(canon.reshape(-1, 9))
-    dist, idx = tree.query(ops_std.reshape(-1, 9))
-    if np.unique(idx).size != idx.size or dist.max() > 0.2:
-        return None
-    canon_class = getattr(table, "operation_class", None)
-    if canon_class is not None and np.any(np.asarray(canon_class)[idx] != op_class):
+    index = sym.canonical_index
+    index = np.arange(len(canon)) if index is None else np.asarray(index, dtype=np.int64)
+    if len(index) != len(ops_std) or np.unique(index).size != len(canon):
         raise SymmetryError(
-            "detected operations sit in other classes than the table's canonical operations "
-            "they match"
+            f"{len(ops_std)} operations given for the {len(canon)} canonical operations of "
+            f"{getattr(table, 'name', 'the table')} (canonical_index must list each once)"
         )
-    return canon[idx]
+    exact = canon[index]
+    worst = float(np.linalg.norm(ops_std - exact, axis=(1, 2)).max())
+    if worst > 0.2:
+        raise SymmetryError(
+            f"an operation lies {worst:.3g} (Frobenius norm) from the canonical operation of "
+            f"{getattr(table, 'name', 'the table')} it is said to be: operations and "
+            "canonical_index disagree"
+        )
+    # exact products of exact operations: membership, in the core
+    h = len(exact)
+    mult = locate(exact, np.einsum("aij,bjk->abik", exact, exact)).reshape(h, h)
+    return exact, mult
 
 
 def group_data(sym) -> GroupData:
@@ -289,11 +311,13 @@ def group_data(sym) -> GroupData:
     ops_in = np.asarray(sym.operations, dtype=np.float64)
     op_class = np.asarray(sym.op_class, dtype=np.int64)
     ops_std = np.einsum("ai,kij,bj->kab", frame, ops_in, frame)
-    exact = _match_canonical(ops_std, sym.table, op_class)
-    if exact is None:
+    found = _canonical(ops_std, sym)
+    if found is None:
         mult = multiplication_table(ops_std)
         exact = _idealise(ops_std, mult)
-    mult = multiplication_table(exact)
+        mult = multiplication_table(exact)
+    else:
+        exact, mult = found
     identity = int(np.argmin(np.abs(exact - np.eye(3)).reshape(-1, 9).sum(axis=1)))
     inverse = np.argmax(mult == identity, axis=1)
     labels, dims, chars, nu = _irrep_info(sym.table, op_class)

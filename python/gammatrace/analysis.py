@@ -16,6 +16,7 @@ from typing import Any
 
 import numpy as np
 
+from . import _core
 from .errors import BasisError, GammatraceError, InputError, SymmetryError
 from .io import FrameError, Structure, as_structure, element_data, read_structures
 from .representations import Basis, Representation, build_representation, parse_basis
@@ -30,16 +31,14 @@ __all__ = [
     "analyze_many",
 ]
 
-#: Default distance tolerance in ångström (see DEVELOPERS.md, "Tolerance").
-DEFAULT_TOL = 0.01
+#: Default distance tolerance in ångström (see DEVELOPERS.md, "Tolerance"); the core's value.
+DEFAULT_TOL: float = float(_core.DEFAULT_TOLERANCE)
 #: Smallest and largest tolerance accepted, Å.
 MIN_TOL, MAX_TOL = 1e-6, 10.0
 #: Verify every operation (and keep its permutation) while n_atoms * order stays below this;
 #: above it detection verifies E and the generators, and the other permutations are mapped
 #: on first use (:attr:`Analysis.permutations`).
-VERIFY_ALL_LIMIT = 2_000_000
-#: Largest Frobenius distance between a detected operation and the canonical one it stands for.
-CANONICAL_MATCH = 0.1
+VERIFY_ALL_LIMIT: int = int(_core.VERIFY_ALL_LIMIT)
 #: Group name reported for a single atom.
 ATOM_GROUP = "K_h"
 DEFAULT_BASES = ("atoms", "cartesian")
@@ -120,77 +119,29 @@ class Analysis:
     Everything beyond the point group is computed on first use and cached.
     """
 
-    def __init__(self, structure: Structure, raw: dict, tol: float):
+    def __init__(self, structure: Structure, raw: _core.Detection, tol: float):
         self.structure = structure
         self.tol = tol
         self._raw = raw
-        self.point_group: str = raw["point_group"]
-        self.center: np.ndarray = np.asarray(raw["center"], dtype=np.float64)
-        self.frame: np.ndarray = np.asarray(raw["frame"], dtype=np.float64)
-        self.operation_matrices: np.ndarray = np.ascontiguousarray(raw["operations"])
-        self.proper: np.ndarray = np.asarray(raw["proper"], dtype=bool)
-        self.angle: np.ndarray = np.asarray(raw["angle"], dtype=np.float64)
-        self.axis: np.ndarray = np.asarray(raw["axis"], dtype=np.float64)
-        self.max_deviation: float = float(raw["max_deviation"])
+        self.point_group: str = raw.point_group
+        self.center: np.ndarray = raw.center
+        self.frame: np.ndarray = raw.frame
+        self.operation_matrices: np.ndarray = raw.operations
+        self.proper: np.ndarray = raw.proper
+        self.angle: np.ndarray = raw.angle
+        self.axis: np.ndarray = raw.axis
+        self.max_deviation: float = raw.max_deviation
+        #: ``int64 (h,)``: which of the table's canonical operations each detected operation
+        #: is, as the core reports it (detection lists them in canonical order).
+        self.canonical_index: np.ndarray = raw.canonical_index
         if self.point_group == ATOM_GROUP:
             self.table = None
             self.op_class = np.zeros(len(self.operation_matrices), dtype=np.int64)
             self.classes = [ClassInfo("E", 1, True, 0.0)]
             return
         self.table = get_table(self.point_group)
-        self.op_class = np.asarray(self.table.operation_class, dtype=np.int64)[self.canonical_index]
+        self.op_class = self.table.operation_class[self.canonical_index]
         self.classes = list(self.table.classes)
-        self._check_classes(raw["classes"])
-
-    @cached_property
-    def canonical_index(self) -> np.ndarray:
-        """``int64 (h,)``: which of the table's canonical operations each detected operation is.
-
-        The one place where detected operations meet the table (DEVELOPERS.md): each is
-        rotated into the standard frame and matched to the nearest canonical matrix; the
-        match must be one-to-one. Classes, site groups and group products all follow from it.
-
-        Raises
-        ------
-        SymmetryError
-            When the detected operations do not map one-to-one onto the table's.
-        """
-        from .tables._ops import nearest
-
-        table = self.table
-        std = np.einsum("ij,kjl,ml->kim", self.frame, self.operation_matrices, self.frame)
-        idx, dist = nearest(table.operations, std)
-        if (
-            len(idx) != len(table.operations)
-            or len(np.unique(idx)) != len(idx)
-            or (len(dist) and dist.max() > CANONICAL_MATCH)
-        ):
-            raise SymmetryError(
-                f"{self.point_group}: the {len(idx)} detected operations do not map one-to-one "
-                f"onto the table's {len(table.operations)} (largest distance "
-                f"{dist.max() if len(dist) else 0.0:.3g})"
-            )
-        return np.asarray(idx, dtype=np.int64)
-
-    def _check_classes(self, core_classes: list) -> None:
-        """The core's conjugacy classes must coincide with the table's classes."""
-        sizes = np.bincount(self.op_class, minlength=len(self.classes))
-        expected = np.array([c.size for c in self.classes])
-        if len(self.operation_matrices) != len(self.table.operations) or not np.array_equal(
-            sizes, expected
-        ):
-            raise SymmetryError(
-                f"{self.point_group}: detected operations fall into classes of sizes "
-                f"{sizes.tolist()}, the table has {expected.tolist()}"
-            )
-        for members in core_classes:
-            labels = {int(self.op_class[m]) for m in members}
-            if len(labels) != 1:
-                raise SymmetryError(
-                    f"{self.point_group}: one conjugacy class of the detector (operations "
-                    f"{list(members)}) spans table classes "
-                    f"{[self.classes[i].label for i in sorted(labels)]}"
-                )
 
     # ---------------------------------------------------------------- basic facts
     @property
@@ -239,14 +190,12 @@ class Analysis:
         SymmetryError
             If such an operation does not hold within the tolerance.
         """
-        from . import _core
-
-        verified = list(self._raw["verified"])
-        perms = np.asarray(self._raw["permutations"], dtype=np.int64)
+        verified = self._raw.verified
+        perms = self._raw.permutations
         h = len(self.operation_matrices)
         out = np.empty((h, self.n_atoms), dtype=np.int64)
         out[verified] = perms
-        missing = sorted(set(range(h)) - set(verified))
+        missing = sorted(set(range(h)) - set(verified.tolist()))
         if missing:
             s = self.structure
             more, _ = _core.map_operations(
@@ -262,12 +211,17 @@ class Analysis:
     @property
     def all_verified(self) -> bool:
         """True when detection mapped every operation (small and mid-size structures)."""
-        return len(self._raw["verified"]) == len(self.operation_matrices)
+        return len(self._raw.verified) == len(self.operation_matrices)
+
+    @property
+    def verified_operations(self) -> np.ndarray:
+        """``int64 (k,)``: the operations detection verified (all, or E and the generators)."""
+        return self._raw.verified
 
     @property
     def generator_permutations(self) -> np.ndarray:
         """Permutations of the verified operations (all, or the generators for huge inputs)."""
-        return np.asarray(self._raw["permutations"], dtype=np.int64)
+        return self._raw.permutations
 
     @property
     def symmetry_number(self) -> int:
@@ -291,8 +245,6 @@ class Analysis:
     @cached_property
     def unshifted_atoms(self) -> np.ndarray:
         """Atoms each operation leaves unshifted (``float64 (h,)``), counted once in the core."""
-        from . import _core
-
         s = self.structure
         counts = _core.count_unshifted(
             s.positions, tuple(self.center), self.operation_matrices, self.tol
@@ -306,8 +258,6 @@ class Analysis:
 
     def bonds(self, scale: float = 1.2) -> np.ndarray:
         """Bonded atom pairs ``(n_bonds, 2)`` from covalent radii: d ≤ scale·(r_i + r_j)."""
-        from . import _core
-
         radii = element_data(self.structure.numbers)[1]
         return _core.find_bonds(self.structure.positions, radii, float(scale))
 
@@ -376,6 +326,7 @@ class Analysis:
             self.permutations,
             self.table,
             self.op_class,
+            self.canonical_index,
         )
 
     def symmetry_adapted_basis(self, basis: Any = "cartesian"):
@@ -443,7 +394,6 @@ class Analysis:
         the site group of each orbit comes from where the group's operations send one of its
         atoms, composed through the multiplication table (no further pass over the atoms).
         """
-        from . import _core
 
         perms = self.generator_permutations
         ids = np.asarray(_core.orbits(self.n_atoms, np.ascontiguousarray(perms)), dtype=np.int64)
@@ -464,8 +414,9 @@ class Analysis:
         from .sites import _images
         from .tables.subgroups import identify_group
 
-        canon = self.canonical_index
-        images = _images(self, representatives, canon)  # (h, k), rows = canonical operations
+        images = _images(
+            self, representatives, self.canonical_index
+        )  # (h, k), rows = canonical operations
         ops = self.table.operations
         cache: dict = {}
         out = []
@@ -625,8 +576,6 @@ def analyze(
 
 def analyze_structure(s: Structure, tol: float) -> Analysis:
     """Analyse a :class:`Structure` (no input coercion)."""
-    from . import _core
-
     raw = _core.find_point_group(s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT)
     return Analysis(s, raw, tol)
 

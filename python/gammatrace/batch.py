@@ -175,10 +175,9 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
     if np.any(raw["op_offsets"][rows + 1] - start != h):
         raise GammatraceError(f"{group}: operation count differs from the table's {h}")
     idx = start[:, None] + np.arange(h)[None, :]
-    ops = raw["operations"][idx]  # (k, h, 3, 3)
-    frames = raw["frame"][rows]
-    std = np.einsum("kij,khjl,kml->khim", frames, ops, frames)
-    cls = np.asarray(table.assign_classes(std.reshape(-1, 3, 3)), dtype=np.int64).reshape(-1, h)
+    # detection lists each group's operations in canonical order (operation k is canonical
+    # operation k), so the classes are the table's own
+    cls = np.broadcast_to(table.operation_class, idx.shape)
     # Γ_3N per operation: unshifted atoms × the core's per-atom contribution of x, y, z (l = 1)
     per_atom = _core.orbital_contributions(
         np.ascontiguousarray(raw["proper"][idx].reshape(-1)),

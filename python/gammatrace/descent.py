@@ -30,7 +30,6 @@ from .sites import (
 )
 from .spectroscopy import format_irreps
 from .tables import correlate
-from .tables._ops import nearest
 
 __all__ = [
     "DEFAULT_LADDER_TOLERANCES",
@@ -49,8 +48,6 @@ __all__ = [
 
 #: Tolerances (Å) of the default ladder: a geometric series from 1e-4 to 0.5 Å.
 DEFAULT_LADDER_TOLERANCES = tuple(float(t) for t in np.geomspace(1e-4, 0.5, 13))
-#: Largest Frobenius distance between operations found at two tolerances that are "the same".
-_LADDER_MATCH = 0.3
 
 # --------------------------------------------------------------------------------------------
 # Distortion ladder
@@ -205,13 +202,26 @@ class DistortionLadder:
 
 
 def _restrict_through_operations(high: Analysis, low: Analysis) -> tuple[dict | None, str]:
-    """Correlation of ``high``'s irreps into ``low`` from the operations both detected."""
-    idx, dist = nearest(high.operation_matrices, low.operation_matrices)
-    if len(np.unique(idx)) != len(idx) or dist.max() > _LADDER_MATCH:
+    """Correlation of ``high``'s irreps into ``low`` from the operations both detected.
+
+    An operation of a non-linear structure is fixed by how it permutes the atoms and whether
+    it is proper (a planar structure's g and σh·g permute alike but differ in handedness), so
+    each of ``low``'s operations is found among ``high``'s by that key: no matrix matching.
+    """
+    key = {
+        (bool(p), perm.tobytes()): k
+        for k, (p, perm) in enumerate(zip(high.proper, high.permutations))
+    }
+    if len(key) != len(high.proper):
+        # a linear molecule: every rotation about its axis permutes the atoms alike
+        return None, f"the operations of {high.point_group} do not tell apart by their permutations"
+    found = [key.get((bool(p), perm.tobytes())) for p, perm in zip(low.proper, low.permutations)]
+    if any(k is None for k in found) or len(set(found)) != len(found):
         return None, (
             f"the {low.point_group} operations are not all among the {high.point_group} ones "
-            f"(largest mismatch {dist.max():.3g})"
+            "(they permute the atoms differently)"
         )
+    idx = np.asarray(found, dtype=np.int64)
     chars = high.table.character_matrix[:, high.op_class[idx]]  # (irreps of high, ops of low)
     n_cls = len(low.table.classes)
     restricted = np.zeros((chars.shape[0], n_cls))

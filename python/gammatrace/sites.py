@@ -20,7 +20,6 @@ The public names are re-exported by :mod:`gammatrace.descent`.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from functools import cache
 from typing import Any
 
 import numpy as np
@@ -30,7 +29,7 @@ from .errors import BasisError, SymmetryError
 from .representations import json_number, parse_basis
 from .spectroscopy import format_irreps
 from .tables import get_table
-from .tables._ops import lookup
+from .tables._ops import multiplication_table
 from .tables.subgroups import _describe, _frames, identify_group
 
 __all__ = [
@@ -49,17 +48,10 @@ __all__ = [
 # --------------------------------------------------------------------------------------------
 
 
-@cache
 def _group_tables(name: str) -> tuple[np.ndarray, np.ndarray, int]:
     """Multiplication table ``prod[a, b]`` = index of a·b, inverses and the identity's index."""
-    ops = get_table(name).operations
-    h = len(ops)
-    prod = lookup(ops, np.einsum("aij,bjk->abik", ops, ops).reshape(-1, 3, 3)).reshape(h, h)
-    inv = lookup(ops, np.transpose(ops, (0, 2, 1)))
-    ident = int(lookup(ops, np.eye(3)[None])[0])
-    for arr in (prod, inv):
-        arr.setflags(write=False)
-    return prod, inv, ident
+    prod, inv = multiplication_table(name)
+    return prod, inv, 0
 
 
 def _images(analysis: Analysis, atoms: np.ndarray, canon: np.ndarray) -> np.ndarray:
@@ -74,7 +66,7 @@ def _images(analysis: Analysis, atoms: np.ndarray, canon: np.ndarray) -> np.ndar
         img[canon] = analysis.permutations[:, atoms]
         return img
     prod, _, ident = _group_tables(analysis.table.name)
-    verified = np.asarray(analysis._raw["verified"], dtype=np.int64)
+    verified = analysis.verified_operations
     gen_perms = analysis.generator_permutations
     gens = canon[verified]
     known = np.zeros(h, dtype=bool)
@@ -121,7 +113,8 @@ class Site:
     site_group : str
         Schoenflies name of the stabiliser (``C∞v``/``D∞h`` on the axis of a linear molecule).
     site_table : str
-        The character table used for the site group (the finite one for linear sites).
+        The character table used for the site group (C∞v / D∞h on the axis of a linear
+        molecule, computed with the operations of its finite stand-in).
     stabiliser : numpy.ndarray of int
         Indices into :attr:`Analysis.operations` of the operations fixing the representative.
     frame : numpy.ndarray, shape (3, 3)
@@ -253,7 +246,7 @@ def _site_frame(table, idx: np.ndarray):
     if not frames:
         raise SymmetryError(f"no standard frame found for the site group {name} in {table.name}")
     f = frames[0]
-    classes = site_tab.assign_classes(f @ ops @ f.T)
+    classes = site_tab.locate_classes(f @ ops @ f.T)
     return name, site_tab, f, classes
 
 
@@ -324,9 +317,11 @@ def site_analysis(analysis: Analysis) -> SiteAnalysis:
         idx = np.flatnonzero(key)
         name, site_tab, f, classes = _site_frame(table, idx)
         shown = _display_name(analysis, name, len(idx))
-        desc = _describe(analysis.point_group, table, name, site_tab, idx, f, False)
         if shown != name:
-            desc = f"{shown} (through {name}): {desc}"
+            # the linear table has its finite stand-in's operations and classes, with the
+            # labels of C∞v / D∞h: the stand-in is never shown
+            name, site_tab = shown, get_table(shown)
+        desc = _describe(analysis.point_group, table, name, site_tab, idx, f, False)
         labels = tuple(site_tab.classes[c].label for c in classes)
         stab_ops = to_analysis[idx]
         sort = np.argsort(stab_ops)

@@ -205,3 +205,290 @@ pub fn standard_operations(family: Family) -> (Vec<Mat3>, Vec<usize>) {
         Family::Ih => close(&[c5, cyc, INVERSION]),
     }
 }
+
+impl Family {
+    /// The family of a Schoenflies name as [`Family::name`] spells it (`"D6h"`, `"S8"`,
+    /// `"C∞v"`, `"K_h"`), with `linear_n` the M of the finite subgroups C_Mv / D_Md that
+    /// stand for the linear groups. `None` for anything else (including n < 2 where the
+    /// name has its own spelling: C1h is Cs, S2 is Ci).
+    pub fn from_name(name: &str, linear_n: usize) -> Option<Family> {
+        match name {
+            "C1" => return Some(Family::C1),
+            "Cs" => return Some(Family::Cs),
+            "Ci" => return Some(Family::Ci),
+            "T" => return Some(Family::T),
+            "Td" => return Some(Family::Td),
+            "Th" => return Some(Family::Th),
+            "O" => return Some(Family::O),
+            "Oh" => return Some(Family::Oh),
+            "I" => return Some(Family::I),
+            "Ih" => return Some(Family::Ih),
+            "C∞v" => return Some(Family::Cinfv(linear_n)),
+            "D∞h" => return Some(Family::Dinfh(linear_n)),
+            "K_h" => return Some(Family::Kh),
+            _ => {}
+        }
+        let (head, rest) = name.split_at(1);
+        let digits: String = rest.chars().take_while(|c| c.is_ascii_digit()).collect();
+        let suffix = &rest[digits.len()..];
+        if digits.is_empty() || digits.starts_with('0') {
+            return None;
+        }
+        let n: usize = digits.parse().ok()?;
+        let fam = match (head, suffix) {
+            ("C", "") if n >= 2 => Family::Cn(n),
+            ("C", "v") if n >= 2 => Family::Cnv(n),
+            ("C", "h") if n >= 2 => Family::Cnh(n),
+            ("S", "") if n >= 4 && n.is_multiple_of(2) => Family::S2n(n),
+            ("D", "") if n >= 2 => Family::Dn(n),
+            ("D", "h") if n >= 2 => Family::Dnh(n),
+            ("D", "d") if n >= 2 => Family::Dnd(n),
+            _ => return None,
+        };
+        Some(fam)
+    }
+}
+
+/// Everything the rest of the program needs to know about one group's canonical
+/// operations (standard frame): the operations themselves and their arithmetic. Built once
+/// per family ([`group_data`]) and shared; detection reports its operations in exactly
+/// this order, so operation k of a detection is canonical operation k.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GroupData {
+    /// The family.
+    pub family: Family,
+    /// The canonical operations, E first (C∞v / D∞h: those of C_Mv / D_Md).
+    pub ops: Vec<Mat3>,
+    /// Indices of a generating set (empty for C1 and K_h).
+    pub generators: Vec<usize>,
+    /// Conjugacy class of each operation: the smallest operation index in its class.
+    pub class_of: Vec<usize>,
+    /// Index of the inverse of each operation.
+    pub inverse: Vec<usize>,
+    /// Index of the square of each operation.
+    pub square: Vec<usize>,
+}
+
+/// Entries of operation matrices agree to this when two operations are one element.
+const SAME_ELEMENT: f64 = 1e-6;
+
+fn matrix_key(m: &Mat3) -> [i64; 9] {
+    let mut k = [0i64; 9];
+    for i in 0..3 {
+        for j in 0..3 {
+            k[3 * i + j] = (m[i][j] * 1e6).round() as i64;
+        }
+    }
+    k
+}
+
+/// Exact membership of matrices in a finite group of matrices: a hash of the rounded
+/// entries, with a scan as the fallback for entries on a rounding boundary.
+pub struct ElementIndex<'a> {
+    ops: &'a [Mat3],
+    index: std::collections::HashMap<[i64; 9], usize>,
+}
+
+impl<'a> ElementIndex<'a> {
+    /// Index the operations of a group.
+    pub fn new(ops: &'a [Mat3]) -> Self {
+        let index = ops
+            .iter()
+            .enumerate()
+            .map(|(i, m)| (matrix_key(m), i))
+            .collect();
+        ElementIndex { ops, index }
+    }
+
+    /// The operation equal to `m` (every entry within 1e-6), if any.
+    pub fn find(&self, m: &Mat3) -> Option<usize> {
+        self.index
+            .get(&matrix_key(m))
+            .copied()
+            .filter(|&i| max_abs_diff(&self.ops[i], m) < SAME_ELEMENT)
+            .or_else(|| {
+                self.ops
+                    .iter()
+                    .position(|o| max_abs_diff(o, m) < SAME_ELEMENT)
+            })
+    }
+}
+
+fn transpose3(m: &Mat3) -> Mat3 {
+    [
+        [m[0][0], m[1][0], m[2][0]],
+        [m[0][1], m[1][1], m[2][1]],
+        [m[0][2], m[1][2], m[2][2]],
+    ]
+}
+
+fn build_group_data(family: Family) -> crate::Result<GroupData> {
+    let (ops, generators) = standard_operations(family);
+    let idx = ElementIndex::new(&ops);
+    // A failure here is a bug in the generators above, reported rather than panicking.
+    let missing = |what: &str, k: usize| crate::Error::InvalidArgument {
+        name: family.name(),
+        reason: format!("internal: the {what} of canonical operation {k} is not in the group"),
+    };
+    let h = ops.len();
+    let mut inverse = Vec::with_capacity(h);
+    let mut square = Vec::with_capacity(h);
+    for (k, m) in ops.iter().enumerate() {
+        inverse.push(
+            idx.find(&transpose3(m))
+                .ok_or_else(|| missing("inverse", k))?,
+        );
+        square.push(
+            idx.find(&mat_mul(m, m))
+                .ok_or_else(|| missing("square", k))?,
+        );
+    }
+    // Conjugation by the generators generates conjugation by the whole group: the classes
+    // are the connected components of x ~ g x g⁻¹ over the generators g (union-find).
+    let mut parent: Vec<usize> = (0..h).collect();
+    fn root(parent: &mut [usize], mut i: usize) -> usize {
+        while parent[i] != i {
+            parent[i] = parent[parent[i]];
+            i = parent[i];
+        }
+        i
+    }
+    for &g in &generators {
+        let (s, st) = (ops[g], transpose3(&ops[g]));
+        for (k, m) in ops.iter().enumerate() {
+            let conj = mat_mul(&s, &mat_mul(m, &st));
+            let j = idx.find(&conj).ok_or_else(|| missing("conjugate", k))?;
+            let (a, b) = (root(&mut parent, k), root(&mut parent, j));
+            if a != b {
+                parent[a.max(b)] = a.min(b);
+            }
+        }
+    }
+    let class_of: Vec<usize> = (0..h).map(|k| root(&mut parent, k)).collect();
+    Ok(GroupData {
+        family,
+        ops,
+        generators,
+        class_of,
+        inverse,
+        square,
+    })
+}
+
+/// The canonical operations of `family` with their arithmetic, built on first use and
+/// shared afterwards (detection asks for the same few groups again and again).
+///
+/// # Errors
+/// `Internal` if the generated operations do not form a group (a bug).
+pub fn group_data(family: Family) -> crate::Result<std::sync::Arc<GroupData>> {
+    use std::collections::HashMap;
+    use std::sync::{Arc, Mutex, OnceLock};
+    static CACHE: OnceLock<Mutex<HashMap<String, Arc<GroupData>>>> = OnceLock::new();
+    let key = format!("{family:?}");
+    let cache = CACHE.get_or_init(|| Mutex::new(HashMap::new()));
+    if let Ok(map) = cache.lock() {
+        if let Some(found) = map.get(&key) {
+            return Ok(Arc::clone(found));
+        }
+    }
+    let data = Arc::new(build_group_data(family)?);
+    if let Ok(mut map) = cache.lock() {
+        map.insert(key, Arc::clone(&data));
+    }
+    Ok(data)
+}
+
+/// Index of each query among `ops` (every entry within 1e-6): exact group arithmetic on
+/// canonical operations, never a match of measured ones.
+///
+/// # Errors
+/// `InvalidArgument` naming the first query that is not an element of `ops`.
+pub fn locate(ops: &[Mat3], queries: &[Mat3]) -> crate::Result<Vec<usize>> {
+    let idx = ElementIndex::new(ops);
+    queries
+        .iter()
+        .enumerate()
+        .map(|(q, m)| {
+            idx.find(m).ok_or_else(|| crate::Error::InvalidArgument {
+                name: "queries".into(),
+                reason: format!(
+                    "matrix {q} is not one of the {} operations (no entry-wise match within 1e-6)",
+                    ops.len()
+                ),
+            })
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn names_round_trip_through_from_name() {
+        for fam in [
+            Family::C1,
+            Family::Cs,
+            Family::Ci,
+            Family::Cn(7),
+            Family::Cnv(2),
+            Family::Cnh(5),
+            Family::S2n(8),
+            Family::Dn(3),
+            Family::Dnh(12),
+            Family::Dnd(4),
+            Family::T,
+            Family::Td,
+            Family::Th,
+            Family::O,
+            Family::Oh,
+            Family::I,
+            Family::Ih,
+            Family::Cinfv(13),
+            Family::Dinfh(13),
+            Family::Kh,
+        ] {
+            assert_eq!(Family::from_name(&fam.name(), 13), Some(fam));
+        }
+        for bad in ["C0", "S3", "S2", "C1v", "Q3", "D", "C07", "Dd"] {
+            assert_eq!(Family::from_name(bad, 13), None, "{bad}");
+        }
+    }
+
+    #[test]
+    fn group_data_has_classes_of_printed_sizes() {
+        // Class sizes of Oh and D6h (common practice; any printed table).
+        let sizes = |fam| {
+            let g = group_data(fam).unwrap();
+            let mut count = std::collections::BTreeMap::new();
+            for &c in &g.class_of {
+                *count.entry(c).or_insert(0usize) += 1;
+            }
+            let mut v: Vec<usize> = count.into_values().collect();
+            v.sort_unstable();
+            v
+        };
+        assert_eq!(sizes(Family::Oh), vec![1, 1, 3, 3, 6, 6, 6, 6, 8, 8]);
+        assert_eq!(
+            sizes(Family::Dnh(6)),
+            vec![1, 1, 1, 1, 2, 2, 2, 2, 3, 3, 3, 3]
+        );
+        assert_eq!(sizes(Family::Ih).len(), 10);
+    }
+
+    #[test]
+    fn inverse_and_square_are_group_arithmetic() {
+        let g = group_data(Family::Ih).unwrap();
+        for k in 0..g.ops.len() {
+            let p = mat_mul(&g.ops[k], &g.ops[g.inverse[k]]);
+            assert!(max_abs_diff(&p, &IDENTITY) < 1e-9);
+            let s = mat_mul(&g.ops[k], &g.ops[k]);
+            assert!(max_abs_diff(&s, &g.ops[g.square[k]]) < 1e-9);
+        }
+        assert!(locate(
+            &g.ops,
+            &[[[2.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]]]
+        )
+        .is_err());
+    }
+}

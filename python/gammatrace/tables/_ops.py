@@ -1,39 +1,48 @@
-"""Point operations as 3x3 matrices: construction, description, lookup, closure and classes.
+"""Point operations as 3x3 matrices: construction, description and the core's group arithmetic.
 
 Every operation is R = C(θ) (proper) or R = σh·C(θ) (improper) about a unit axis, θ in
 [0°, 180°] (DEVELOPERS.md, "Operations"). Since σh·C(θ) = −C(θ + 180°), an improper R has
-θ = 180° − angle(−R). Lookups find the nearest matrix of a table by the Frobenius inner
-product (for orthogonal matrices ‖A − B‖² = 6 − 2⟨A, B⟩), in chunks so that memory stays
-bounded for groups of a few thousand operations.
+θ = 180° − angle(−R).
+
+The canonical operations of every group, with their conjugacy classes, inverses and squares,
+come from the Rust core (``_core.canonical_group``), the one place where they are generated;
+membership of exact matrices in a group is the core's ``locate_operations``. Nothing here
+generates a group or matches a measured operation to the nearest canonical one.
 """
 
 from __future__ import annotations
 
 from fractions import Fraction
+from functools import cache
 
 import numpy as np
+
+from .. import _core
+from ..errors import InputError
 
 __all__ = [
     "IDENTITY",
     "INVERSION",
+    "LINEAR_SUBGROUP_N",
     "SIGMA_H",
-    "close",
+    "canonical_group",
+    "contains_all",
     "describe",
-    "lookup",
+    "locate",
     "mirror",
-    "nearest",
+    "multiplication_table",
     "real_classes",
     "rot_z",
     "rotation",
     "rotation_label",
 ]
 
+#: n of the finite subgroup C_nv / D_nd that stands for C∞v / D∞h (odd); the core's value.
+LINEAR_SUBGROUP_N: int = int(_core.LINEAR_SUBGROUP_N)
+
 IDENTITY = np.eye(3)
 INVERSION = -np.eye(3)
 SIGMA_H = np.diag([1.0, 1.0, -1.0])
-
-# Chunk of queries per matrix product in `nearest` (queries x table inner products).
-_CHUNK = 512
 
 
 def rotation(axis, angle_rad: float) -> np.ndarray:
@@ -120,118 +129,85 @@ def describe(ops: np.ndarray):
     return proper, angle, axis
 
 
-def nearest(table: np.ndarray, queries: np.ndarray):
-    """Index of, and Frobenius distance to, the nearest table matrix for each query.
+@cache
+def canonical_group(name: str):
+    """The core's canonical operations of a group with their arithmetic (cached).
 
     Parameters
     ----------
-    table : numpy.ndarray, shape (h, 3, 3)
-    queries : numpy.ndarray, shape (k, 3, 3)
+    name : str
+        Schoenflies name as the core spells it (``"C3v"``, ``"S8"``, ``"Ih"``, ``"C∞v"``,
+        ``"K_h"``); C∞v / D∞h give the operations of C_Mv / D_Md, M = ``LINEAR_SUBGROUP_N``.
 
     Returns
     -------
-    index : numpy.ndarray of int, shape (k,)
-    distance : numpy.ndarray of float, shape (k,)
+    gammatrace._core.GroupData
+        ``operations`` (h, 3, 3) in the standard frame, E first; ``generators``;
+        ``class_of`` (conjugacy class of each operation: its smallest member's index);
+        ``inverse`` and ``square`` (index of each operation's inverse and square).
     """
-    t = np.asarray(table, dtype=np.float64).reshape(len(table), 9)
-    q = np.asarray(queries, dtype=np.float64).reshape(-1, 9)
-    t_sq = np.einsum("ij,ij->i", t, t)
-    index = np.empty(len(q), dtype=np.int64)
-    for start in range(0, len(q), _CHUNK):
-        block = q[start : start + _CHUNK]
-        # ‖q − t‖² = ‖q‖² + ‖t‖² − 2⟨q, t⟩; ‖q‖² is constant per row.
-        score = 2.0 * block @ t.T - t_sq[None, :]
-        index[start : start + _CHUNK] = np.argmax(score, axis=1)
-    distance = np.linalg.norm(q - t[index], axis=1)
-    return index, distance
+    data = _core.canonical_group(name, LINEAR_SUBGROUP_N)
+    for arr in (data.operations, data.generators, data.class_of, data.inverse, data.square):
+        arr.setflags(write=False)
+    return data
 
 
-def lookup(table: np.ndarray, queries: np.ndarray, tol: float = 1e-6) -> np.ndarray:
-    """Indices of queries that are (numerically) members of ``table``.
+def locate(ops: np.ndarray, queries: np.ndarray) -> np.ndarray:
+    """Index of each query among ``ops``: exact membership (entries within 1e-6), in the core.
+
+    For products, conjugates and frame changes of canonical operations, which are exact.
 
     Raises
     ------
-    RuntimeError
-        If a query is not in the table: an internal inconsistency, never user input.
+    InputError
+        If a query is not an element of ``ops`` (an internal inconsistency, never user input).
     """
-    index, distance = nearest(table, queries)
-    if len(distance) and distance.max() > tol:
-        bad = int(np.argmax(distance))
-        raise RuntimeError(
-            f"internal: operation {bad} is not in the generated group "
-            f"(distance {distance[bad]:.3g})"
-        )
-    return index
+    q = np.ascontiguousarray(np.asarray(queries, dtype=np.float64).reshape(-1, 3, 3))
+    return _core.locate_operations(np.ascontiguousarray(ops, dtype=np.float64), q)
 
 
-def _key(m: np.ndarray) -> bytes:
-    return np.round(m, 8).tobytes()
+def contains_all(ops: np.ndarray, queries: np.ndarray) -> bool:
+    """True when every query is an element of ``ops`` (exact membership, as :func:`locate`)."""
+    try:
+        locate(ops, queries)
+    except InputError:
+        return False
+    return True
 
 
-def close(generators, max_order: int = 200) -> np.ndarray:
-    """Close a set of orthogonal matrices under multiplication.
+@cache
+def multiplication_table(name: str) -> tuple[np.ndarray, np.ndarray]:
+    """``prod[a, b]`` = index of a·b among a group's canonical operations, and the inverses.
 
-    Parameters
-    ----------
-    generators : sequence of (3, 3) arrays
-    max_order : int
-        Guard against generators of an infinite group.
-
-    Returns
-    -------
-    numpy.ndarray, shape (h, 3, 3)
-        The group, identity first, then in order of discovery.
+    Cached per group; ``int64 (h, h)`` and ``(h,)``, read-only. The identity is index 0.
     """
-    gens = [np.asarray(g, dtype=np.float64) for g in generators]
-    ops = [np.eye(3)]
-    seen = {_key(np.eye(3) + 0.0)}
-    frontier = [np.eye(3)]
-    while frontier:
-        new = []
-        for a in frontier:
-            for g in gens:
-                p = g @ a
-                p[np.abs(p) < 1e-14] = 0.0
-                k = _key(p + 0.0)
-                if k not in seen:
-                    seen.add(k)
-                    ops.append(p)
-                    new.append(p)
-                    if len(ops) > max_order:
-                        raise RuntimeError("internal: generators do not close into a finite group")
-        frontier = new
-    return np.array(ops)
+    group = canonical_group(name)
+    ops = np.asarray(group.operations)
+    h = len(ops)
+    prod = locate(ops, np.einsum("aij,bjk->abik", ops, ops).reshape(-1, 3, 3)).reshape(h, h)
+    prod.setflags(write=False)
+    return prod, group.inverse
 
 
-def real_classes(ops: np.ndarray, generators) -> np.ndarray:
+def real_classes(class_of: np.ndarray, inverse: np.ndarray) -> np.ndarray:
     """Real classes: conjugacy classes merged with their inverse classes.
 
     A real character cannot tell g from g⁻¹, and a printed table with complex-conjugate
     pairs combined into one real irrep lists {g, g⁻¹} classes; for ambivalent groups
     (all but Cn, Cnh, S2n with n ≥ 3, T, Th) these are the conjugacy classes themselves.
-    Conjugation by the generators generates conjugation by the whole group, so the
-    classes are the connected components of x ~ g x g⁻¹ (g a generator) and x ~ x⁻¹.
+
+    Parameters
+    ----------
+    class_of, inverse : numpy.ndarray of int, shape (h,)
+        The core's conjugacy class (smallest member) and inverse of each operation.
 
     Returns
     -------
     numpy.ndarray of int, shape (h,)
-        Class id of each operation: the smallest operation index in its class.
+        Class id of each operation: the smallest operation index in its real class.
     """
-    ops = np.asarray(ops, dtype=np.float64)
-    links = [lookup(ops, np.transpose(ops, (0, 2, 1)))]
-    for g in generators:
-        g = np.asarray(g, dtype=np.float64)
-        links.append(lookup(ops, g @ ops @ g.T))
-    label = np.arange(len(ops))
-    while True:
-        old = label.copy()
-        for perm in links:
-            # Propagate the minimum along each link in both directions.
-            np.minimum.at(label, perm, label)
-            label = np.minimum(label, label[perm])
-        label = label[label]  # pointer jumping
-        if np.array_equal(label, old):
-            return label
+    class_of = np.asarray(class_of, dtype=np.int64)
+    return np.minimum(class_of, class_of[np.asarray(inverse, dtype=np.int64)])
 
 
 def fraction_of_turn(angle_deg: float, max_den: int) -> Fraction:

@@ -57,9 +57,8 @@ class TableSpec:
     """The raw content of a table as a builder produces it (before functions are matched).
 
     ``op_class`` holds the class index (print order) of each operation in ``ops``;
-    ``characters`` is (n_irreps, n_classes) in print order; ``h`` is the number of
-    operations (of the finite subgroup for linear groups); ``max_den`` bounds the
-    denominators used when naming rotation angles.
+    ``characters`` is (n_irreps, n_classes) in print order; ``square`` holds the index of
+    each operation's square (the core's group arithmetic).
     """
 
     name: str
@@ -69,6 +68,7 @@ class TableSpec:
     irrep_labels: tuple[str, ...]
     characters: np.ndarray
     order: int | None
+    square: np.ndarray | None = None
     is_linear: bool = False
 
 

@@ -29,10 +29,18 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._ops import INVERSION, SIGMA_H, describe, lookup, real_classes, rot_z, rotation_label
+from ._ops import (
+    INVERSION,
+    SIGMA_H,
+    canonical_group,
+    describe,
+    locate,
+    real_classes,
+    rotation_label,
+)
 from ._types import ClassInfo, TableSpec, snap
 
-__all__ = ["axial_ops", "axial_spec"]
+__all__ = ["axial_spec", "core_name"]
 
 
 def _perp(beta, z_sign: float) -> np.ndarray:
@@ -52,46 +60,20 @@ def _perp(beta, z_sign: float) -> np.ndarray:
     return out
 
 
-def axial_ops(family: str, n: int):
-    """Canonical operations and generators of an axial group in the standard frame.
+def core_name(family: str, n: int) -> str:
+    """The Schoenflies name of an axial family member as the core spells it.
 
-    Parameters
-    ----------
-    family : str
-        ``"C"``, ``"Cv"``, ``"Ch"``, ``"S"``, ``"D"``, ``"Dh"`` or ``"Dd"``.
-    n : int
-        The n of the family; for ``"S"`` the order N = 2n of S_N.
-
-    Returns
-    -------
-    ops : numpy.ndarray, shape (h, 3, 3)
-    generators : list of (3, 3) arrays
+    ``family`` is ``"C"``, ``"Cv"``, ``"Ch"``, ``"S"``, ``"D"``, ``"Dh"`` or ``"Dd"``; for
+    ``"S"`` n is the order 2n of S_2n. C1h is ``"Cs"`` and S2 is ``"Ci"``.
     """
-    k = np.arange(n)
-    cn = rot_z(2 * np.pi * k / n)
-    c_gen = rot_z(2 * np.pi / n)
-    if family == "C":
-        return cn, [c_gen]
-    if family == "Cv":
-        return np.concatenate([cn, _perp(np.pi * k / n, 1.0)]), [c_gen, _perp(0.0, 1.0)]
-    if family == "Ch":
-        return np.concatenate([cn, SIGMA_H @ cn]), [c_gen, SIGMA_H]
+    if family == "Ch" and n == 1:
+        return "Cs"
+    if family == "S" and n == 2:
+        return "Ci"
     if family == "S":
-        signs = np.where(k % 2 == 0, 1.0, -1.0)
-        ops = rot_z(2 * np.pi * k / n)
-        ops[:, 2, 2] = signs
-        return ops, [ops[1 % n]]
-    dn = np.concatenate([cn, _perp(np.pi * k / n, -1.0)])
-    gens = [c_gen, _perp(0.0, -1.0)]
-    if family == "D":
-        return dn, gens
-    if family == "Dh":
-        return np.concatenate([dn, SIGMA_H @ dn]), [*gens, SIGMA_H]
-    if family == "Dd":
-        s2n, _ = axial_ops("S", 2 * n)
-        ops = np.concatenate([s2n, _perp(np.pi * k / n, -1.0), _perp(np.pi * (k + 0.5) / n, 1.0)])
-        return ops, [s2n[1], _perp(0.0, -1.0)]
-    raise ValueError(f"internal: unknown axial family {family!r}")
+        return f"S{n}"
+    suffix = {"C": "", "Cv": "v", "Ch": "h", "D": "", "Dh": "h", "Dd": "d"}[family]
+    return f"{family[0]}{n}{suffix}"
 
 
 # --- irreps of the planar image P ------------------------------------------------------
@@ -215,8 +197,8 @@ def _class_names(family: str, n: int, ops, cls, reps):
     """
     proper, angle, axis = describe(ops[reps])
     az = np.abs(axis[:, 2])
-    x_c2 = cls[lookup(ops, _perp(0.0, -1.0)[None])[0]] if family in ("D", "Dh", "Dd") else -1
-    xz_mirror = cls[lookup(ops, _perp(0.0, 1.0)[None])[0]] if family in ("Cv", "Dh") else -1
+    x_c2 = cls[locate(ops, _perp(0.0, -1.0)[None])[0]] if family in ("D", "Dh", "Dd") else -1
+    xz_mirror = cls[locate(ops, _perp(0.0, 1.0)[None])[0]] if family in ("Cv", "Dh") else -1
     d2 = family in ("D", "Dh") and n == 2
     kinds, names = [], []
     for j, rep in enumerate(reps):
@@ -281,7 +263,7 @@ def _class_names(family: str, n: int, ops, cls, reps):
         if proper[j]:
             keys.append(proper_key(j))
         elif partner is not None:
-            q = cls[lookup(ops, (partner @ ops[rep])[None])[0]]
+            q = cls[locate(ops, (partner @ ops[rep])[None])[0]]
             keys.append((10, *proper_key(index_of[int(q)])))
         elif kinds[j] == "Sz":
             keys.append((1, float(angle[j])))
@@ -307,8 +289,9 @@ def axial_spec(family: str, n: int, name: str) -> TableSpec:
     -------
     TableSpec
     """
-    ops, gens = axial_ops(family, n)
-    cls = real_classes(ops, gens)
+    group = canonical_group(core_name(family, n))
+    ops = np.asarray(group.operations)
+    cls = real_classes(group.class_of, group.inverse)
     reps = np.unique(cls)
     order, names, proper, angle = _class_names(family, n, ops, cls, reps)
     # Renumber: class index in print order for every operation.
@@ -349,4 +332,5 @@ def axial_spec(family: str, n: int, name: str) -> TableSpec:
         irrep_labels=tuple(labels),
         characters=chars,
         order=len(ops),
+        square=np.asarray(group.square),
     )

@@ -8,24 +8,49 @@ so the tables distinguish |m| ≤ 6 — angular momenta up to l = 6 reduce corre
 representation carrying |m| > 6 would alias onto a lower label (E_k of C_13v has the
 characters of E_(13−k)), so this limit is documented and not silently extended.
 
-The class labels, canonical operations and ``order`` are those of the finite subgroup,
-except that ``order`` is reported as None: the group itself is infinite.
+The canonical operations are those of the finite subgroup (the core's C∞v / D∞h); the classes
+keep its sizes (so the reduction formula is the finite group's) but are labelled as printed
+tables of the infinite groups label them (``linear_class_label``): ``2C∞(27.69°)`` for the
+rotations by ±φ about the axis, ``∞σv`` for the vertical mirrors, ``∞C2`` for the
+perpendicular C2 axes, ``2S∞(φ)`` for the improper rotations, ``i``; ``order`` is None.
 """
 
 from __future__ import annotations
 
-from ._types import TableSpec
+from ._ops import LINEAR_SUBGROUP_N
+from ._types import ClassInfo, TableSpec
 from .axial import axial_spec
 
-__all__ = ["LINEAR_SUBGROUP_N", "MAX_ABS_M", "linear_spec"]
-
-#: n of the finite subgroup C_nv / D_nd used for C∞v / D∞h (odd).
-LINEAR_SUBGROUP_N = 13
+__all__ = ["LINEAR_SUBGROUP_N", "MAX_ABS_M", "linear_class_label", "linear_spec"]
 
 #: Largest |m| that the finite subgroup separates: (LINEAR_SUBGROUP_N − 1) / 2.
 MAX_ABS_M = (LINEAR_SUBGROUP_N - 1) // 2
 
 _GREEK = ("Π", "Δ", "Φ", "Γ", "H", "I")
+
+
+def _angle_text(angle: float) -> str:
+    return f"{angle:.4g}°"
+
+
+def linear_class_label(info: ClassInfo) -> str:
+    """The label of a finite stand-in's class as tables of C∞v / D∞h print it.
+
+    Classes of more than two operations are the vertical mirrors (``∞σv``) or the C2 axes
+    perpendicular to the molecular axis (``∞C2``); the others are E, i, σh and the rotations
+    and improper rotations about the axis by ±φ (``2C∞(φ)``, ``2S∞(φ)``, φ in degrees).
+    """
+    if info.size > 2:
+        return "∞C2" if info.proper else "∞σv"
+    if info.proper:
+        if info.angle < 1e-9:
+            return "E"
+        return ("2" if info.size == 2 else "") + f"C∞({_angle_text(info.angle)})"
+    if info.angle < 1e-9:
+        return "σh"
+    if abs(info.angle - 180.0) < 1e-9:
+        return "i"
+    return ("2" if info.size == 2 else "") + f"S∞({_angle_text(info.angle)})"
 
 
 def _linear_labels(spec: TableSpec):
@@ -73,6 +98,7 @@ def linear_spec(name: str) -> TableSpec:
     spec.name = name
     spec.irrep_labels = tuple(labels)
     spec.characters = spec.characters[order]
+    spec.classes = tuple(c._replace(label=linear_class_label(c)) for c in spec.classes)
     spec.order = None
     spec.is_linear = True
     return spec

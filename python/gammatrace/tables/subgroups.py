@@ -9,7 +9,7 @@ rules of DEVELOPERS.md leave a choice that atom counts would settle (which C2 is
 σv or σd in C2nv, C2' or C2'' in D2nh, …), every valid frame is found.
 
 ``correlate(G, H)`` restricts G's characters to each embedding of H, assigns the
-operations to H's classes with ``H.assign_classes`` in H's own standard frame and reduces
+operations to H's classes with ``H.locate_classes`` in H's own standard frame and reduces
 them; frames of one subgroup that give the same correlation are merged (the description
 says so), frames that change it are listed separately. Embeddings come first when they
 keep G's z axis (and then G's x axis), as printed correlation tables do.
@@ -30,7 +30,8 @@ from typing import NamedTuple
 import numpy as np
 
 from ..errors import TableError
-from ._ops import describe, fraction_of_turn, lookup, nearest
+from ._ops import contains_all, describe, fraction_of_turn, multiplication_table
+from .linear import linear_class_label
 from .names import parse_group_name
 
 __all__ = ["MAX_ORDER", "SubgroupEmbedding", "correlate", "identify_group", "subgroups"]
@@ -84,15 +85,14 @@ def _closure(gens, table: np.ndarray) -> np.ndarray:
     return np.flatnonzero(mask)
 
 
-def _enumerate(ops: np.ndarray):
+def _enumerate(name: str):
     """Representatives of the conjugacy classes of subgroups, as sorted index arrays.
 
     Every subgroup is a join of cyclic subgroups, so joins are taken breadth-first from
     the cyclic ones until no new subgroup appears.
     """
-    h = len(ops)
-    table = lookup(ops, np.einsum("aij,bjk->abik", ops, ops).reshape(-1, 3, 3)).reshape(h, h)
-    inv = lookup(ops, np.transpose(ops, (0, 2, 1)))
+    table, inv = multiplication_table(name)
+    h = len(table)
     conj = table[table, inv[:, None]]  # conj[g, x] = index of g x g⁻¹
     cyclic = {}
     for g in range(h):
@@ -249,8 +249,7 @@ def _frames(name: str, ops: np.ndarray, sub_table):
                 for x in (x0, -x0):
                     f = np.array([x, np.cross(z, x), z])
                     moved = f @ ops @ f.T
-                    _, dist = nearest(target, moved)
-                    if dist.max() < _TOL:
+                    if contains_all(target, moved):
                         frames.append(f)
     unique = []
     for f in frames:
@@ -290,7 +289,7 @@ def _parent_subgroups(name: str):
             f"the limit is order {MAX_ORDER}"
         )
     out = []
-    for idx in _enumerate(finite.operations):
+    for idx in _enumerate(finite.name):
         ops = finite.operations[idx]
         sub_name = identify_group(ops)
         frames = _frames(sub_name, ops, get_table(sub_name))
@@ -300,21 +299,28 @@ def _parent_subgroups(name: str):
     return out
 
 
-def _class_map(parent_tab, sub_tab, idx, frame) -> str:
+def _parent_label(parent_tab, parent_name: str, j: int) -> str:
+    """A parent class's label; for a linear parent, as its own table prints it."""
+    info = parent_tab.classes[j]
+    return linear_class_label(info) if parent_name in ("C∞v", "D∞h") else info.label
+
+
+def _class_map(parent_tab, sub_tab, idx, frame, parent_name: str) -> str:
     """'2C3 ⊂ 8C3; 3σv ⊂ 6σd': which parent classes each subgroup class comes from."""
     moved = frame @ parent_tab.operations[idx] @ frame.T
-    sub_cls = sub_tab.assign_classes(moved)
+    sub_cls = sub_tab.locate_classes(moved)
     par_cls = parent_tab.operation_class[idx]
     parts = []
     for c, info in enumerate(sub_tab.classes):
         if info.label == "E":
             continue
         src = sorted(set(par_cls[sub_cls == c].tolist()))
-        parts.append(f"{info.label} from {', '.join(parent_tab.classes[j].label for j in src)}")
+        names = dict.fromkeys(_parent_label(parent_tab, parent_name, j) for j in src)
+        parts.append(f"{info.label} from {', '.join(names)}")
     return "; ".join(parts)
 
 
-def _z_words(parent_tab, frame) -> str:
+def _z_words(parent_tab, frame, parent_name: str) -> str:
     z = frame[2]
     if abs(abs(z[2]) - 1.0) < 1e-6:
         return "z along the parent's z axis"
@@ -322,19 +328,17 @@ def _z_words(parent_tab, frame) -> str:
     along = (np.abs(axis @ z) > 1 - 1e-6) & (angle > 1e-6) & proper
     if along.any():
         best = int(np.flatnonzero(along)[np.argmin(angle[along])])
-        label = parent_tab.classes[parent_tab.operation_class[best]].label.lstrip("0123456789")
+        label = _parent_label(parent_tab, parent_name, parent_tab.operation_class[best])
+        label = label.lstrip("0123456789")
         return f"z along a {label} axis of the parent"
     return "z along a mirror normal of the parent"
 
 
 def _describe(parent_name, parent_tab, sub_name, sub_tab, idx, frame, merged: bool) -> str:
-    text = f"{sub_name} with {_z_words(parent_tab, frame)}"
-    classes = _class_map(parent_tab, sub_tab, idx, frame)
+    text = f"{sub_name} with {_z_words(parent_tab, frame, parent_name)}"
+    classes = _class_map(parent_tab, sub_tab, idx, frame, parent_name)
     if classes:
-        source = parent_tab.name
-        if source != parent_name:
-            source += f" (standing for {parent_name})"
-        text += f"; classes from {source}: {classes}"
+        text += f"; classes from {parent_name}: {classes}"
     if merged:
         text += " (other choices of the subgroup's axes give the same correlation)"
     return text
@@ -387,7 +391,7 @@ def subgroups(group_name: str) -> list[SubgroupEmbedding]:
 def _restrict(parent_tab, sub_tab, idx, frame) -> np.ndarray:
     """Characters of every parent irrep on the subgroup's classes, (n_irreps, n_sub_classes)."""
     moved = frame @ parent_tab.operations[idx] @ frame.T
-    sub_cls = sub_tab.assign_classes(moved)
+    sub_cls = sub_tab.locate_classes(moved)
     chars = parent_tab.character_matrix[:, parent_tab.operation_class[idx]]
     out = np.zeros((chars.shape[0], len(sub_tab.classes)))
     for c in range(len(sub_tab.classes)):

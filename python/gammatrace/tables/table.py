@@ -16,8 +16,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import ReductionError, SymmetryError
-from ._ops import lookup, nearest
+from ..errors import ReductionError
+from ._ops import LINEAR_SUBGROUP_N, locate
 from ._types import ClassInfo, Irrep, TableSpec
 from .functions import match_functions
 
@@ -84,8 +84,7 @@ class CharacterTable:
         self._labels = [ir.label for ir in self.irreps]
         reps = np.unique(self.operation_class, return_index=True)[1]
         self._rep_ops = self.operations[reps]
-        squares = self._rep_ops @ self._rep_ops
-        self._square_class = self.operation_class[lookup(self.operations, squares)]
+        self._square_class = self.operation_class[np.asarray(spec.square)[reps]]
 
     # -- basic properties ------------------------------------------------------------
 
@@ -141,16 +140,17 @@ class CharacterTable:
 
     # -- classes of detected operations ----------------------------------------------
 
-    def assign_classes(self, ops_std, tol: float = 0.1) -> np.ndarray:
-        """Class index of each operation, by nearest canonical matrix.
+    def locate_classes(self, ops_std) -> np.ndarray:
+        """Class index of each of the given canonical operations (exact membership).
+
+        For operations that are canonical operations of this group written in its standard
+        frame (e.g. a subgroup's operations moved into this group's frame): the core finds
+        each among :attr:`operations`. Detected operations never need this: detection
+        reports them in canonical order (operation k is canonical operation k).
 
         Parameters
         ----------
         ops_std : array_like, shape (k, 3, 3)
-            Operations already rotated into the standard frame.
-        tol : float
-            Largest Frobenius distance accepted between an operation and its nearest
-            canonical operation.
 
         Returns
         -------
@@ -159,26 +159,15 @@ class CharacterTable:
         Raises
         ------
         ValueError
-            If ``ops_std`` is not of shape (k, 3, 3).
-        SymmetryError
-            If an operation is farther than ``tol`` from every canonical operation.
+            If ``ops_std`` is not of shape (k, 3, 3), or an operation is not one of this
+            group's (every entry within 1e-6).
         """
         ops = np.ascontiguousarray(ops_std, dtype=np.float64)
         if ops.ndim != 3 or ops.shape[1:] != (3, 3):
             raise ValueError(f"ops_std must have shape (k, 3, 3), got {ops.shape}")
         if len(ops) == 0:
             return np.zeros(0, dtype=np.int64)
-        index, distance = nearest(self.operations, ops)
-        bad = np.flatnonzero(distance > tol)
-        if len(bad):
-            j = int(bad[np.argmax(distance[bad])])
-            label = self.classes[self.operation_class[index[j]]].label
-            raise SymmetryError(
-                f"operation {j} is {distance[j]:.3g} (Frobenius norm) from every canonical "
-                f"operation of {self.name} (nearest: one of {label}; limit {tol}); "
-                f"{len(bad)} of {len(ops)} operations are that far"
-            )
-        return self.operation_class[index]
+        return self.operation_class[locate(self.operations, ops)]
 
     # -- reduction ---------------------------------------------------------------------
 
@@ -346,6 +335,8 @@ class CharacterTable:
         lines.insert(1, "-" * len(lines[0]))
         if self.is_linear:
             lines.append(
-                f"(classes of the finite subgroup with {self._h} operations; |m| <= 6 resolved)"
+                f"(C∞ and S∞ sampled at multiples of 360°/{LINEAR_SUBGROUP_N}; class sizes "
+                f"and h = {self._h} of that sampling in the reduction formula; "
+                "|m| ≤ 6 resolved)"
             )
         return "\n".join(lines)
