@@ -1,5 +1,5 @@
 """House rules that a test can hold (shared/STYLE.md §2, §5): the Rust core is plain Rust
-outside rust/lib.rs, and the typed stub lists exactly what the compiled core exports."""
+outside rust/python/, and the typed stub lists exactly what the compiled core exports."""
 
 from __future__ import annotations
 
@@ -13,17 +13,24 @@ from gammatrace import _core
 ROOT = pathlib.Path(__file__).resolve().parent.parent
 
 
-def test_no_python_types_outside_lib_rs():
-    offenders = []
+PYTHON_AWARE = re.compile(
+    r"\b(pyo3|numpy)::|use (pyo3|numpy)\b|#\[py(function|class|module|methods)\b"
+)
+
+
+def test_only_rust_python_folder_uses_pyo3_or_numpy():
+    glue = ROOT / "rust" / "python"
     files = sorted((ROOT / "rust").rglob("*.rs"))
-    assert len(files) > 5  # the core's modules are there to be checked
-    for path in files:
-        if path.name == "lib.rs" and path.parent.name == "rust":
-            continue
-        text = path.read_text(encoding="utf-8")
-        if re.search(r"\b(pyo3|numpy)::", text) or re.search(r"use (pyo3|numpy)\b", text):
-            offenders.append(str(path.relative_to(ROOT)))
+    core = [p for p in files if glue not in p.parents]
+    assert len(core) > 5  # the core's modules are there to be checked
+    offenders = [
+        str(p.relative_to(ROOT)) for p in core if PYTHON_AWARE.search(p.read_text(encoding="utf-8"))
+    ]
     assert offenders == []
+    # The glue is where this test expects it: every file of rust/python/ is Python-aware.
+    glue_files = sorted(glue.glob("*.rs"))
+    assert (glue / "mod.rs") in glue_files
+    assert all(PYTHON_AWARE.search(p.read_text(encoding="utf-8")) for p in glue_files)
 
 
 def test_stub_lists_exactly_the_core_exports():

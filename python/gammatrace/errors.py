@@ -3,7 +3,7 @@
 Every error the project raises derives from :class:`GammatraceError`. Classes that mean
 "the input is bad" also derive from :class:`ValueError`, so ordinary ``except ValueError``
 handlers keep working. The Rust core's ``Error`` variants map onto exactly one class each
-(see ``rust/lib.rs``).
+(see ``rust/python/mod.rs``).
 """
 
 from __future__ import annotations

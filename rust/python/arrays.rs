@@ -1,0 +1,107 @@
+//! Array conversion: borrowed numpy views as Rust slices (shapes checked) and owned results
+//! moved into numpy.
+
+use numpy::ndarray::{Array1, Array2, Array3};
+use numpy::{
+    IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2,
+    PyReadonlyArray3, PyUntypedArrayMethods,
+};
+use pyo3::exceptions::PyValueError;
+use pyo3::prelude::*;
+
+pub(super) fn rows3<'a>(data: &'a [f64], name: &str) -> PyResult<&'a [[f64; 3]]> {
+    let (chunks, rest) = data.as_chunks::<3>();
+    if !rest.is_empty() {
+        return Err(PyValueError::new_err(format!(
+            "{name}: expected shape (n, 3), got {} values",
+            data.len()
+        )));
+    }
+    Ok(chunks)
+}
+
+pub(super) fn mats3<'a>(data: &'a [f64], name: &str) -> PyResult<&'a [[[f64; 3]; 3]]> {
+    let rows = rows3(data, name)?;
+    let (mats, rest) = rows.as_chunks::<3>();
+    if !rest.is_empty() {
+        return Err(PyValueError::new_err(format!(
+            "{name}: expected shape (k, 3, 3)"
+        )));
+    }
+    Ok(mats)
+}
+
+pub(super) fn slice2<'a>(a: &'a PyReadonlyArray2<'_, f64>, name: &str) -> PyResult<&'a [f64]> {
+    if a.shape()[1] != 3 {
+        return Err(PyValueError::new_err(format!(
+            "{name}: expected shape (n, 3), got {:?}",
+            a.shape()
+        )));
+    }
+    a.as_slice()
+        .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))
+}
+
+pub(super) fn slice3<'a>(a: &'a PyReadonlyArray3<'_, f64>, name: &str) -> PyResult<&'a [f64]> {
+    let s = a.shape();
+    if s[1] != 3 || s[2] != 3 {
+        return Err(PyValueError::new_err(format!(
+            "{name}: expected shape (k, 3, 3), got {s:?}"
+        )));
+    }
+    a.as_slice()
+        .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))
+}
+
+/// An `(n, 3)` float64 array as rows of 3 (borrowed, no copy).
+pub(super) fn coords<'a>(a: &'a PyReadonlyArray2<'_, f64>, name: &str) -> PyResult<&'a [[f64; 3]]> {
+    rows3(slice2(a, name)?, name)
+}
+
+/// A `(k, 3, 3)` float64 array as 3×3 matrices (borrowed, no copy).
+pub(super) fn matrices<'a>(
+    a: &'a PyReadonlyArray3<'_, f64>,
+    name: &str,
+) -> PyResult<&'a [[[f64; 3]; 3]]> {
+    mats3(slice3(a, name)?, name)
+}
+
+/// Rows of atom indices (permutations, bond pairs) as an int64 `(rows, width)` array.
+pub(super) fn index_rows<'py, R: AsRef<[u32]>>(
+    py: Python<'py>,
+    rows: &[R],
+    width: usize,
+) -> PyResult<Bound<'py, PyArray2<i64>>> {
+    let flat: Vec<i64> = rows
+        .iter()
+        .flat_map(|r| r.as_ref().iter().map(|&j| j as i64))
+        .collect();
+    let arr = Array2::from_shape_vec((rows.len(), width), flat)
+        .map_err(|e| PyValueError::new_err(e.to_string()))?;
+    Ok(arr.into_pyarray(py))
+}
+
+pub(super) fn slice1<'a, T: numpy::Element>(
+    a: &'a PyReadonlyArray1<'_, T>,
+    name: &str,
+) -> PyResult<&'a [T]> {
+    a.as_slice()
+        .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))
+}
+
+pub(super) fn flat_mats(mats: &[[[f64; 3]; 3]]) -> Vec<f64> {
+    mats.iter()
+        .flat_map(|m| m.iter().flatten().copied())
+        .collect()
+}
+
+pub(super) fn index_array(py: Python<'_>, v: &[usize]) -> Py<PyArray1<i64>> {
+    let a: Vec<i64> = v.iter().map(|&i| i as i64).collect();
+    Array1::from(a).into_pyarray(py).unbind()
+}
+
+pub(super) fn ops_array(py: Python<'_>, mats: &[[[f64; 3]; 3]]) -> PyResult<Py<PyArray3<f64>>> {
+    let arr = Array3::from_shape_vec((mats.len(), 3, 3), flat_mats(mats))
+        .map_err(|e| PyValueError::new_err(e.to_string()))?;
+    Ok(arr.into_pyarray(py).unbind())
+}

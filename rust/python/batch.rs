@@ -1,0 +1,73 @@
+//! Many structures at once (rust/batch.rs): detection and counts in parallel.
+
+use super::arrays::{coords, slice1};
+use super::{error_pair, CoreError};
+use crate::{batch, detect};
+use numpy::ndarray::{Array1, Array3};
+use numpy::{IntoPyArray, PyReadonlyArray1, PyReadonlyArray2};
+use pyo3::exceptions::PyValueError;
+use pyo3::prelude::*;
+use pyo3::types::{PyDict, PyList};
+
+/// Detect many structures at once (ragged: concatenated positions + offsets), in parallel.
+#[pyfunction]
+#[pyo3(signature = (positions, numbers, offsets, tol, linear_n, n_threads))]
+pub(super) fn find_point_groups_batch<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    numbers: PyReadonlyArray1<'py, i64>,
+    offsets: PyReadonlyArray1<'py, i64>,
+    tol: f64,
+    linear_n: usize,
+    n_threads: usize,
+) -> PyResult<Bound<'py, PyDict>> {
+    let pos = coords(&positions, "positions")?;
+    let num = slice1(&numbers, "numbers")?;
+    let off_raw = slice1(&offsets, "offsets")?;
+    let mut off = Vec::with_capacity(off_raw.len());
+    for &o in off_raw {
+        if o < 0 {
+            return Err(PyValueError::new_err(format!(
+                "offsets: negative entry {o}"
+            )));
+        }
+        off.push(o as usize);
+    }
+    let opts = detect::DetectOptions {
+        tol,
+        linear_n,
+        ..Default::default()
+    };
+    let res = py
+        .detach(|| batch::summarize_batch(pos, num, &off, &opts, n_threads))
+        .map_err(CoreError)?;
+    let out = PyDict::new(py);
+    out.set_item("point_group", PyList::new(py, &res.point_group)?)?;
+    out.set_item("order", Array1::from(res.order).into_pyarray(py))?;
+    out.set_item(
+        "max_deviation",
+        Array1::from(res.max_deviation).into_pyarray(py),
+    )?;
+    out.set_item("n_proper", Array1::from(res.n_proper).into_pyarray(py))?;
+    let n_struct = res.frames.len();
+    let flat: Vec<f64> = res.frames.iter().flatten().flatten().copied().collect();
+    let frames = Array3::from_shape_vec((n_struct, 3, 3), flat)
+        .map_err(|e| PyValueError::new_err(e.to_string()))?;
+    out.set_item("frame", frames.into_pyarray(py))?;
+    let op_flat: Vec<f64> = res.operations.iter().flatten().flatten().copied().collect();
+    let ops = Array3::from_shape_vec((res.operations.len(), 3, 3), op_flat)
+        .map_err(|e| PyValueError::new_err(e.to_string()))?;
+    out.set_item("operations", ops.into_pyarray(py))?;
+    let op_off: Vec<i64> = res.op_offsets.iter().map(|&o| o as i64).collect();
+    out.set_item("op_offsets", Array1::from(op_off).into_pyarray(py))?;
+    out.set_item("proper", Array1::from(res.proper).into_pyarray(py))?;
+    out.set_item("angle", Array1::from(res.angle).into_pyarray(py))?;
+    out.set_item("unshifted", Array1::from(res.unshifted).into_pyarray(py))?;
+    let errors: Vec<Option<(&'static str, String)>> = res
+        .errors
+        .iter()
+        .map(|e| e.as_ref().map(error_pair))
+        .collect();
+    out.set_item("errors", PyList::new(py, &errors)?)?;
+    Ok(out)
+}

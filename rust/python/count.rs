@@ -1,0 +1,191 @@
+//! Characters by counting (rust/count/): unshifted atoms, shells, π orbitals, bonds, vector
+//! sets, and orbits.
+
+use super::arrays::{coords, index_rows, matrices, slice1};
+use super::{guarded, CoreError};
+use crate::count;
+use numpy::{
+    IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
+    PyUntypedArrayMethods,
+};
+use pyo3::exceptions::PyValueError;
+use pyo3::prelude::*;
+
+/// Unshifted atoms per operation.
+#[pyfunction]
+pub(super) fn count_unshifted<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    center: [f64; 3],
+    operations: PyReadonlyArray3<'py, f64>,
+    tol: f64,
+) -> PyResult<Bound<'py, PyArray1<u64>>> {
+    let pos = coords(&positions, "positions")?;
+    let ops = matrices(&operations, "operations")?;
+    let out = py.detach(|| count::count_unshifted(pos, center, ops, tol));
+    Ok(out.into_pyarray(py))
+}
+
+/// Characters of a basis of angular-momentum shells on the atoms, per operation.
+#[pyfunction]
+#[allow(clippy::too_many_arguments)]
+pub(super) fn shell_characters<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    center: [f64; 3],
+    operations: PyReadonlyArray3<'py, f64>,
+    proper: PyReadonlyArray1<'py, bool>,
+    angle: PyReadonlyArray1<'py, f64>,
+    shell_counts: PyReadonlyArray2<'py, u32>,
+    tol: f64,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let pos = coords(&positions, "positions")?;
+    let ops = matrices(&operations, "operations")?;
+    let prop = slice1(&proper, "proper")?;
+    let ang = slice1(&angle, "angle")?;
+    let n_l = shell_counts.shape()[1];
+    let shells = shell_counts
+        .as_slice()
+        .map_err(|_| PyValueError::new_err("shell_counts: array must be C-contiguous"))?;
+    let out = py
+        .detach(|| {
+            guarded(|| count::shell_characters(pos, center, ops, prop, ang, shells, n_l, tol))
+        })
+        .map_err(CoreError)?;
+    Ok(out.into_pyarray(py))
+}
+
+/// Contribution of one shell of angular momentum l per unshifted atom, per operation.
+#[pyfunction]
+pub(super) fn orbital_contributions<'py>(
+    py: Python<'py>,
+    proper: PyReadonlyArray1<'py, bool>,
+    angle: PyReadonlyArray1<'py, f64>,
+    l: usize,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let prop = slice1(&proper, "proper")?;
+    let ang = slice1(&angle, "angle")?;
+    let out = count::orbital_contributions(prop, ang, l).map_err(CoreError)?;
+    Ok(out.into_pyarray(py))
+}
+
+/// Characters of one p orbital per atom perpendicular to the molecular plane.
+#[pyfunction]
+pub(super) fn pi_characters<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    center: [f64; 3],
+    operations: PyReadonlyArray3<'py, f64>,
+    normal: [f64; 3],
+    tol: f64,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let pos = coords(&positions, "positions")?;
+    let ops = matrices(&operations, "operations")?;
+    let out = py.detach(|| count::pi_characters(pos, center, ops, normal, tol));
+    Ok(out.into_pyarray(py))
+}
+
+/// Bonds from covalent radii: (n_bonds, 2) int64 atom pairs.
+#[pyfunction]
+pub(super) fn find_bonds<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    radii: PyReadonlyArray1<'py, f64>,
+    scale: f64,
+) -> PyResult<Bound<'py, PyArray2<i64>>> {
+    let pos = coords(&positions, "positions")?;
+    let rad = slice1(&radii, "radii")?;
+    let bonds = py
+        .detach(|| count::find_bonds(pos, rad, scale))
+        .map_err(CoreError)?;
+    index_rows(py, &bonds, 2)
+}
+
+/// Characters of bond stretches (oriented=False) or vectors along bonds (oriented=True).
+#[pyfunction]
+pub(super) fn bond_characters<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    center: [f64; 3],
+    operations: PyReadonlyArray3<'py, f64>,
+    bonds: PyReadonlyArray2<'py, i64>,
+    oriented: bool,
+    tol: f64,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let pos = coords(&positions, "positions")?;
+    let ops = matrices(&operations, "operations")?;
+    if bonds.ndim() != 2 || (bonds.shape()[1] != 2 && bonds.shape()[0] != 0) {
+        return Err(PyValueError::new_err(format!(
+            "bonds: expected shape (n_bonds, 2), got {:?}",
+            bonds.shape()
+        )));
+    }
+    let raw = bonds
+        .as_slice()
+        .map_err(|_| PyValueError::new_err("bonds: array must be C-contiguous"))?;
+    let mut pairs = Vec::with_capacity(raw.len() / 2);
+    for (k, p) in raw.chunks_exact(2).enumerate() {
+        let ok = |v: i64| v >= 0 && v <= u32::MAX as i64;
+        if !ok(p[0]) || !ok(p[1]) {
+            return Err(PyValueError::new_err(format!(
+                "bonds: bond {k} names atom indices ({}, {}), which do not exist",
+                p[0], p[1]
+            )));
+        }
+        pairs.push([p[0] as u32, p[1] as u32]);
+    }
+    let out = py
+        .detach(|| guarded(|| count::bond_characters(pos, center, ops, &pairs, oriented, tol)))
+        .map_err(CoreError)?;
+    Ok(out.into_pyarray(py))
+}
+
+/// Characters of a user's own set of 3-vectors at every atom.
+#[pyfunction]
+pub(super) fn vector_set_characters<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    center: [f64; 3],
+    operations: PyReadonlyArray3<'py, f64>,
+    vectors: PyReadonlyArray2<'py, f64>,
+    per_atom: usize,
+    tol: f64,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let pos = coords(&positions, "positions")?;
+    let ops = matrices(&operations, "operations")?;
+    let vec = coords(&vectors, "vectors")?;
+    let out = py
+        .detach(|| guarded(|| count::vector_set_characters(pos, center, ops, vec, per_atom, tol)))
+        .map_err(CoreError)?;
+    Ok(out.into_pyarray(py))
+}
+
+/// Orbit index of each atom under the group generated by the permutations.
+#[pyfunction]
+pub(super) fn orbits<'py>(
+    py: Python<'py>,
+    n_atoms: usize,
+    permutations: PyReadonlyArray2<'py, i64>,
+) -> PyResult<Bound<'py, PyArray1<u32>>> {
+    let shape = permutations.shape().to_vec();
+    let raw = permutations
+        .as_slice()
+        .map_err(|_| PyValueError::new_err("permutations: array must be C-contiguous"))?;
+    let mut perms = Vec::with_capacity(shape[0]);
+    for row in raw.chunks(shape[1].max(1)).take(shape[0]) {
+        let mut p = Vec::with_capacity(row.len());
+        for &v in row {
+            if v < 0 || v > u32::MAX as i64 {
+                return Err(PyValueError::new_err(format!(
+                    "permutations: entry {v} is not an atom index"
+                )));
+            }
+            p.push(v as u32);
+        }
+        perms.push(p);
+    }
+    let out = py
+        .detach(|| count::orbits(n_atoms, &perms))
+        .map_err(CoreError)?;
+    Ok(out.into_pyarray(py))
+}
