@@ -15,6 +15,7 @@ import traceback
 from collections.abc import Sequence
 from typing import Any
 
+from .bases import parse_basis
 from .errors import GammatraceError
 
 __all__ = ["main"]
@@ -38,7 +39,6 @@ def _fail(exc: BaseException, show_traceback: bool, where: str = "") -> None:
 def _cmd_analyze(args: argparse.Namespace) -> int:
     from .analysis import analyze_many
     from .io import FrameError
-    from .representations import parse_basis
 
     bases = ["atoms", "cartesian"] + [
         b for b in (args.basis or []) if b not in ("atoms", "cartesian")

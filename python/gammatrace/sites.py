@@ -26,8 +26,9 @@ from typing import Any
 import numpy as np
 
 from .analysis import ATOM_GROUP, Analysis
+from .bases import parse_basis
 from .errors import BasisError, SymmetryError
-from .representations import json_number, parse_basis
+from .representations import json_number
 from .spectroscopy import format_irreps
 from .tables import get_table
 from .tables._ops import lookup
