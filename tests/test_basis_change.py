@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 import scipy.sparse as sp
 from _symmetry_helpers import PHI, TABLES, build, random_rotation, symmetry_data
-from gammatrace import _sph_harm
+from gammatrace.bases import harmonics
 from gammatrace.basis_change import (
     Basis,
     SymmetryData,
@@ -303,11 +303,11 @@ def test_real_harmonic_matrices_are_orthogonal_with_improper_parity():
     r = np.linalg.qr(rng.standard_normal((3, 3)))[0]
     r *= np.sign(np.linalg.det(r))
     for l in range(4):
-        d = _sph_harm.rotation_matrices(l, np.stack([r, -r]))
+        d = harmonics.rotation_matrices(l, np.stack([r, -r]))
         assert np.allclose(d[0] @ d[0].T, np.eye(2 * l + 1), atol=1e-12)
         assert np.allclose(d[1], (-1) ** l * d[0], atol=1e-12)
     # p functions in order (y, z, x) rotate like a displacement vector
-    d1 = _sph_harm.rotation_matrices(1, r[None])[0]
+    d1 = harmonics.rotation_matrices(1, r[None])[0]
     perm = [1, 2, 0]
     assert np.allclose(d1, r[np.ix_(perm, perm)], atol=1e-12)
 
@@ -316,16 +316,29 @@ def test_unknown_basis_and_bad_shells_raise_basis_error():
     sym = make_sym("C3v")
     with pytest.raises(BasisError, match="basis"):
         symmetry_adapted_basis(sym, "spherical")
-    with pytest.raises(BasisError, match="g"):
-        Basis.orbitals({"Fe": "spdg"})
-    with pytest.raises(BasisError, match=r"outside 0\.\.3"):
-        Basis.orbitals({26: [4]})
+    with pytest.raises(BasisError, match="q"):
+        Basis.orbitals({"Fe": "spdq"})
+    with pytest.raises(BasisError, match=r"outside 0\.\.6"):
+        Basis.orbitals({26: [7]})
     with pytest.raises(BasisError, match="Xx"):
         Basis.orbitals({"Xx": "s"})
-    with pytest.raises(BasisError, match="C"):
-        symmetry_adapted_basis(sym, Basis.orbitals({7: "sp", 1: "s"}))  # no shells for carbon
     with pytest.raises(BasisError, match=r"\(n_bonds, 2\)"):
         Basis.bonds(np.array([0, 1, 2]))
+    # g shells are counted (Analysis.representation) but have no matrices: said when used
+    g_shells = Basis.orbitals({"Fe": "spdg"})
+    with pytest.raises(BasisError, match=r"l = 4.*up to l = 3"):
+        symmetry_adapted_basis(sym, g_shells)
+
+
+def test_elements_not_named_carry_no_orbitals():
+    # the one Basis reads an orbital spec as the counting code always did: elements not named
+    # (and no "*") carry nothing, so C3v's carbon atoms add no functions here
+    sym = make_sym("C3v")
+    n_n = int(np.sum(sym.numbers == 7))
+    n_h = int(np.sum(sym.numbers == 1))
+    basis = Basis.orbitals({7: "sp", 1: "s"})
+    assert basis_dimension(sym, basis) == 4 * n_n + n_h
+    check_block_structure(sym, basis)
 
 
 def test_bonds_that_are_not_closed_raise_symmetry_error():

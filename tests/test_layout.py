@@ -6,6 +6,7 @@ from __future__ import annotations
 import ast
 import pathlib
 import re
+import sys
 
 import gammatrace
 from gammatrace import _core
@@ -50,3 +51,105 @@ def test_public_api_is_importable_and_documented():
         obj = getattr(gammatrace, name)
         if callable(obj):
             assert obj.__doc__, name
+
+
+def _module_name(path: pathlib.Path, package_root: pathlib.Path) -> str:
+    rel = path.relative_to(package_root.parent).with_suffix("")
+    parts = list(rel.parts)
+    if parts[-1] == "__init__":
+        parts = parts[:-1]
+    return ".".join(parts)
+
+
+def _import_graph() -> dict[str, set[str]]:
+    """Edges module -> gammatrace module it imports, from every import statement anywhere in
+    the file (function-local imports count; `if TYPE_CHECKING:` blocks do not run)."""
+    root = ROOT / "python" / "gammatrace"
+    files = {_module_name(p, root): p for p in root.rglob("*.py")}
+    graph: dict[str, set[str]] = {m: set() for m in files}
+    for mod, path in files.items():
+        is_pkg = path.name == "__init__.py"
+        package = mod if is_pkg else mod.rpartition(".")[0]
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        # annotations only: `if TYPE_CHECKING:` blocks never run
+        typing_only = {
+            id(n)
+            for block in ast.walk(tree)
+            if isinstance(block, ast.If) and "TYPE_CHECKING" in ast.unparse(block.test)
+            for stmt in block.body
+            for n in ast.walk(stmt)
+        }
+        for node in ast.walk(tree):
+            if id(node) in typing_only:
+                continue
+            targets = []
+            if isinstance(node, ast.Import):
+                targets = [a.name for a in node.names]
+            elif isinstance(node, ast.ImportFrom):
+                if node.level:
+                    base = package.split(".")
+                    base = base[: len(base) - (node.level - 1)]
+                    stem = ".".join(base + ([node.module] if node.module else []))
+                else:
+                    stem = node.module or ""
+                # `from X import name`: the submodule X.name if there is one, else X itself
+                targets = [
+                    f"{stem}.{a.name}" if f"{stem}.{a.name}" in files else stem for a in node.names
+                ]
+            for t in targets:
+                # the deepest existing module named by the import
+                while t and t not in files:
+                    t = t.rpartition(".")[0]
+                # a package is always imported before its modules: edges to an enclosing
+                # package say nothing about cycles
+                if t and t != mod and not mod.startswith(t + "."):
+                    graph[mod].add(t)
+    return graph
+
+
+def test_no_import_cycle_inside_the_package():
+    graph = _import_graph()
+    assert len(graph) > 20 and any(graph.values())  # the package is there to be checked
+    # Tarjan's strongly connected components; any component of two or more is a cycle
+    index, low, stack, on_stack, cycles = {}, {}, [], set(), []
+    counter = [0]
+
+    def visit(v):
+        index[v] = low[v] = counter[0]
+        counter[0] += 1
+        stack.append(v)
+        on_stack.add(v)
+        for w in sorted(graph[v]):
+            if w not in index:
+                visit(w)
+                low[v] = min(low[v], low[w])
+            elif w in on_stack:
+                low[v] = min(low[v], index[w])
+        if low[v] == index[v]:
+            comp = []
+            while True:
+                w = stack.pop()
+                on_stack.discard(w)
+                comp.append(w)
+                if w == v:
+                    break
+            if len(comp) > 1:
+                cycles.append(sorted(comp))
+
+    for v in sorted(graph):
+        if v not in index:
+            visit(v)
+    assert cycles == []
+
+
+def test_cycle_finder_sees_function_local_imports(tmp_path, monkeypatch):
+    # the check above must be able to fail: a package whose two modules import each other,
+    # one of them inside a function
+    pkg = tmp_path / "python" / "gammatrace"
+    pkg.mkdir(parents=True)
+    (pkg / "__init__.py").write_text("")
+    (pkg / "a.py").write_text("from . import b\n")
+    (pkg / "b.py").write_text("def f():\n    from .a import g\n")
+    monkeypatch.setattr(sys.modules[__name__], "ROOT", tmp_path)
+    graph = _import_graph()
+    assert "gammatrace.a" in graph["gammatrace.b"] and "gammatrace.b" in graph["gammatrace.a"]

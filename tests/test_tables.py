@@ -4,7 +4,6 @@ import doctest
 import json
 import math
 
-import gammatrace.tables as tables_pkg
 import numpy as np
 import pytest
 from _symmetry_helpers import member_index
@@ -18,6 +17,7 @@ from gammatrace.tables import (
     parse_group_name,
 )
 from gammatrace.tables import names as names_mod
+from gammatrace.tables import registry as registry_mod
 from gammatrace.tables import table as table_mod
 from gammatrace.tables._ops import describe
 from reference_tables import LINEAR_PUBLISHED, PUBLISHED, parse_rows
@@ -553,7 +553,7 @@ def test_largest_supported_n_builds():
     assert len(t.classes) == names_mod.MAX_N // 2 + 1
 
 
-@pytest.mark.parametrize("module", [tables_pkg, names_mod, table_mod])
+@pytest.mark.parametrize("module", [registry_mod, names_mod, table_mod])
 def test_docstring_examples(module):
     result = doctest.testmod(module, optionflags=doctest.ELLIPSIS)
     assert result.failed == 0 and result.attempted > 0

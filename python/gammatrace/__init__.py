@@ -17,6 +17,7 @@ Everything else, ``gammatrace._core`` included, is private.
 from __future__ import annotations
 
 from .analysis import DEFAULT_TOL, Analysis, Operation, Orbit, analyze, analyze_many
+from .bases import Basis
 from .batch import analyze_batch
 from .errors import (
     BasisError,
@@ -30,7 +31,7 @@ from .errors import (
     ToleranceError,
 )
 from .io import FrameError, Structure, read_structures, read_xyz
-from .representations import Basis, Representation
+from .representations import Representation
 from .spectroscopy import Vibrations
 from .tables import CharacterTable, correlate, get_table, subgroups
 

@@ -36,7 +36,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.spatial import cKDTree
 
-from . import _sph_harm
+from .bases import harmonics
 from .errors import SymmetryError, TableError
 from .tables._ops import locate
 
@@ -181,7 +181,7 @@ def _natural_representations(ops_std: np.ndarray):
     yield "polar vector", ops_std
     yield "axial vector", ops_std * det[:, None, None]
     for l in (2, 3):
-        d = _sph_harm.rotation_matrices(l, ops_std)
+        d = harmonics.rotation_matrices(l, ops_std)
         yield f"l={l}", d
         yield f"l={l} (opposite parity)", d * det[:, None, None]
 

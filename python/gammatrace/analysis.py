@@ -17,9 +17,11 @@ from typing import Any
 import numpy as np
 
 from . import _core
+from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
 from .errors import BasisError, GammatraceError, InputError, SymmetryError
 from .io import FrameError, Structure, as_structure, element_data, read_structures
-from .representations import Basis, Representation, build_representation, parse_basis
+from .representations import Representation, build_representation
+from .stabilisers import atom_images
 from .tables import LINEAR_SUBGROUP_N, ClassInfo, get_table
 
 __all__ = [
@@ -258,8 +260,7 @@ class Analysis:
 
     def bonds(self, scale: float = 1.2) -> np.ndarray:
         """Bonded atom pairs ``(n_bonds, 2)`` from covalent radii: d ≤ scale·(r_i + r_j)."""
-        radii = element_data(self.structure.numbers)[1]
-        return _core.find_bonds(self.structure.positions, radii, float(scale))
+        return find_bonds(self.structure.numbers, self.structure.positions, scale)
 
     # ---------------------------------------------------------------- representations
     def representation(self, basis: Any = "cartesian") -> Representation:
@@ -281,20 +282,30 @@ class Analysis:
             When the characters do not reduce to integer multiplicities.
         """
         b = parse_basis(basis)
-        key = (
-            None
-            if b.kind in ("vectors",) or b.bonds is not None
-            else repr(
-                (b.kind, sorted((str(k), v) for k, v in (b.shells or {}).items()), b.bond_scale)
-            )
-        )
         cache = self.__dict__.setdefault("_rep_cache", {})
-        if key is not None and key in cache:
-            return cache[key]
-        rep = _atom_representation(self, b) if self.table is None else build_representation(self, b)
-        if key is not None:
-            cache[key] = rep
-        return rep
+        if b not in cache:
+            resolved = self.resolve_basis(b)
+            cache[b] = (
+                _atom_representation(self, resolved)
+                if self.table is None
+                else build_representation(self, resolved)
+            )
+        return cache[b]
+
+    def resolve_basis(self, basis: Any = "cartesian") -> ResolvedBasis:
+        """A basis spec resolved on this structure once (cached by the hashable Basis); both
+        :meth:`representation` and :meth:`symmetry_adapted_basis` read the resolved form.
+
+        Raises
+        ------
+        BasisError
+            For an unknown basis or one that does not fit the structure.
+        """
+        b = parse_basis(basis)
+        cache = self.__dict__.setdefault("_resolved_bases", {})
+        if b not in cache:
+            cache[b] = b.resolve(self.structure, center=self.center, tol=self.tol)
+        return cache[b]
 
     def vibrations(self):
         """Γ_vib with IR/Raman activity (see :mod:`gammatrace.spectroscopy`)."""
@@ -334,41 +345,18 @@ class Analysis:
         :func:`gammatrace.basis_change.symmetry_adapted_basis`.
 
         ``basis`` is a spec as for :meth:`representation` (``"cartesian"``, ``"atoms"``,
-        ``"bonds"``, ``"bond_vectors"``, ``"orbitals:Fe=spd,H=s"``, a :class:`Basis`) or a
-        :class:`gammatrace.basis_change.Basis`.
+        ``"bonds"``, ``"bond_vectors"``, ``"orbitals:Fe=spd,H=s"``, a :class:`Basis`).
+
+        Raises
+        ------
+        BasisError
+            For a basis the matrix code does not serve (π, user vectors, l > 3).
         """
-        from .basis_change import symmetry_adapted_basis
+        from .basis_change import symmetry_adapted_basis  # scipy loads on first use only
 
-        return symmetry_adapted_basis(self.symmetry_data(), self._matrix_basis(basis))
-
-    def _matrix_basis(self, basis: Any):
-        """The change-of-basis description of a representation basis spec."""
-        from . import basis_change
-
-        if isinstance(basis, basis_change.Basis):
-            return basis
         b = parse_basis(basis)
-        if b.kind in ("cartesian", "atoms"):
-            return basis_change.Basis(b.kind)
-        if b.kind == "orbitals":
-            # one shell list per element present, as the counting basis reads it: "*" for
-            # elements not named, none for elements not named without "*"
-            from .representations import _shell_counts
-
-            counts = _shell_counts(self, b.shells or {})
-            shells: dict = {}
-            for z, row in zip(self.structure.numbers.tolist(), counts):
-                shells[int(z)] = [l for l, c in enumerate(row) for _ in range(int(c))]
-            return basis_change.Basis.orbitals(shells)
-        if b.kind in ("bonds", "bond_vectors"):
-            pairs = b.bonds if b.bonds is not None else self.bonds(b.bond_scale)
-            if b.kind == "bonds":
-                return basis_change.Basis.bonds(pairs)
-            return basis_change.Basis.bond_vectors(pairs)
-        raise BasisError(
-            f"basis '{b.kind}': no symmetry-adapted basis for it yet (cartesian, atoms, "
-            "orbitals, bonds and bond_vectors have one)"
-        )
+        check_matrix_kind(b)  # before resolving: the unsupported kind is the first thing to say
+        return symmetry_adapted_basis(self.symmetry_data(), self.resolve_basis(b))
 
     def label_modes(self, hessian: Any = None, **kwargs: Any):
         """Label normal modes from a Cartesian Hessian or mode vectors; see
@@ -411,10 +399,9 @@ class Analysis:
         """Schoenflies names of the stabilisers of the given atoms."""
         if self.table is None:
             return [ATOM_GROUP] * len(representatives)
-        from .sites import _images
         from .tables.subgroups import identify_group
 
-        images = _images(
+        images = atom_images(
             self, representatives, self.canonical_index
         )  # (h, k), rows = canonical operations
         ops = self.table.operations
@@ -503,21 +490,20 @@ class Analysis:
 _L_LABELS = "SPDFGHI"
 
 
-def _atom_representation(analysis: Analysis, b: Basis) -> Representation:
+def _atom_representation(analysis: Analysis, resolved: ResolvedBasis) -> Representation:
     """A single atom (K_h): label representations by angular momentum and parity."""
-    from .representations import _shell_counts
 
     def label(l: int) -> str:
         return _L_LABELS[l] + ("g" if l % 2 == 0 else "u")
 
+    b = resolved.basis
     irreps: dict[str, int] = {}
     if b.kind == "atoms":
         irreps = {"Sg": 1}
     elif b.kind == "cartesian":
         irreps = {"Pu": 1}
     elif b.kind == "orbitals":
-        counts = _shell_counts(analysis, b.shells or {})[0]
-        for l, c in enumerate(counts):
+        for l, c in enumerate(resolved.shell_counts[0]):
             if c:
                 irreps[label(l)] = int(c)
     elif b.kind in ("bonds", "bond_vectors"):

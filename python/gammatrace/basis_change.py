@@ -1,15 +1,17 @@
 """Change of basis: sparse representation matrices, projectors and symmetry-adapted bases.
 
 Everything here starts from a :class:`SymmetryData` (structure, operations with their atom
-permutations, character table) and a :class:`Basis` (Cartesian displacements, atom positions,
-atomic orbitals, bond stretches, vectors along bonds).
+permutations, character table) and a basis: the one :class:`~gammatrace.Basis` (also
+importable as ``basis_change.Basis``), a spec string such as ``"orbitals:Fe=spd,H=s"``, or a
+:class:`~gammatrace.bases.ResolvedBasis` already resolved on the same structure. The matrix
+code serves Cartesian displacements, atom positions, atomic orbitals up to l = 3, bond
+stretches and vectors along bonds; any other basis raises ``BasisError`` when used here.
 
 Conventions
 -----------
-* Basis order. Cartesian: atom-major, ``3 * atom + (x, y, z)``, in the input frame. Orbitals:
-  atom-major; within an atom the element's shells in the order given; within a shell the real
-  harmonics m = -l..l of :mod:`gammatrace._sph_harm` (p = y, z, x) with axes of the input
-  frame. Bonds: in the order given; a vector along bond (a, b) points from a to b.
+* Basis order: see :mod:`gammatrace.bases.components` (Cartesian ``3 * atom + (x, y, z)``,
+  orbitals atom-major with real harmonics m = -l..l, p = y, z, x; bonds in the order given, a
+  vector along bond (a, b) pointing from a to b), all in the input frame.
 * Representation matrices act on coefficient vectors: Γ(R) maps the function at site j to
   the function at site π_R(j), so Γ(R S) = Γ(R) Γ(S). Cartesian: Γ(R) = P(R) ⊗ R.
 * The symmetry-adapted basis ``X`` is square and orthogonal with ROWS = symmetry-adapted
@@ -25,25 +27,17 @@ Conventions
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
 
-from ._bases import (
-    Basis,
-    SymmetryData,
-    as_basis,
-    atom_orbits,
-    basis_components,
-    basis_dimension,
-    characters,
-    component_matrix,
-    representation_matrices,
-    representation_matrix,
-)
 from ._group import GroupData, group_data
-from ._salc import reduce_components
-from .errors import InputError
+from .bases import Basis, ResolvedBasis, check_matrix_kind, parse_basis
+from .bases.components import component_matrix, site_components
+from .bases.elements import SYMBOLS
+from .bases.salc import reduce_components
+from .errors import BasisError, InputError, SymmetryError
 
 __all__ = [
     "Basis",
@@ -61,6 +55,241 @@ __all__ = [
     "save_npz",
     "symmetry_adapted_basis",
 ]
+
+
+def _shape_error(name, expected, received):
+    return InputError(f"{name}: expected {expected}, received {received}")
+
+
+@dataclass(frozen=True)
+class SymmetryData:
+    """A structure with its point-group operations, as the analysis hands it over.
+
+    Parameters
+    ----------
+    positions : ndarray, shape (N, 3)
+        Cartesian coordinates in ångström, input frame.
+    numbers : ndarray, shape (N,)
+        Atomic numbers.
+    center : ndarray, shape (3,)
+        The fixed point of all operations.
+    frame : ndarray, shape (3, 3)
+        Rows = standard x, y, z axes in input coordinates.
+    operations : ndarray, shape (h, 3, 3)
+        Operations in the input frame acting on ``positions - center``.
+    permutations : ndarray, shape (h, N)
+        Operation k maps atom i onto atom ``permutations[k, i]``.
+    table : CharacterTable
+        The group's character table (``irreps``, ``character_matrix``, optional ``operations``
+        and ``operation_class`` in the standard frame).
+    op_class : ndarray, shape (h,)
+        Class index (into ``table.classes``) of each operation.
+    canonical_index : ndarray, shape (h,), optional
+        Which of ``table.operations`` each operation is (as detection reports it); by
+        default operation k is canonical operation k.
+
+    Raises
+    ------
+    InputError
+        If an array has the wrong shape or a permutation is not one.
+    SymmetryError
+        If a permutation maps an atom onto an atom of another element.
+    """
+
+    positions: np.ndarray
+    numbers: np.ndarray
+    center: np.ndarray
+    frame: np.ndarray
+    operations: np.ndarray
+    permutations: np.ndarray
+    table: Any
+    op_class: np.ndarray
+    canonical_index: np.ndarray | None = None
+
+    def __post_init__(self):
+        pos = np.ascontiguousarray(self.positions, dtype=np.float64)
+        if pos.ndim != 2 or pos.shape[1] != 3 or pos.shape[0] == 0:
+            raise _shape_error("positions", "shape (n_atoms, 3) with n_atoms >= 1", pos.shape)
+        if not np.all(np.isfinite(pos)):
+            raise InputError("positions: contains NaN or infinite coordinates")
+        n = pos.shape[0]
+        num = np.ascontiguousarray(self.numbers, dtype=np.int64)
+        if num.shape != (n,):
+            raise _shape_error("numbers", f"shape ({n},)", num.shape)
+        center = np.ascontiguousarray(self.center, dtype=np.float64).reshape(-1)
+        if center.shape != (3,):
+            raise _shape_error("center", "shape (3,)", center.shape)
+        frame = np.ascontiguousarray(self.frame, dtype=np.float64)
+        if frame.shape != (3, 3):
+            raise _shape_error("frame", "shape (3, 3)", frame.shape)
+        ops = np.ascontiguousarray(self.operations, dtype=np.float64)
+        if ops.ndim != 3 or ops.shape[1:] != (3, 3) or ops.shape[0] == 0:
+            raise _shape_error("operations", "shape (h, 3, 3)", ops.shape)
+        h = ops.shape[0]
+        perms = np.ascontiguousarray(self.permutations, dtype=np.int64)
+        if perms.shape != (h, n):
+            raise _shape_error("permutations", f"shape ({h}, {n})", perms.shape)
+        if np.any(np.sort(perms, axis=1) != np.arange(n)[None, :]):
+            raise InputError("permutations: every row must be a permutation of range(n_atoms)")
+        if np.any(num[perms] != num[None, :]):
+            k, i = np.argwhere(num[perms] != num[None, :])[0]
+            raise SymmetryError(
+                f"operation {k} maps atom {i} ({SYMBOLS[num[i]] if 0 < num[i] < 119 else num[i]})"
+                f" onto atom {perms[k, i]} of another element"
+            )
+        op_class = np.ascontiguousarray(self.op_class, dtype=np.int64)
+        if op_class.shape != (h,):
+            raise _shape_error("op_class", f"shape ({h},)", op_class.shape)
+        n_classes = len(getattr(self.table, "classes", ()))
+        if n_classes and (op_class.min() < 0 or op_class.max() >= n_classes):
+            raise InputError(
+                f"op_class: expected class indices in 0..{n_classes - 1}, received "
+                f"{op_class.min()}..{op_class.max()}"
+            )
+        for name, value in (
+            ("positions", pos),
+            ("numbers", num),
+            ("center", center),
+            ("frame", frame),
+            ("operations", ops),
+            ("permutations", perms),
+            ("op_class", op_class),
+        ):
+            value.setflags(write=False)
+            object.__setattr__(self, name, value)
+
+    @property
+    def n_atoms(self) -> int:
+        """Number of atoms N."""
+        return int(self.positions.shape[0])
+
+    @property
+    def order(self) -> int:
+        """Number of operations h."""
+        return int(self.operations.shape[0])
+
+
+def resolve_on(sym: SymmetryData, basis: Any) -> ResolvedBasis:
+    """``basis`` (Basis, spec string or ResolvedBasis) resolved on the structure of ``sym``.
+
+    Raises
+    ------
+    BasisError
+        For a basis the matrix code does not serve (checked before resolving), or a resolved
+        basis of another structure.
+    """
+    check_matrix_kind(parse_basis(basis))
+    if isinstance(basis, ResolvedBasis):
+        if basis.n_atoms != sym.n_atoms or np.any(basis.numbers != sym.numbers):
+            raise BasisError(
+                f"basis '{basis.basis}': resolved on a structure of {basis.n_atoms} atoms, not "
+                f"on this one ({sym.n_atoms} atoms)"
+            )
+        return basis
+    return parse_basis(basis).resolve(sym)
+
+
+def _components(sym: SymmetryData, resolved: ResolvedBasis, g: GroupData) -> list:
+    return site_components(resolved, sym.permutations, g.ops_input)
+
+
+def basis_dimension(sym: SymmetryData, basis) -> int:
+    """Number of functions in ``basis`` for the structure of ``sym``.
+
+    Parameters
+    ----------
+    sym : SymmetryData
+    basis : Basis, str or ResolvedBasis
+
+    Returns
+    -------
+    int
+    """
+    return resolve_on(sym, basis).dimension
+
+
+def _matrix_from_components(comps, k, n):
+    empty = (np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0))
+    parts = [empty] + [component_matrix(c, k) for c in comps]
+    rows = np.concatenate([p[0] for p in parts])
+    cols = np.concatenate([p[1] for p in parts])
+    data = np.concatenate([p[2] for p in parts])
+    return sp.csr_matrix((data, (rows, cols)), shape=(n, n))
+
+
+def _check_op(sym, op_index):
+    k = int(op_index)
+    if not 0 <= k < sym.order:
+        raise InputError(
+            f"op_index: expected an integer in 0..{sym.order - 1}, received {op_index!r}"
+        )
+    return k
+
+
+def representation_matrix(sym: SymmetryData, op_index: int, basis) -> sp.csr_matrix:
+    """Sparse representation matrix of one operation in a basis.
+
+    Parameters
+    ----------
+    sym : SymmetryData
+    op_index : int
+        Index into ``sym.operations``.
+    basis : Basis, str or ResolvedBasis
+
+    Returns
+    -------
+    scipy.sparse.csr_matrix, shape (n, n)
+        Γ(R), with nnz at most n * s (s = 3 for Cartesian, 2l + 1 for a shell, 1 for bonds).
+
+    Raises
+    ------
+    BasisError
+        For an unknown basis or bonds that the operation does not map onto bonds.
+    """
+    resolved = resolve_on(sym, basis)
+    k = _check_op(sym, op_index)
+    g = group_data(sym)
+    return _matrix_from_components(_components(sym, resolved, g), k, resolved.dimension)
+
+
+def representation_matrices(sym: SymmetryData, basis) -> list:
+    """Sparse representation matrices of all operations (list of csr_matrix, in op order)."""
+    resolved = resolve_on(sym, basis)
+    g = group_data(sym)
+    comps = _components(sym, resolved, g)
+    n = resolved.dimension
+    return [_matrix_from_components(comps, k, n) for k in range(sym.order)]
+
+
+def characters(sym: SymmetryData, basis) -> np.ndarray:
+    """Character of every operation in ``basis``, counted over unshifted sites.
+
+    Returns
+    -------
+    ndarray, shape (h,)
+    """
+    resolved = resolve_on(sym, basis)
+    g = group_data(sym)
+    out = np.zeros(sym.order)
+    for comp in _components(sym, resolved, g):
+        fixed = comp.site_perm[:, comp.sites] == comp.sites[None, :]
+        weight = fixed * (1.0 if comp.site_sign is None else comp.site_sign[:, comp.sites])
+        out += weight.sum(axis=1) * np.trace(comp.mats, axis1=1, axis2=2)
+    return out
+
+
+def atom_orbits(sym: SymmetryData) -> list:
+    """Sets of symmetry-equivalent atoms.
+
+    Returns
+    -------
+    list of ndarray
+        One sorted array of atom indices per orbit, ordered by their smallest atom.
+    """
+    rep = sym.permutations.min(axis=0)
+    order = np.argsort(rep, kind="stable")
+    _, starts = np.unique(rep[order], return_index=True)
+    return [np.sort(a) for a in np.split(order, starts[1:])]
 
 
 def _irrep_index(g: GroupData, irrep) -> int:
@@ -84,7 +313,7 @@ def projection_operator(sym: SymmetryData, basis, irrep) -> sp.csr_matrix:
     Parameters
     ----------
     sym : SymmetryData
-    basis : Basis or str
+    basis : Basis, str or ResolvedBasis
     irrep : str or int
         Mulliken label or index in table order.
 
@@ -93,13 +322,13 @@ def projection_operator(sym: SymmetryData, basis, irrep) -> sp.csr_matrix:
     scipy.sparse.csr_matrix, shape (n, n)
         Symmetric, idempotent; nonzeros only within orbits.
     """
-    basis = as_basis(basis)
+    resolved = resolve_on(sym, basis)
     g = group_data(sym)
     i = _irrep_index(g, irrep)
-    comps = basis_components(sym, basis, g)
-    n = basis_dimension(sym, basis)
+    comps = _components(sym, resolved, g)
+    n = resolved.dimension
     coef = g.dims[i] / (g.order * g.nu[i]) * g.chars[i]
-    rows, cols, data = [], [], []
+    rows, cols, data = [np.zeros(0, dtype=np.int64)], [np.zeros(0, dtype=np.int64)], [np.zeros(0)]
     for k in np.nonzero(coef)[0]:  # one sparse pass per operation, summed once at the end
         for comp in comps:
             r, c, v = component_matrix(comp, k)
@@ -177,12 +406,12 @@ class SymmetryAdaptedBasis:
 def symmetry_adapted_basis(sym: SymmetryData, basis="cartesian") -> SymmetryAdaptedBasis:
     """Full reduction of a basis: the orthogonal sparse change of basis and its labels.
 
-    Built per orbit type and assembled sparsely (DESIGN.md §4); see :mod:`gammatrace._salc`.
+    Built per orbit type and assembled sparsely (DESIGN.md §4); see :mod:`gammatrace.bases.salc`.
 
     Parameters
     ----------
     sym : SymmetryData
-    basis : Basis or str, default "cartesian"
+    basis : Basis, str or ResolvedBasis, default "cartesian"
 
     Returns
     -------
@@ -193,9 +422,9 @@ def symmetry_adapted_basis(sym: SymmetryData, basis="cartesian") -> SymmetryAdap
     ReductionError
         If an orbit does not reduce (operations and table do not match).
     """
-    basis = as_basis(basis)
+    resolved = resolve_on(sym, basis)
     g = group_data(sym)
-    comps = basis_components(sym, basis, g)
+    comps = _components(sym, resolved, g)
     x, irrep, copy, partner = reduce_components(comps, g)
     counts = np.bincount(irrep, minlength=len(g.labels)) // g.dims
     mults = {g.labels[i]: int(c) for i, c in enumerate(counts) if c}

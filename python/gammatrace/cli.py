@@ -9,36 +9,19 @@ Machine-readable output follows shared/INTERFACE.md. Exit status: 0 when everyth
 from __future__ import annotations
 
 import argparse
-import json
 import sys
-import traceback
 from collections.abc import Sequence
-from typing import Any
 
+from .bases import parse_basis
+from .cli_output import dump, fail, write
 from .errors import GammatraceError
 
 __all__ = ["main"]
 
 
-def _write(text: str) -> None:
-    sys.stdout.buffer.write(text.encode("utf-8"))
-
-
-def _dump(obj: Any) -> str:
-    return json.dumps(obj, ensure_ascii=False, allow_nan=False)
-
-
-def _fail(exc: BaseException, show_traceback: bool, where: str = "") -> None:
-    """The one stderr line of a failure (``--traceback`` adds the full story)."""
-    if show_traceback:
-        traceback.print_exception(type(exc), exc, exc.__traceback__, file=sys.stderr)
-    print(f"gammatrace: {type(exc).__name__}: {where}{exc}", file=sys.stderr)
-
-
 def _cmd_analyze(args: argparse.Namespace) -> int:
     from .analysis import analyze_many
     from .io import FrameError
-    from .representations import parse_basis
 
     bases = ["atoms", "cartesian"] + [
         b for b in (args.basis or []) if b not in ("atoms", "cartesian")
@@ -47,14 +30,14 @@ def _cmd_analyze(args: argparse.Namespace) -> int:
         for spec in bases:
             parse_basis(spec)
     except GammatraceError as exc:
-        _fail(exc, args.traceback)
+        fail(exc, args.traceback)
         return 2
     status = 0
     for result in analyze_many(args.paths, tol=args.tol):
         if isinstance(result, FrameError):
             status = 1
             if args.format == "json":
-                _write(_dump(result.to_dict()) + "\n")
+                write(dump(result.to_dict()) + "\n")
             print(
                 f"gammatrace: {result.type}: {result.source} [frame {result.index}]: "
                 f"{result.message}",
@@ -73,21 +56,21 @@ def _cmd_analyze(args: argparse.Namespace) -> int:
                     result, os.path.join(args.draw, f"{stem}_{result.structure.index}.png")
                 )
             if args.format == "json":
-                _write(_dump(result.to_dict(bases, orbits=args.orbits)) + "\n")
+                write(dump(result.to_dict(bases, orbits=args.orbits)) + "\n")
             else:
-                _write(result.report(bases, worked=not args.brief) + "\n")
+                write(result.report(bases, worked=not args.brief) + "\n")
                 if args.orbits:
                     for o in result.orbits:
-                        _write(f"    orbit of {o.size} ({o.site_group}): atoms {o.atoms}\n")
-                _write("\n")
+                        write(f"    orbit of {o.size} ({o.site_group}): atoms {o.atoms}\n")
+                write("\n")
         except GammatraceError as exc:
             status = 1
             err = FrameError(
                 result.structure.source, result.structure.index, type(exc).__name__, str(exc)
             )
             if args.format == "json":
-                _write(_dump(err.to_dict()) + "\n")
-            _fail(exc, args.traceback)
+                write(dump(err.to_dict()) + "\n")
+            fail(exc, args.traceback)
         sys.stdout.flush()
     return status
 
@@ -98,12 +81,12 @@ def _cmd_table(args: argparse.Namespace) -> int:
     try:
         table = get_table(args.group)
     except GammatraceError as exc:
-        _fail(exc, args.traceback)
+        fail(exc, args.traceback)
         return 1
     if args.format == "json":
-        _write(_dump(table.to_dict()) + "\n")
+        write(dump(table.to_dict()) + "\n")
     else:
-        _write(table.to_text() + "\n")
+        write(table.to_text() + "\n")
     return 0
 
 
@@ -116,17 +99,17 @@ def _cmd_correlate(args: argparse.Namespace) -> int:
     try:
         result = correlate(args.group, args.subgroup)
     except GammatraceError as exc:
-        _fail(exc, args.traceback)
+        fail(exc, args.traceback)
         return 1
     if args.format == "json":
-        _write(_dump(result) + "\n")
+        write(dump(result) + "\n")
     else:
-        _write(f"{result['group']} -> {result['subgroup']}\n")
+        write(f"{result['group']} -> {result['subgroup']}\n")
         for emb in result["embeddings"]:
-            _write(f"  {emb['description']}\n")
+            write(f"  {emb['description']}\n")
             for irrep, parts in emb["correlation"].items():
                 rhs = " + ".join(f"{n if n != 1 else ''}{k}" for k, n in parts.items())
-                _write(f"    {irrep:>6s} -> {rhs}\n")
+                write(f"    {irrep:>6s} -> {rhs}\n")
     return 0
 
 
@@ -272,7 +255,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         return int(args.func(args))
     except GammatraceError as exc:
-        _fail(exc, args.traceback)
+        fail(exc, args.traceback)
         return 1
     except BrokenPipeError:
         return 0

@@ -15,15 +15,10 @@ from typing import Any
 
 import numpy as np
 
+from .bases import parse_basis
 from .errors import InputError
 
-__all__ = ["add_commands", "basis_from_spec"]
-
-
-def basis_from_spec(analysis: Any, spec: str):
-    """A :class:`gammatrace.basis_change.Basis` from a command-line spec (as ``--basis`` of
-    ``analyze``: ``cartesian``, ``atoms``, ``bonds``, ``bond_vectors``, ``orbitals:Fe=spd``)."""
-    return analysis._matrix_basis(spec)
+__all__ = ["add_commands"]
 
 
 def _one(path: str, tol: float):
@@ -36,8 +31,7 @@ def _cmd_salc(args: argparse.Namespace) -> int:
     from .basis_change import save_npz
 
     res = _one(args.path, args.tol)
-    basis = basis_from_spec(res, args.basis)
-    sab = res.symmetry_adapted_basis(basis)
+    sab = res.symmetry_adapted_basis(parse_basis(args.basis))
     if args.out:
         save_npz(args.out, sab.matrix, sab.labels)
     counts = {k: int(v) for k, v in sab.multiplicities.items() if v}

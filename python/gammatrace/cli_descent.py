@@ -20,7 +20,7 @@ import sys
 from collections.abc import Sequence
 from typing import Any
 
-from .cli import _dump, _fail, _write
+from .cli_output import dump, fail, write
 from .errors import GammatraceError
 
 __all__ = ["add_commands"]
@@ -55,7 +55,7 @@ def _skip_unread(item: Any, fmt: str) -> bool:
     if not isinstance(item, FrameError):
         return False
     if fmt == "json":
-        _write(_dump(item.to_dict()) + "\n")
+        write(dump(item.to_dict()) + "\n")
     print(
         f"gammatrace: {item.type}: {item.source} [frame {item.index}]: {item.message}",
         file=sys.stderr,
@@ -79,20 +79,20 @@ def _cmd_sites(args: argparse.Namespace) -> int:
         except GammatraceError as exc:
             status = 1
             if args.format == "json":
-                _write(_dump(_error_record(source, index, exc)) + "\n")
-            _fail(exc, args.traceback, f"{source} [frame {index}]: ")
+                write(dump(_error_record(source, index, exc)) + "\n")
+            fail(exc, args.traceback, f"{source} [frame {index}]: ")
             continue
         if args.format == "json":
             out = {"source": source, "index": index, "tolerance": args.tol}
             out.update(sites.to_dict())
             if induced is not None:
                 out["induced"] = induced.to_dict()
-            _write(_dump(out) + "\n")
+            write(dump(out) + "\n")
         else:
-            _write(f"{source} [frame {index}]\n{sites.to_text()}\n")
+            write(f"{source} [frame {index}]\n{sites.to_text()}\n")
             if induced is not None:
-                _write(induced.to_text() + "\n  (agrees with the counted characters)\n")
-            _write("\n")
+                write(induced.to_text() + "\n  (agrees with the counted characters)\n")
+            write("\n")
         sys.stdout.flush()
     return status
 
@@ -131,16 +131,16 @@ def _cmd_ladder(args: argparse.Namespace) -> int:
         except GammatraceError as exc:
             status = 1
             if args.format == "json":
-                _write(_dump(_error_record(source, index, exc)) + "\n")
-            _fail(exc, args.traceback, f"{source} [frame {index}]: ")
+                write(dump(_error_record(source, index, exc)) + "\n")
+            fail(exc, args.traceback, f"{source} [frame {index}]: ")
             continue
         if args.format == "json":
             out = {"source": source, "index": index}
             out.update(ladder.to_dict())
             out["source"] = source
-            _write(_dump(out) + "\n")
+            write(dump(out) + "\n")
         else:
-            _write(f"[frame {index}] {ladder.to_text()}\n\n")
+            write(f"[frame {index}] {ladder.to_text()}\n\n")
         sys.stdout.flush()
     return status
 

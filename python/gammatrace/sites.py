@@ -25,9 +25,11 @@ from typing import Any
 import numpy as np
 
 from .analysis import ATOM_GROUP, Analysis
+from .bases import parse_basis
 from .errors import BasisError, SymmetryError
-from .representations import json_number, parse_basis
+from .representations import json_number
 from .spectroscopy import format_irreps
+from .stabilisers import atom_images
 from .tables import get_table
 from .tables._ops import multiplication_table
 from .tables.subgroups import _describe, _frames, identify_group
@@ -41,54 +43,6 @@ __all__ = [
     "induced_representation",
     "site_analysis",
 ]
-
-
-# --------------------------------------------------------------------------------------------
-# Group bookkeeping in canonical indices
-# --------------------------------------------------------------------------------------------
-
-
-def _group_tables(name: str) -> tuple[np.ndarray, np.ndarray, int]:
-    """Multiplication table ``prod[a, b]`` = index of a·b, inverses and the identity's index."""
-    prod, inv = multiplication_table(name)
-    return prod, inv, 0
-
-
-def _images(analysis: Analysis, atoms: np.ndarray, canon: np.ndarray) -> np.ndarray:
-    """``(h, k)``: the atom each of ``atoms`` goes to under every canonical operation.
-
-    Uses every permutation when all were verified; otherwise composes the verified ones (the
-    generators) breadth-first through the multiplication table, O(h·k) work in all.
-    """
-    h = len(canon)
-    img = np.empty((h, len(atoms)), dtype=np.int64)
-    if analysis.all_verified or "permutations" in analysis.__dict__:
-        img[canon] = analysis.permutations[:, atoms]
-        return img
-    prod, _, ident = _group_tables(analysis.table.name)
-    verified = analysis.verified_operations
-    gen_perms = analysis.generator_permutations
-    gens = canon[verified]
-    known = np.zeros(h, dtype=bool)
-    img[ident] = atoms
-    known[ident] = True
-    frontier = [ident]
-    while frontier:
-        new = []
-        for g in frontier:
-            for s, perm in zip(gens, gen_perms):
-                p = int(prod[s, g])
-                if not known[p]:
-                    img[p] = perm[img[g]]  # s·g moves i to perm_s[perm_g[i]]
-                    known[p] = True
-                    new.append(p)
-        frontier = new
-    if not known.all():
-        raise SymmetryError(
-            f"{analysis.point_group}: the verified operations generate only {known.sum()} of "
-            f"{h} operations"
-        )
-    return img
 
 
 # --------------------------------------------------------------------------------------------
@@ -307,7 +261,7 @@ def site_analysis(analysis: Analysis) -> SiteAnalysis:
     canon = analysis.canonical_index
     to_analysis = np.empty_like(canon)
     to_analysis[canon] = np.arange(len(canon))
-    img = _images(analysis, reps, canon)
+    img = atom_images(analysis, reps, canon)
     stab = img == reps[None, :]  # (h, n_orbits)
     keys, which = np.unique(stab.T, axis=0, return_inverse=True)
     which = np.asarray(which).reshape(-1)
@@ -539,7 +493,7 @@ def induced_representation(
         return InducedRepresentation(
             kind, ATOM_GROUP, ("E",), chars, irreps, [o], {} if kind == "cartesian" else None
         )
-    prod, inv, _ = _group_tables(table.name)
+    prod, inv = multiplication_table(table.name)
     cache: dict = {}
     total = np.zeros(len(table.classes))
     shares = []

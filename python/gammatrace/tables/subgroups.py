@@ -33,6 +33,7 @@ from ..errors import TableError
 from ._ops import contains_all, describe, fraction_of_turn, multiplication_table
 from .linear import linear_class_label
 from .names import parse_group_name
+from .registry import get_table
 
 __all__ = ["MAX_ORDER", "SubgroupEmbedding", "correlate", "identify_group", "subgroups"]
 
@@ -267,8 +268,6 @@ def _linear_representative(name: str, n_axis: int = 12, min_m: int = 0):
 
     M is even for D∞h so that D_Mh holds the inversion.
     """
-    from . import get_table
-
     m = n_axis
     if name == "D∞h" and m % 2:
         m *= 2
@@ -279,8 +278,6 @@ def _linear_representative(name: str, n_axis: int = 12, min_m: int = 0):
 
 @cache
 def _parent_subgroups(name: str):
-    from . import get_table
-
     parent = get_table(name)
     finite = _linear_representative(name) if parent.is_linear else parent
     if len(finite.operations) > MAX_ORDER:
@@ -369,8 +366,6 @@ def subgroups(group_name: str) -> list[SubgroupEmbedding]:
     >>> sorted({s.name for s in subgroups("C3v")})
     ['C1', 'C3', 'C3v', 'Cs']
     """
-    from . import get_table
-
     parent = get_table(group_name)
     out = []
     for sub_name, idx, frames, finite in _parent_subgroups(parent.name):
@@ -404,8 +399,6 @@ def _restrict(parent_tab, sub_tab, idx, frame) -> np.ndarray:
 
 def _linear_rows(parent_name: str, finite):
     """Rows of the finite representative that carry linear labels: {label: row index}."""
-    from . import get_table
-
     labels = [ir.label for ir in get_table(parent_name).irreps]
     cls = finite.classes
     c_min = next(j for j, c in enumerate(cls) if c.proper and c.angle > 0)  # C_M
@@ -456,8 +449,6 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
     >>> correlate("C3v", "Cs")["embeddings"][0]["correlation"]["E"]
     {"A'": 1, "A''": 1}
     """
-    from . import get_table
-
     parent = get_table(group_name)
     sub = get_table(subgroup_name)
     if parent.is_linear:
@@ -509,7 +500,5 @@ def _n_choices(frames) -> int:
 
 
 def _name_key(name: str):
-    from . import get_table
-
     t = get_table(name)
     return (-len(t.operations), name)

@@ -23,64 +23,15 @@ Rows of the local matrix are ordered by irrep (table order), copy, partner.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 import scipy.linalg
 import scipy.sparse as sp
 
-from .errors import ReductionError
+from ..errors import ReductionError
 
-__all__ = ["Component", "reduce_components"]
+__all__ = ["reduce_components"]
 
 _ZERO = 1e-13
-
-
-@dataclass(frozen=True)
-class Component:
-    """One homogeneous part of a basis: the same site space on a set of sites.
-
-    Attributes
-    ----------
-    tag : str
-        Identifies the site space and its matrices (equal tags share local reductions).
-    site_perm : ndarray, shape (h, n_universe)
-        Image of every site of the universe (atoms or bonds) under each operation.
-    site_sign : ndarray or None, shape (h, n_universe)
-        ±1 factor of every site's function under each operation (vectors along bonds).
-    sites : ndarray, shape (n_c,)
-        Sites (indices into the universe) carrying this component; closed under the group.
-    offsets : ndarray, shape (n_c,)
-        Global index of the first function of the component at each site.
-    mats : ndarray, shape (h, s, s)
-        Matrix M(R) of the site space for each operation.
-    """
-
-    tag: str
-    site_perm: np.ndarray
-    site_sign: np.ndarray | None
-    sites: np.ndarray
-    offsets: np.ndarray
-    mats: np.ndarray
-
-    @property
-    def size(self) -> int:
-        """Dimension of the site space."""
-        return int(self.mats.shape[1])
-
-    def local_perm(self) -> np.ndarray:
-        """(h, n_c) image of each component site, as a position in ``sites``."""
-        n_universe = self.site_perm.shape[1]
-        pos = np.full(n_universe, -1, dtype=np.int64)
-        pos[self.sites] = np.arange(self.sites.size)
-        out = pos[self.site_perm[:, self.sites]]
-        return out
-
-    def local_sign(self) -> np.ndarray | None:
-        """(h, n_c) sign of each component site under each operation, or None."""
-        if self.site_sign is None:
-            return None
-        return self.site_sign[:, self.sites]
 
 
 def _apply_sum(weights, pi_inv, mats, vecs):
@@ -188,7 +139,7 @@ def reduce_components(components, g):
 
     Parameters
     ----------
-    components : list of Component
+    components : list of gammatrace.bases.components.Component
     g : GroupData
 
     Returns

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from . import _core
+from .. import _core
 
 __all__ = ["SYMBOLS", "atomic_number"]
 
