@@ -1,9 +1,9 @@
 //! The one error type of the core. Every fallible core function returns
-//! `Result<T, Error>`; `rust/lib.rs` maps each variant onto exactly one Python
+//! `Result<T, Error>`; `rust/python/mod.rs` maps each variant onto exactly one Python
 //! exception class of `python/gammatrace/errors.py`.
 //!
 //! Adding a variant: add it here with a `Display` sentence that names the atom,
-//! frame or line, then add its mapping in `rust/lib.rs` (`impl From<Error> for PyErr`).
+//! frame or line, then add its mapping in `rust/python/mod.rs` (`exception_class`).
 
 use std::fmt;
 
