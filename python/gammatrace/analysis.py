@@ -18,9 +18,9 @@ import numpy as np
 
 from . import _core
 from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
-from .errors import BasisError, GammatraceError, InputError, SymmetryError
+from .errors import GammatraceError, InputError, SymmetryError
 from .io import FrameError, Structure, as_structure, element_data, read_structures
-from .representations import Representation, build_representation
+from .representations import Representation, build_representation, single_atom_representation
 from .stabilisers import atom_images
 from .tables import LINEAR_SUBGROUP_N, ClassInfo, get_table
 
@@ -286,7 +286,7 @@ class Analysis:
         if b not in cache:
             resolved = self.resolve_basis(b)
             cache[b] = (
-                _atom_representation(self, resolved)
+                single_atom_representation(resolved)
                 if self.table is None
                 else build_representation(self, resolved)
             )
@@ -485,35 +485,6 @@ class Analysis:
             f"<Analysis {self.structure.source}[{self.structure.index}]: {self.point_group}, "
             f"{self.n_atoms} atoms, max deviation {self.max_deviation:.1e} Å>"
         )
-
-
-_L_LABELS = "SPDFGHI"
-
-
-def _atom_representation(analysis: Analysis, resolved: ResolvedBasis) -> Representation:
-    """A single atom (K_h): label representations by angular momentum and parity."""
-
-    def label(l: int) -> str:
-        return _L_LABELS[l] + ("g" if l % 2 == 0 else "u")
-
-    b = resolved.basis
-    irreps: dict[str, int] = {}
-    if b.kind == "atoms":
-        irreps = {"Sg": 1}
-    elif b.kind == "cartesian":
-        irreps = {"Pu": 1}
-    elif b.kind == "orbitals":
-        for l, c in enumerate(resolved.shell_counts[0]):
-            if c:
-                irreps[label(l)] = int(c)
-    elif b.kind in ("bonds", "bond_vectors"):
-        irreps = {}
-    else:
-        raise BasisError(f"basis '{b.kind}' has no meaning for a single atom")
-    dim = sum((2 * "SPDFGHI".index(k[0]) + 1) * v for k, v in irreps.items())
-    return Representation(
-        b, np.array([float(dim)]), np.array([float(dim)]), irreps, np.array([1.0]), [None], ("E",)
-    )
 
 
 def analyze(

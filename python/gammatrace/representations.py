@@ -18,12 +18,17 @@ import numpy as np
 
 from . import _core
 from .bases import Basis, ResolvedBasis
-from .errors import SymmetryError
+from .errors import BasisError, SymmetryError
 
 if TYPE_CHECKING:  # pragma: no cover
     from .analysis import Analysis
 
-__all__ = ["Representation", "build_representation", "count_characters"]
+__all__ = [
+    "Representation",
+    "build_representation",
+    "count_characters",
+    "single_atom_representation",
+]
 
 
 @dataclass(frozen=True)
@@ -206,3 +211,43 @@ def build_representation(analysis: Analysis, resolved: ResolvedBasis) -> Represe
             contributions.append(per_item)
     irreps = analysis.table.reduce(chars, what=f"basis '{basis.name}'")
     return Representation(basis, chars, chars_op, irreps, unshifted, contributions, labels)
+
+
+_L_LABELS = "SPDFGHI"
+
+
+def single_atom_representation(resolved: ResolvedBasis) -> Representation:
+    """A single atom (K_h): representations labelled by angular momentum and parity.
+
+    Parameters
+    ----------
+    resolved : ResolvedBasis
+        The basis on the one-atom structure.
+
+    Raises
+    ------
+    BasisError
+        For a basis that has no meaning on one atom (π, user vectors).
+    """
+
+    def label(l: int) -> str:
+        return _L_LABELS[l] + ("g" if l % 2 == 0 else "u")
+
+    b = resolved.basis
+    irreps: dict[str, int] = {}
+    if b.kind == "atoms":
+        irreps = {"Sg": 1}
+    elif b.kind == "cartesian":
+        irreps = {"Pu": 1}
+    elif b.kind == "orbitals":
+        for l, c in enumerate(resolved.shell_counts[0]):
+            if c:
+                irreps[label(l)] = int(c)
+    elif b.kind in ("bonds", "bond_vectors"):
+        irreps = {}
+    else:
+        raise BasisError(f"basis '{b.kind}' has no meaning for a single atom")
+    dim = sum((2 * "SPDFGHI".index(k[0]) + 1) * v for k, v in irreps.items())
+    return Representation(
+        b, np.array([float(dim)]), np.array([float(dim)]), irreps, np.array([1.0]), [None], ("E",)
+    )
