@@ -193,10 +193,6 @@ def _site_frame(table, idx: np.ndarray):
     name = identify_group(ops)
     site_tab = get_table(name)
     frames = _frames(name, ops, site_tab)
-    if not frames:  # the two namers disagree only for degenerate inputs; try the other one
-        name = identify_group(ops)
-        site_tab = get_table(name)
-        frames = _frames(name, ops, site_tab)
     if not frames:
         raise SymmetryError(f"no standard frame found for the site group {name} in {table.name}")
     f = frames[0]
