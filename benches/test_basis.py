@@ -17,7 +17,7 @@ import functools
 import gammatrace as gt
 import numpy as np
 import pytest
-from gammatrace.builders import c60
+from gammatrace.io.builders import c60
 
 from .conftest import note
 from .workloads import TOL, cluster

@@ -14,7 +14,7 @@ import os
 
 import numpy as np
 from gammatrace import get_table
-from gammatrace.builders import fcc_cluster, mackay_icosahedron, orbit_structure
+from gammatrace.io.builders import fcc_cluster, mackay_icosahedron, orbit_structure
 from gammatrace.io import Structure, write_xyz
 
 SEED = 20260707

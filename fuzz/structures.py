@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import gammatrace as gt
 import numpy as np
-from gammatrace.builders import orbit_structure
+from gammatrace.io.builders import orbit_structure
 
 GROUPS = ["C1", "Cs", "Ci", "T", "Td", "Th", "O", "Oh", "I", "Ih"]
 GROUPS += [fam.replace("n", str(n)) for n in range(2, 13) for fam in ("Cn", "Cnv", "Cnh")]

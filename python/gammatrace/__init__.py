@@ -18,7 +18,8 @@ from __future__ import annotations
 
 from .analysis import DEFAULT_TOL, Analysis, Operation, Orbit, analyze, analyze_many
 from .bases import Basis
-from .batch import analyze_batch
+from .bases.counting import Representation
+from .batch.run import analyze_batch
 from .errors import (
     BasisError,
     GammatraceError,
@@ -31,7 +32,6 @@ from .errors import (
     ToleranceError,
 )
 from .io import FrameError, Structure, read_structures, read_xyz
-from .representations import Representation
 from .spectroscopy import Vibrations
 from .tables import CharacterTable, correlate, get_table, subgroups
 

@@ -1,9 +1,11 @@
 """One structure, analysed: point group, operations, classes, representations, vibrations.
 
-:func:`analyze` is the front door. It calls the Rust core once to find the point group (with the
-operations, their permutations and the standard frame), assigns every operation to a class of the
-character table by its matrix in the standard frame (one source of truth for class names, see
-DEVELOPERS.md), and then builds whatever representations are asked for, lazily.
+:func:`analyze` is the front door. It calls the Rust core once to find the point group; the
+core reports the operations in canonical order with their classes (one source of truth for
+class names, see DEVELOPERS.md). :class:`Analysis` is a thin facade over the one value object
+:class:`~gammatrace.group.SymmetryData` (structure, operations, permutations, table, classes):
+representations, vibrations, orbits, change of basis, modes and symmetrisation all read that
+object and are computed on first use.
 """
 
 from __future__ import annotations
@@ -18,11 +20,12 @@ import numpy as np
 
 from . import _core
 from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
-from .errors import GammatraceError, InputError, SymmetryError
+from .bases.counting import Representation, build_representation, single_atom_representation
+from .errors import GammatraceError, InputError
+from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, orbits
 from .io import FrameError, Structure, as_structure, element_data, read_structures
-from .representations import Representation, build_representation, single_atom_representation
-from .stabilisers import atom_images
-from .tables import LINEAR_SUBGROUP_N, ClassInfo, get_table
+from .spectroscopy import Vibrations, format_irreps, vibrations
+from .tables import LINEAR_SUBGROUP_N
 
 __all__ = [
     "DEFAULT_TOL",
@@ -33,14 +36,8 @@ __all__ = [
     "analyze_many",
 ]
 
-#: Default distance tolerance in ångström (see DEVELOPERS.md, "Tolerance"); the core's value.
-DEFAULT_TOL: float = float(_core.DEFAULT_TOLERANCE)
 #: Smallest and largest tolerance accepted, Å.
 MIN_TOL, MAX_TOL = 1e-6, 10.0
-#: Verify every operation (and keep its permutation) while n_atoms * order stays below this;
-#: above it detection verifies E and the generators, and the other permutations are mapped
-#: on first use (:attr:`Analysis.permutations`).
-VERIFY_ALL_LIMIT: int = int(_core.VERIFY_ALL_LIMIT)
 #: Group name reported for a single atom.
 ATOM_GROUP = "K_h"
 DEFAULT_BASES = ("atoms", "cartesian")
@@ -74,30 +71,13 @@ class Operation:
     class_label: str
 
 
-@dataclass(frozen=True)
-class Orbit:
-    """A set of symmetry-equivalent atoms.
+def _from_symmetry(name: str, doc: str) -> property:
+    """A read-only attribute of the facade that is the value object's own."""
 
-    Attributes
-    ----------
-    atoms : list of int
-        Zero-based atom indices, ascending.
-    size : int
-        Number of atoms.
-    site_order : int
-        Order of the site group (the stabiliser of one atom): group order / orbit size.
-    site_group : str or None
-        Schoenflies name of the site group, when known.
-    """
+    def get(self: Analysis) -> Any:
+        return getattr(self.symmetry, name)
 
-    atoms: list
-    size: int
-    site_order: int | None
-    site_group: str | None
-
-    def to_dict(self) -> dict:
-        """``{"size", "site_group", "atoms"}`` as in shared/INTERFACE.md."""
-        return {"size": self.size, "site_group": self.site_group, "atoms": self.atoms}
+    return property(get, doc=doc)
 
 
 def _check_tol(tol: Any) -> float:
@@ -118,140 +98,67 @@ def _check_tol(tol: Any) -> float:
 class Analysis:
     """The symmetry of one structure. Build it with :func:`analyze`.
 
-    Everything beyond the point group is computed on first use and cached.
+    A facade over :attr:`symmetry` (a :class:`~gammatrace.group.SymmetryData`); everything
+    beyond the point group is computed on first use and cached.
     """
 
     def __init__(self, structure: Structure, raw: _core.Detection, tol: float):
-        self.structure = structure
-        self.tol = tol
-        self._raw = raw
-        self.point_group: str = raw.point_group
-        self.center: np.ndarray = raw.center
-        self.frame: np.ndarray = raw.frame
-        self.operation_matrices: np.ndarray = raw.operations
-        self.proper: np.ndarray = raw.proper
-        self.angle: np.ndarray = raw.angle
-        self.axis: np.ndarray = raw.axis
-        self.max_deviation: float = raw.max_deviation
-        #: ``int64 (h,)``: which of the table's canonical operations each detected operation
-        #: is, as the core reports it (detection lists them in canonical order).
-        self.canonical_index: np.ndarray = raw.canonical_index
-        if self.point_group == ATOM_GROUP:
-            self.table = None
-            self.op_class = np.zeros(len(self.operation_matrices), dtype=np.int64)
-            self.classes = [ClassInfo("E", 1, True, 0.0)]
-            return
-        self.table = get_table(self.point_group)
-        self.op_class = self.table.operation_class[self.canonical_index]
-        self.classes = list(self.table.classes)
+        #: The one value object: structure, operations, permutations, table and classes.
+        self.symmetry = SymmetryData.from_detection(structure, raw, tol)
 
-    # ---------------------------------------------------------------- basic facts
-    @property
-    def n_atoms(self) -> int:
-        """Number of atoms."""
-        return self.structure.n_atoms
-
-    @property
-    def is_linear(self) -> bool:
-        """True for C∞v and D∞h."""
-        return self.table is not None and self.table.is_linear
-
-    @property
-    def order(self) -> int | None:
-        """Group order; None for the infinite groups (linear molecules, a single atom)."""
-        if self.table is None or self.table.is_linear:
-            return None
-        return len(self.operation_matrices)
+    structure = _from_symmetry("structure", "The :class:`~gammatrace.io.Structure`.")
+    tol = _from_symmetry("tol", "The distance tolerance, Å.")
+    point_group = _from_symmetry("point_group", "Schoenflies name (``C2v``, ``D∞h``, ``K_h``).")
+    center = _from_symmetry("center", "``float64 (3,)``: the fixed point of the operations.")
+    frame = _from_symmetry("frame", "``float64 (3, 3)``: rows = standard x, y, z axes.")
+    operation_matrices = _from_symmetry("operations", "``float64 (h, 3, 3)``, input frame.")
+    proper = _from_symmetry("proper", "``bool (h,)``: rotation (True) or σh·C(angle).")
+    angle = _from_symmetry("angle", "``float64 (h,)``: θ in degrees, [0, 180].")
+    axis = _from_symmetry("axis", "``float64 (h, 3)``: unit axis (plane normal).")
+    max_deviation = _from_symmetry("max_deviation", "Largest atom displacement, Å.")
+    canonical_index = _from_symmetry(
+        "canonical_index", "``int64 (h,)``: which canonical operation each one is."
+    )
+    table = _from_symmetry("table", "The :class:`~gammatrace.tables.CharacterTable`.")
+    op_class = _from_symmetry("op_class", "``int64 (h,)``: class index of each operation.")
+    classes = _from_symmetry("classes", "The table's classes, in print order.")
+    n_atoms = _from_symmetry("n_atoms", "Number of atoms.")
+    is_linear = _from_symmetry("is_linear", "True for C∞v and D∞h.")
+    order = _from_symmetry(
+        "group_order", "Group order; None for the infinite groups (linear, one atom)."
+    )
+    permutations = _from_symmetry(
+        "permutations", "``int64 (h, n_atoms)``: atom i goes to ``permutations[k, i]``."
+    )
+    all_verified = _from_symmetry("all_verified", "True when detection mapped every operation.")
+    verified_operations = _from_symmetry(
+        "verified_operations", "``int64 (k,)``: operations detection verified."
+    )
+    generator_permutations = _from_symmetry(
+        "generator_permutations", "Permutations of the verified operations."
+    )
+    symmetry_number = _from_symmetry("symmetry_number", "Rotational symmetry number σ.")
+    chiral = _from_symmetry("chiral", "True when the group has no improper operation.")
+    unshifted_atoms = _from_symmetry(
+        "unshifted_atoms", "``float64 (h,)``: atoms each operation leaves unshifted."
+    )
 
     @cached_property
     def operations(self) -> list[Operation]:
-        """All operations (for linear groups: those of the finite subgroup reported)."""
-        labels = [c.label for c in self.classes]
+        """All operations (for the infinite groups: those of the finite sampling)."""
+        sym = self.symmetry
+        labels = [c.label for c in sym.classes]
         return [
             Operation(
                 k,
-                self.operation_matrices[k],
-                bool(self.proper[k]),
-                float(self.angle[k]),
-                self.axis[k],
-                labels[int(self.op_class[k])],
+                sym.operations[k],
+                bool(sym.proper[k]),
+                float(sym.angle[k]),
+                sym.axis[k],
+                labels[int(sym.op_class[k])],
             )
-            for k in range(len(self.operation_matrices))
+            for k in range(len(sym.operations))
         ]
-
-    @cached_property
-    def permutations(self) -> np.ndarray:
-        """``int64 (h, n_atoms)``: atom i goes to atom ``permutations[k, i]`` under op k.
-
-        Operations that detection did not verify itself (structures with n_atoms × order above
-        ``VERIFY_ALL_LIMIT`` verify only E and the generators) are mapped here, on first use,
-        with one lookup pass each.
-
-        Raises
-        ------
-        SymmetryError
-            If such an operation does not hold within the tolerance.
-        """
-        verified = self._raw.verified
-        perms = self._raw.permutations
-        h = len(self.operation_matrices)
-        out = np.empty((h, self.n_atoms), dtype=np.int64)
-        out[verified] = perms
-        missing = sorted(set(range(h)) - set(verified.tolist()))
-        if missing:
-            s = self.structure
-            more, _ = _core.map_operations(
-                s.positions,
-                s.numbers,
-                tuple(self.center),
-                np.ascontiguousarray(self.operation_matrices[missing]),
-                self.tol,
-            )
-            out[missing] = more
-        return out
-
-    @property
-    def all_verified(self) -> bool:
-        """True when detection mapped every operation (small and mid-size structures)."""
-        return len(self._raw.verified) == len(self.operation_matrices)
-
-    @property
-    def verified_operations(self) -> np.ndarray:
-        """``int64 (k,)``: the operations detection verified (all, or E and the generators)."""
-        return self._raw.verified
-
-    @property
-    def generator_permutations(self) -> np.ndarray:
-        """Permutations of the verified operations (all, or the generators for huge inputs)."""
-        return self._raw.permutations
-
-    @property
-    def symmetry_number(self) -> int:
-        """Rotational symmetry number σ: the number of proper operations.
-
-        1 for C∞v, 2 for D∞h, 1 for a single atom.
-        """
-        if self.table is None:
-            return 1
-        if self.table.is_linear:
-            return 2 if self.point_group == "D∞h" else 1
-        return int(np.count_nonzero(self.proper))
-
-    @property
-    def chiral(self) -> bool:
-        """True when the group has no improper operation (no σ, i or S_n)."""
-        if self.table is None:
-            return False
-        return bool(np.all(self.proper))
-
-    @cached_property
-    def unshifted_atoms(self) -> np.ndarray:
-        """Atoms each operation leaves unshifted (``float64 (h,)``), counted once in the core."""
-        s = self.structure
-        counts = _core.count_unshifted(
-            s.positions, tuple(self.center), self.operation_matrices, self.tol
-        )
-        return counts.astype(np.float64)
 
     @cached_property
     def masses(self) -> np.ndarray:
@@ -288,7 +195,7 @@ class Analysis:
             cache[b] = (
                 single_atom_representation(resolved)
                 if self.table is None
-                else build_representation(self, resolved)
+                else build_representation(self.symmetry, resolved)
             )
         return cache[b]
 
@@ -307,38 +214,18 @@ class Analysis:
             cache[b] = b.resolve(self.structure, center=self.center, tol=self.tol)
         return cache[b]
 
-    def vibrations(self):
+    def vibrations(self) -> Vibrations:
         """Γ_vib with IR/Raman activity (see :mod:`gammatrace.spectroscopy`)."""
-        from .spectroscopy import vibrations
-
-        return vibrations(self)
+        if "_vibrations" not in self.__dict__:
+            gamma_3n = self.representation("cartesian").characters
+            self.__dict__["_vibrations"] = vibrations(self.symmetry, gamma_3n)
+        return self.__dict__["_vibrations"]
 
     # ---------------------------------------------------------------- change of basis
-    def symmetry_data(self):
-        """The structure with all its operations and permutations, for
-        :mod:`gammatrace.basis_change`, :mod:`gammatrace.modes` and :mod:`gammatrace.symmetrize`.
-
-        Raises
-        ------
-        SymmetryError
-            For a single atom (no finite group) or when only generators were verified.
-        """
-        from .basis_change import SymmetryData
-
-        if self.table is None:
-            raise SymmetryError("a single atom has no finite group for a change of basis")
-        s = self.structure
-        return SymmetryData(
-            s.positions,
-            s.numbers,
-            self.center,
-            self.frame,
-            self.operation_matrices,
-            self.permutations,
-            self.table,
-            self.op_class,
-            self.canonical_index,
-        )
+    def symmetry_data(self) -> SymmetryData:
+        """The one value object (:attr:`symmetry`), for :mod:`gammatrace.basis_change`,
+        :mod:`gammatrace.modes` and :mod:`gammatrace.symmetrize`."""
+        return self.symmetry
 
     def symmetry_adapted_basis(self, basis: Any = "cartesian"):
         """The orthogonal sparse change of basis X (rows = SALCs) for ``basis``; see
@@ -352,11 +239,11 @@ class Analysis:
         BasisError
             For a basis the matrix code does not serve (π, user vectors, l > 3).
         """
-        from .basis_change import symmetry_adapted_basis  # scipy loads on first use only
+        from .bases.matrices import symmetry_adapted_basis  # scipy loads on first use only
 
         b = parse_basis(basis)
         check_matrix_kind(b)  # before resolving: the unsupported kind is the first thing to say
-        return symmetry_adapted_basis(self.symmetry_data(), self.resolve_basis(b))
+        return symmetry_adapted_basis(self.symmetry, self.resolve_basis(b))
 
     def label_modes(self, hessian: Any = None, **kwargs: Any):
         """Label normal modes from a Cartesian Hessian or mode vectors; see
@@ -364,56 +251,20 @@ class Analysis:
         from .modes import label_modes
 
         kwargs.setdefault("masses", self.masses)
-        return label_modes(self.symmetry_data(), hessian, **kwargs)
+        return label_modes(self.symmetry, hessian, **kwargs)
 
     def symmetrize(self):
         """Project the structure onto its exact point group; see
         :func:`gammatrace.symmetrize.symmetrize`."""
         from .symmetrize import symmetrize
 
-        return symmetrize(self.symmetry_data(), tolerance=self.tol)
+        return symmetrize(self.symmetry, tolerance=self.tol)
 
     # ---------------------------------------------------------------- orbits
     @cached_property
     def orbits(self) -> list[Orbit]:
-        """Sets of symmetry-equivalent atoms, in order of their first atom, with site groups.
-
-        Costs one pass over the verified permutations (the generators' for huge structures);
-        the site group of each orbit comes from where the group's operations send one of its
-        atoms, composed through the multiplication table (no further pass over the atoms).
-        """
-
-        perms = self.generator_permutations
-        ids = np.asarray(_core.orbits(self.n_atoms, np.ascontiguousarray(perms)), dtype=np.int64)
-        order = np.argsort(ids, kind="stable")
-        counts = np.bincount(ids)
-        splits = np.split(order, np.cumsum(counts)[:-1])
-        h = self.order
-        names = self._site_groups(np.array([a[0] for a in splits], dtype=np.int64))
-        return [
-            Orbit(atoms.tolist(), len(atoms), h // len(atoms) if h else None, name)
-            for atoms, name in zip(splits, names)
-        ]
-
-    def _site_groups(self, representatives: np.ndarray) -> list:
-        """Schoenflies names of the stabilisers of the given atoms."""
-        if self.table is None:
-            return [ATOM_GROUP] * len(representatives)
-        from .tables.subgroups import identify_group
-
-        images = atom_images(
-            self, representatives, self.canonical_index
-        )  # (h, k), rows = canonical operations
-        ops = self.table.operations
-        cache: dict = {}
-        out = []
-        for j, atom in enumerate(representatives):
-            stab = np.flatnonzero(images[:, j] == atom)
-            key = stab.tobytes()
-            if key not in cache:
-                cache[key] = identify_group(ops[stab])
-            out.append(cache[key])
-        return out
+        """Sets of symmetry-equivalent atoms with their site groups (:func:`group.orbits`)."""
+        return orbits(self.symmetry)
 
     # ---------------------------------------------------------------- output
     def to_dict(self, bases: Sequence[Any] = DEFAULT_BASES, orbits: bool = False) -> dict:
@@ -452,8 +303,6 @@ class Analysis:
 
     def report(self, bases: Sequence[Any] = DEFAULT_BASES, worked: bool = True) -> str:
         """A readable text report: group, classes, representations, vibrations."""
-        from .spectroscopy import format_irreps
-
         s = self.structure
         lines = [
             f"{s.source} [frame {s.index}]: {self.n_atoms} atoms",

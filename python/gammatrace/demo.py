@@ -14,9 +14,11 @@ import time
 
 import numpy as np
 
-from .builders import c60, fcc_cluster, mackay_icosahedron
+from .analysis import analyze, analyze_many
 from .errors import InputError
-from .io import Structure, write_xyz
+from .io import FrameError, Structure, atomic_numbers, write_xyz
+from .io.builders import c60, fcc_cluster, mackay_icosahedron
+from .spectroscopy import format_irreps
 
 __all__ = ["ethane", "reference_molecules", "run_demo"]
 
@@ -65,8 +67,6 @@ def _write_scan(path: str, rng: np.random.Generator) -> None:
         symbols, pos = ethane(float(tors))
         if k % 3 == 2:
             pos = pos + rng.normal(scale=0.002, size=pos.shape)
-        from .io import atomic_numbers
-
         frames.append(Structure(atomic_numbers(symbols), pos, comment=f"torsion={tors}"))
     write_xyz(frames, path)
     # deliberately corrupt one frame (a truncated coordinate line) to show error handling
@@ -79,10 +79,6 @@ def _write_scan(path: str, rng: np.random.Generator) -> None:
 
 def run_demo(out: str | None = None) -> int:
     """Run the invented scenario and print a readable report; returns 0 on success."""
-    from .analysis import analyze, analyze_many
-    from .io import FrameError
-    from .spectroscopy import format_irreps
-
     folder = out or tempfile.mkdtemp(prefix="gammatrace-demo-")
     os.makedirs(folder, exist_ok=True)
     rng = np.random.default_rng(7)

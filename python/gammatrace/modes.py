@@ -20,7 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.linalg
 
-from .basis_change import SymmetryData, representation_matrices, symmetry_adapted_basis
+from .bases.matrices import SymmetryData, representation_matrices, symmetry_adapted_basis
 from .errors import InputError, SymmetryBreakingWarning, SymmetryError
 
 __all__ = [

@@ -9,9 +9,10 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from .errors import InputError
+from .group.symmetry import as_symmetry
 
 if TYPE_CHECKING:  # pragma: no cover
-    from .analysis import Analysis
+    from .group.symmetry import SymmetryData
 
 __all__ = ["draw_symmetry", "plot_group_counts", "symmetry_elements"]
 
@@ -27,14 +28,16 @@ def _pyplot():
     return plt
 
 
-def symmetry_elements(analysis: Analysis) -> dict:
+def symmetry_elements(sym: SymmetryData) -> dict:
     """Rotation axes (unit vector, order), mirror-plane normals and the inversion centre.
 
-    Axes and normals are in the input frame; ``center`` is the centre of mass.
+    ``sym`` is a SymmetryData (or an Analysis). Axes and normals are in the input frame;
+    ``center`` is the centre of mass.
     """
     from .tables._ops import describe, fraction_of_turn
 
-    proper, angle, axis = describe(analysis.operation_matrices)
+    sym = as_symmetry(sym)
+    proper, angle, axis = describe(sym.operations)
     axes: list[tuple[np.ndarray, int]] = []
     for a, t in zip(axis[proper & (angle > 1e-6)], angle[proper & (angle > 1e-6)]):
         n = fraction_of_turn(t, 4000).denominator
@@ -47,7 +50,7 @@ def symmetry_elements(analysis: Analysis) -> dict:
     improper = ~proper
     normals = list(axis[improper & (angle < 1e-6)])  # σ = σh·C(0): the axis is the normal
     inversion = bool((improper & (np.abs(angle - 180.0) < 1e-6)).any())
-    return {"axes": axes, "planes": normals, "inversion": inversion, "center": analysis.center}
+    return {"axes": axes, "planes": normals, "inversion": inversion, "center": sym.center}
 
 
 _COLOURS = {
@@ -62,13 +65,14 @@ _COLOURS = {
 }
 
 
-def draw_symmetry(analysis: Analysis, path: str, *, max_atoms: int = 5000) -> str:
+def draw_symmetry(sym: SymmetryData, path: str, *, max_atoms: int = 5000) -> str:
     """Draw the structure with its rotation axes (labelled Cn), mirror planes and inversion
     centre to a PNG file; returns the path. Structures above ``max_atoms`` are subsampled."""
     plt = _pyplot()
-    el = symmetry_elements(analysis)
-    pos = analysis.structure.positions - analysis.center
-    nums = analysis.structure.numbers
+    sym = as_symmetry(sym)
+    el = symmetry_elements(sym)
+    pos = sym.structure.positions - sym.center
+    nums = sym.structure.numbers
     if len(pos) > max_atoms:
         pick = np.random.default_rng(0).choice(len(pos), max_atoms, replace=False)
         pos, nums = pos[pick], nums[pick]
@@ -121,7 +125,7 @@ def draw_symmetry(analysis: Analysis, path: str, *, max_atoms: int = 5000) -> st
     ax.set_zlabel("z / Å")
     n_planes = len(el["planes"])
     ax.set_title(
-        f"{analysis.point_group}: {len(el['axes'])} rotation axes, {n_planes} mirror planes"
+        f"{sym.point_group}: {len(el['axes'])} rotation axes, {n_planes} mirror planes"
         + (", inversion centre" if el["inversion"] else "")
     )
     fig.tight_layout()

@@ -13,10 +13,22 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-if TYPE_CHECKING:  # pragma: no cover
-    from .analysis import Analysis
+from .bases import parse_basis
+from .bases.counting import build_representation
+from .errors import ReductionError
 
-__all__ = ["Vibrations", "format_irreps", "vibrations"]
+if TYPE_CHECKING:  # pragma: no cover
+    from .group.symmetry import SymmetryData
+
+__all__ = [
+    "Vibrations",
+    "activity_masks",
+    "external_characters",
+    "format_irreps",
+    "reduce_vibrations",
+    "vibration_count",
+    "vibrations",
+]
 
 
 @dataclass(frozen=True)
@@ -92,46 +104,95 @@ def vibration_count(table, n_atoms) -> np.ndarray:
     return np.where(n > 1, 3 * n - (5 if table.is_linear else 6), 0)
 
 
-def vibrations(analysis: Analysis) -> Vibrations:
-    """Γ_vib of an analysed structure, with IR and Raman activity.
+def reduce_vibrations(table, chars_3n, n_atoms):
+    """Γ_vib for many structures of one group at once: the one reduction single analyses and
+    batches share.
+
+    Parameters
+    ----------
+    table : CharacterTable
+    chars_3n : array_like, shape (k, n_classes)
+        Γ_3N characters per class.
+    n_atoms : array_like, shape (k,)
+
+    Returns
+    -------
+    mult : numpy.ndarray of int, shape (k, n_irreps)
+        Γ_vib multiplicities in table order.
+    modes : numpy.ndarray of int, shape (k,)
+        3N − 6 (3N − 5 linear, 0 for one atom).
+    ok : numpy.ndarray of bool, shape (k,)
+        False where the multiplicities are not non-negative integers spanning ``modes``.
+    chars : numpy.ndarray, shape (k, n_classes)
+        Γ_vib characters.
+    """
+    chars = np.asarray(chars_3n, dtype=np.float64) - external_characters(table)[None, :]
+    modes = vibration_count(table, n_atoms)
+    if len(chars) and np.asarray(n_atoms).min() <= 1:
+        chars = np.where(np.asarray(n_atoms)[:, None] > 1, chars, 0.0)
+    raw = table.raw_multiplicities(chars)
+    mult = np.rint(raw).astype(np.int64)
+    dims = np.asarray([ir.dim for ir in table.irreps], dtype=np.int64)
+    ok = (
+        (np.abs(raw - mult).max(axis=1, initial=0.0) <= 1e-6)
+        & (mult >= 0).all(axis=1)
+        & ((mult * dims).sum(axis=1) == modes)
+    )
+    return mult, modes, ok, chars
+
+
+def activity_masks(table) -> tuple[np.ndarray, np.ndarray]:
+    """Boolean masks over the table's irreps: IR-active, Raman-active."""
+    ir_set, raman_set = table.ir_active_irreps, table.raman_active_irreps
+    labels = [ir.label for ir in table.irreps]
+    return (
+        np.array([lab in ir_set for lab in labels], dtype=bool),
+        np.array([lab in raman_set for lab in labels], dtype=bool),
+    )
+
+
+def vibrations(sym: SymmetryData, cartesian_characters=None) -> Vibrations:
+    """Γ_vib of a structure with its group, with IR and Raman activity.
+
+    Parameters
+    ----------
+    sym : SymmetryData
+    cartesian_characters : array_like, optional
+        Γ_3N per class, when already counted (else counted here).
 
     Raises
     ------
     ReductionError
         If Γ_vib does not reduce to non-negative integers (a bug or a tolerance problem).
     """
-    n = analysis.n_atoms
-    table = analysis.table
-    if table is None:  # a single atom: no vibrations
-        return Vibrations({}, 0, {}, {}, 0, 0, 0, False, np.zeros(1))
-    gamma_3n = analysis.representation("cartesian").characters
-    chars = gamma_3n - external_characters(table)
-    modes = int(vibration_count(table, np.array([n]))[0])
-    irreps = table.reduce(chars, what="Γ_vib")
-    negative = {k: v for k, v in irreps.items() if v < 0}
-    if negative:
-        from .errors import ReductionError
-
-        raise ReductionError(f"Γ_vib has negative multiplicities {negative}: characters {chars}")
-    dims = {ir.label: ir.dim for ir in table.irreps}
-    total = sum(dims[k] * v for k, v in irreps.items())
-    if total != modes:
-        from .errors import ReductionError
-
-        raise ReductionError(f"Γ_vib spans {total} modes, expected {modes}: {irreps}")
-    ir_set = set(table.ir_active_irreps)
-    raman_set = set(table.raman_active_irreps)
-    ir = {k: v for k, v in irreps.items() if k in ir_set}
-    raman = {k: v for k, v in irreps.items() if k in raman_set}
+    table = sym.table
+    if cartesian_characters is None:
+        resolved = parse_basis("cartesian").resolve(sym, center=sym.center, tol=sym.tol)
+        cartesian_characters = build_representation(sym, resolved).characters
+    mult, modes, ok, chars = reduce_vibrations(
+        table, np.asarray(cartesian_characters, dtype=np.float64)[None, :], [sym.n_atoms]
+    )
+    if not ok[0]:
+        raw = table.raw_multiplicities(chars)[0]
+        parts = ", ".join(f"{ir.label} {v:.6g}" for ir, v in zip(table.irreps, raw))
+        raise ReductionError(
+            f"Γ_vib does not reduce to non-negative integers spanning {int(modes[0])} modes: "
+            f"characters {chars[0].tolist()} give {parts}"
+        )
+    labels = [ir.label for ir in table.irreps]
+    irreps = {lab: int(v) for lab, v in zip(labels, mult[0]) if v}
+    ir_mask, raman_mask = activity_masks(table)
+    ir = {lab: int(v) for lab, v, a in zip(labels, mult[0], ir_mask) if v and a}
+    raman = {lab: int(v) for lab, v, a in zip(labels, mult[0], raman_mask) if v and a}
     centro = any(c.label == "i" for c in table.classes)
     return Vibrations(
         irreps,
-        modes,
+        int(modes[0]),
         ir,
         raman,
         int(sum(irreps.values())),
         int(sum(ir.values())),
         int(sum(raman.values())),
         centro,
-        chars,
+        chars[0],
     )

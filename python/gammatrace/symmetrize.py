@@ -2,7 +2,7 @@
 
 Each atom becomes the group average of the images that the operations bring onto it,
 x'_i = (1/h) Σ_R R⁻¹ x_{π_R(i)}, computed in the standard frame with the exact operations
-(the table's canonical matrices when it has them, see :mod:`gammatrace._group`). When the
+(the table's canonical matrices when it has them, see :mod:`gammatrace.group.irreps`). When the
 permutations compose like the operations, the result satisfies R x'_i = x'_{π_R(i)} exactly
 (to rounding).
 """
@@ -13,9 +13,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._group import group_data
-from .basis_change import SymmetryData
+from .bases.matrices import SymmetryData
 from .errors import SymmetryError
+from .group.irreps import group_data
 
 __all__ = ["SymmetrizedStructure", "symmetrize"]
 

@@ -15,7 +15,7 @@ from gammatrace.basis_change import (
     representation_matrix,
     symmetry_adapted_basis,
 )
-from gammatrace.builders import orbit_structure
+from gammatrace.io.builders import orbit_structure
 from gammatrace.cli import main
 from gammatrace.io import Structure, write_xyz
 

@@ -8,7 +8,7 @@ representation matrices, projectors and the orbit-type reduction of
 
 Basis order: Cartesian ``3 * atom + (x, y, z)``; atoms one per atom; orbitals atom-major, within
 an atom the element's shells in the order given, within a shell the real harmonics
-m = -l..l of :mod:`gammatrace.bases.harmonics`; bonds in the order of the pairs, a vector along
+m = -l..l of :mod:`gammatrace.group.harmonics`; bonds in the order of the pairs, a vector along
 bond (a, b) pointing from a to b.
 
 The matrix code serves :data:`MATRIX_KINDS` (orbitals up to l = ``harmonics.MAX_L``); any
@@ -24,7 +24,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import BasisError, SymmetryError
-from . import harmonics
+from ..group import harmonics
 from .spec import ORBITAL_LETTERS
 
 __all__ = [

@@ -4,7 +4,7 @@
 the structure: which shells each atom carries, the bond list (found from covalent radii at the
 basis's scale, or the given pairs checked against the atoms), the normal of a planar
 structure, the user's vectors checked against the atoms. The counting code
-(:mod:`gammatrace.representations`) and the matrix code (:mod:`gammatrace.bases.components`)
+(:mod:`gammatrace.bases.counting`) and the matrix code (:mod:`gammatrace.bases.components`)
 read the :class:`ResolvedBasis` and nothing else.
 """
 

@@ -3,7 +3,7 @@
 A :class:`Basis` names a kind of function and its options, nothing that depends on a
 structure. :meth:`Basis.resolve` turns it into a
 :class:`~gammatrace.bases.resolve.ResolvedBasis` for one structure (shells per atom, the bond
-list, the plane normal ...); the counting code (:mod:`gammatrace.representations`) and the
+list, the plane normal ...); the counting code (:mod:`gammatrace.bases.counting`) and the
 matrix code (:mod:`gammatrace.basis_change`) both consume that resolved form.
 
 ========================  ==========================================================
@@ -30,7 +30,7 @@ from typing import Any, Union
 import numpy as np
 
 from ..errors import BasisError
-from .elements import SYMBOLS, atomic_number
+from ..io.elements import SYMBOLS, atomic_number
 from .resolve import ResolvedBasis, resolve
 
 __all__ = [

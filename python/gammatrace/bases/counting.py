@@ -1,0 +1,249 @@
+"""Reducible representations: characters of a resolved basis, counted, checked and reduced.
+
+Characters are counted in the Rust core (``_core.*_characters``) for every operation of the
+group, never traced out of matrices. Here they are checked to be constant over each conjugacy
+class (the cheapest end-to-end self-check of the pipeline) and reduced with the character table.
+
+The basis is the one :class:`~gammatrace.Basis` of :mod:`gammatrace.bases`, resolved on the
+structure once (:class:`~gammatrace.bases.ResolvedBasis`: shells per atom, bonds, plane normal,
+vectors); this module reads only the resolved form.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from .. import _core
+from ..errors import BasisError, SymmetryError
+from .resolve import ResolvedBasis
+from .spec import Basis
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..group.symmetry import SymmetryData
+
+__all__ = [
+    "Representation",
+    "build_representation",
+    "count_characters",
+    "single_atom_representation",
+]
+
+
+@dataclass(frozen=True)
+class Representation:
+    """A reducible representation on a structure: characters per class and its reduction.
+
+    Attributes
+    ----------
+    basis : Basis
+        What it is built on.
+    characters : numpy.ndarray
+        One character per class, in table order.
+    per_operation : numpy.ndarray
+        The counted character of every operation (constant within each class).
+    irreps : dict
+        Mulliken label -> multiplicity (zeros left out).
+    unshifted : numpy.ndarray
+        Unshifted atoms (or bonds) for one operation of each class.
+    contributions : list
+        Contribution per unshifted item in each class (a number, or None when it varies).
+    """
+
+    basis: Basis
+    characters: np.ndarray
+    per_operation: np.ndarray
+    irreps: dict
+    unshifted: np.ndarray
+    contributions: list
+    class_labels: tuple
+
+    @property
+    def dimension(self) -> int:
+        """The dimension (character of E)."""
+        return round(float(self.characters[0])) if len(self.characters) else 0
+
+    def to_dict(self) -> dict:
+        """``{"characters": [...], "irreps": {...}}`` as in shared/INTERFACE.md."""
+        return {"characters": [json_number(c) for c in self.characters], "irreps": self.irreps}
+
+    def worked_table(self) -> str:
+        """The per-class table a practitioner writes by hand.
+
+        Columns: class, unshifted atoms (or bonds), contribution per unshifted item, character.
+        """
+        item = "bonds" if self.basis.kind in ("bonds", "bond_vectors") else "atoms"
+        rows = [("class", f"unshifted {item}", "per item", "character")]
+        for label, n, contrib, chi in zip(
+            self.class_labels, self.unshifted, self.contributions, self.characters
+        ):
+            rows.append(
+                (
+                    label,
+                    str(int(n)),
+                    "-" if n == 0 else "varies" if contrib is None else format_number(contrib),
+                    format_number(chi),
+                )
+            )
+        widths = [max(len(r[i]) for r in rows) for i in range(4)]
+        lines = [
+            "  ".join(c.rjust(w) if i else c.ljust(w) for i, (c, w) in enumerate(zip(r, widths)))
+            for r in rows
+        ]
+        lines.insert(1, "  ".join("-" * w for w in widths))
+        return "\n".join(lines)
+
+
+def json_number(x: float) -> int | float:
+    """An integer when the value is integral to 1e-9, else a float rounded to 10 decimals."""
+    xf = float(x)
+    r = round(xf)
+    if abs(xf - r) < 1e-9:
+        return int(r)
+    return round(xf, 10)
+
+
+def format_number(x: float) -> str:
+    """Text form of a character: ``-1``, ``0.618``."""
+    v = json_number(x)
+    return str(v) if isinstance(v, int) else f"{v:.3f}"
+
+
+# --------------------------------------------------------------------------------------------
+# Counting (one call into the core per basis) and the per-class check
+# --------------------------------------------------------------------------------------------
+
+
+def count_characters(sym: SymmetryData, resolved: ResolvedBasis) -> tuple[np.ndarray, np.ndarray]:
+    """Per-operation characters and unshifted items (atoms or bonds) of a resolved basis.
+
+    One call into the core (rust/count.rs) per basis; no matrix is built.
+    """
+    pos, center, ops, tol = (sym.positions, tuple(sym.center), sym.operations, sym.tol)
+    kind = resolved.kind
+    if kind in ("bonds", "bond_vectors"):
+        bonds = resolved.pairs
+        # a stretch's character is the count of bonds kept; vectors need the signed count too
+        unshifted = _core.bond_characters(pos, center, ops, bonds, False, tol)
+        if kind == "bonds":
+            return unshifted.copy(), unshifted
+        return _core.bond_characters(pos, center, ops, bonds, True, tol), unshifted
+    unshifted = sym.unshifted_atoms
+    if kind == "atoms":
+        return unshifted.copy(), unshifted
+    proper = np.ascontiguousarray(sym.proper)
+    angle = np.ascontiguousarray(sym.angle)
+    if kind == "cartesian":
+        # every atom carries x, y, z: one p-like shell (l = 1), so one counting pass serves
+        return unshifted * _core.orbital_contributions(proper, angle, 1), unshifted
+    if kind == "orbitals":
+        counts = resolved.shell_counts
+        return _core.shell_characters(pos, center, ops, proper, angle, counts, tol), unshifted
+    if kind == "pi":
+        normal = tuple(resolved.normal)
+        return _core.pi_characters(pos, center, ops, normal, tol), unshifted
+    # vectors
+    vec = resolved.vectors
+    flat = np.ascontiguousarray(vec.reshape(-1, 3))
+    return _core.vector_set_characters(pos, center, ops, flat, vec.shape[1], tol), unshifted
+
+
+def per_class(
+    per_op: np.ndarray, op_class: np.ndarray, labels: tuple, what: str, atol: float = 1e-6
+) -> np.ndarray:
+    """Characters per class from characters per operation, checking constancy in each class.
+
+    Raises
+    ------
+    SymmetryError
+        When two operations of one class disagree; names the class and the operations.
+    """
+    n = len(labels)
+    first = np.full(n, -1, dtype=np.int64)
+    # the first operation of each class represents it
+    order = np.argsort(op_class, kind="stable")
+    cls_sorted = op_class[order]
+    starts = np.searchsorted(cls_sorted, np.arange(n))
+    present = starts < len(cls_sorted)
+    present[present] = cls_sorted[starts[present]] == np.arange(n)[present]
+    first[present] = order[starts[present]]
+    if not present.all():
+        missing = [labels[i] for i in np.flatnonzero(~present)]
+        raise SymmetryError(f"{what}: no detected operation falls into class(es) {missing}")
+    chars = per_op[first]
+    dev = np.abs(per_op - chars[op_class])
+    bad = dev > atol * np.maximum(1.0, np.abs(chars[op_class]))
+    if bad.any():
+        k = int(np.flatnonzero(bad)[0])
+        c = int(op_class[k])
+        members = np.flatnonzero(op_class == c)
+        raise SymmetryError(
+            f"{what}: characters disagree within class {labels[c]}: operation "
+            f"{int(first[c])} gives {per_op[first[c]]:.6g}, operation {k} gives "
+            f"{per_op[k]:.6g} (class operations {members.tolist()}); the tolerance may be "
+            "too loose for this structure"
+        )
+    return chars
+
+
+def build_representation(sym: SymmetryData, resolved: ResolvedBasis) -> Representation:
+    """Count, check per class and reduce a resolved basis on a structure with its group."""
+    basis = resolved.basis
+    chars_op, unshifted_op = count_characters(sym, resolved)
+    labels = tuple(c.label for c in sym.table.classes)
+    chars = per_class(chars_op, sym.op_class, labels, f"basis '{basis.name}'")
+    unshifted = per_class(unshifted_op, sym.op_class, labels, f"basis '{basis.name}'")
+    contributions: list = []
+    for k in range(len(labels)):
+        n = unshifted[k]
+        per_item = chars[k] / n if n else 0.0
+        if not resolved.uniform or (
+            basis.kind == "bond_vectors" and n and abs(abs(per_item) - 1) > 1e-9
+        ):
+            contributions.append(None)
+        else:
+            contributions.append(per_item)
+    irreps = sym.table.reduce(chars, what=f"basis '{basis.name}'")
+    return Representation(basis, chars, chars_op, irreps, unshifted, contributions, labels)
+
+
+_L_LABELS = "SPDFGHI"
+
+
+def single_atom_representation(resolved: ResolvedBasis) -> Representation:
+    """A single atom (K_h): representations labelled by angular momentum and parity.
+
+    Parameters
+    ----------
+    resolved : ResolvedBasis
+        The basis on the one-atom structure.
+
+    Raises
+    ------
+    BasisError
+        For a basis that has no meaning on one atom (π, user vectors).
+    """
+
+    def label(l: int) -> str:
+        return _L_LABELS[l] + ("g" if l % 2 == 0 else "u")
+
+    b = resolved.basis
+    irreps: dict[str, int] = {}
+    if b.kind == "atoms":
+        irreps = {"Sg": 1}
+    elif b.kind == "cartesian":
+        irreps = {"Pu": 1}
+    elif b.kind == "orbitals":
+        for l, c in enumerate(resolved.shell_counts[0]):
+            if c:
+                irreps[label(l)] = int(c)
+    elif b.kind in ("bonds", "bond_vectors"):
+        irreps = {}
+    else:
+        raise BasisError(f"basis '{b.kind}' has no meaning for a single atom")
+    dim = sum((2 * "SPDFGHI".index(k[0]) + 1) * v for k, v in irreps.items())
+    return Representation(
+        b, np.array([float(dim)]), np.array([float(dim)]), irreps, np.array([1.0]), [None], ("E",)
+    )

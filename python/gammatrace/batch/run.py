@@ -1,0 +1,386 @@
+"""Batches: many structures at once, as a table.
+
+The Rust core detects every structure's group and counts unshifted atoms for every operation in
+parallel (GIL released); here the results are grouped by point group and reduced with numpy, one
+vectorised pass per group, so there is no Python loop over structures in the numeric work.
+One bad structure never stops a batch: its row carries the error.
+
+Columns of the table (one row per structure, input order):
+``source, index, n_atoms, point_group, order, max_deviation, symmetry_number, chiral,
+gamma_vib, n_modes, n_fundamentals, n_ir, n_raman, error_type, error``.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Iterable, Iterator, Sequence
+from dataclasses import dataclass
+from typing import Any, Callable
+
+import numpy as np
+
+from .. import _core
+from ..analysis import _check_tol
+from ..errors import GammatraceError, InputError
+from ..group.symmetry import symmetry_number
+from ..io import FrameError, as_structure, read_xyz_raw
+from ..spectroscopy import activity_masks, format_irreps, reduce_vibrations
+from ..tables import LINEAR_SUBGROUP_N, get_table
+
+__all__ = [
+    "COLUMNS",
+    "Ragged",
+    "analyze_batch",
+    "iter_batch",
+    "ragged_from_file",
+    "ragged_from_structures",
+    "to_dataframe",
+]
+
+COLUMNS = (
+    "source",
+    "index",
+    "n_atoms",
+    "point_group",
+    "order",
+    "max_deviation",
+    "symmetry_number",
+    "chiral",
+    "gamma_vib",
+    "n_modes",
+    "n_fundamentals",
+    "n_ir",
+    "n_raman",
+    "error_type",
+    "error",
+)
+DEFAULT_CHUNK = 8192
+
+
+@dataclass
+class Ragged:
+    """Structures as ragged arrays: concatenated positions/numbers plus ``offsets``.
+
+    Attributes
+    ----------
+    positions : ``float64 (total_atoms, 3)``; numbers : ``int64 (total_atoms,)``;
+    offsets : ``int64 (n_structures + 1,)``; sources : list of str; indices : ``int64``;
+    errors : list of (type, message) or None, for frames that failed to read.
+    """
+
+    positions: np.ndarray
+    numbers: np.ndarray
+    offsets: np.ndarray
+    sources: list
+    indices: np.ndarray
+    errors: list
+
+    def __len__(self) -> int:
+        return len(self.offsets) - 1
+
+    def slice(self, a: int, b: int) -> Ragged:
+        """Structures a..b (offsets rebased to zero)."""
+        o = self.offsets[a : b + 1]
+        return Ragged(
+            self.positions[o[0] : o[-1]],
+            self.numbers[o[0] : o[-1]],
+            o - o[0],
+            self.sources[a:b],
+            self.indices[a:b],
+            self.errors[a:b],
+        )
+
+
+def ragged_from_structures(structures: Iterable[Any]) -> Ragged:
+    """Pack Structures (or anything :func:`~gammatrace.io.as_structure` takes) into a Ragged."""
+    pos, num, offs, srcs, idx, errs = [], [], [0], [], [], []
+    for k, item in enumerate(structures):
+        if isinstance(item, FrameError):
+            s_pos, s_num, err = np.zeros((0, 3)), np.zeros(0, np.int64), (item.type, item.message)
+            src, index = item.source, item.index
+        else:
+            try:
+                s = as_structure(item)
+                s_pos, s_num, err, src, index = s.positions, s.numbers, None, s.source, s.index
+            except GammatraceError as exc:
+                s_pos, s_num = np.zeros((0, 3)), np.zeros(0, np.int64)
+                err, src, index = (type(exc).__name__, str(exc)), "<input>", k
+        pos.append(s_pos)
+        num.append(s_num)
+        offs.append(offs[-1] + len(s_num))
+        srcs.append(src)
+        idx.append(index)
+        errs.append(err)
+    return Ragged(
+        np.ascontiguousarray(np.concatenate(pos) if pos else np.zeros((0, 3)), dtype=np.float64),
+        np.ascontiguousarray(np.concatenate(num) if num else np.zeros(0), dtype=np.int64),
+        np.asarray(offs, dtype=np.int64),
+        srcs,
+        np.asarray(idx, dtype=np.int64),
+        errs,
+    )
+
+
+def ragged_from_file(path: str | os.PathLike) -> Ragged:
+    """Read a multi-frame XYZ file into ragged arrays (Rust reader, no per-frame objects)."""
+    raw = read_xyz_raw(path)
+    n = len(raw["offsets"]) - 1
+    return Ragged(
+        raw["positions"],
+        raw["numbers"],
+        np.asarray(raw["offsets"], dtype=np.int64),
+        [os.fspath(path)] * n,
+        np.arange(n, dtype=np.int64),
+        list(raw["errors"]),
+    )
+
+
+def _empty_columns(n: int) -> dict:
+    return {
+        "n_atoms": np.zeros(n, np.int64),
+        "point_group": np.full(n, "", dtype=object),
+        "order": np.full(n, -1, np.int64),
+        "max_deviation": np.full(n, np.nan),
+        "symmetry_number": np.zeros(n, np.int64),
+        "chiral": np.zeros(n, bool),
+        "gamma_vib": np.full(n, "", dtype=object),
+        "n_modes": np.zeros(n, np.int64),
+        "n_fundamentals": np.zeros(n, np.int64),
+        "n_ir": np.zeros(n, np.int64),
+        "n_raman": np.zeros(n, np.int64),
+        "error_type": np.full(n, "", dtype=object),
+        "error": np.full(n, "", dtype=object),
+    }
+
+
+def _format_rows(table, mult: np.ndarray) -> np.ndarray:
+    labels = [ir.label for ir in table.irreps]
+    uniq, inverse = np.unique(mult, axis=0, return_inverse=True)
+    texts = np.array(
+        [format_irreps({labels[j]: int(v) for j, v in enumerate(row) if v}) for row in uniq],
+        dtype=object,
+    )
+    return texts[np.asarray(inverse).reshape(-1)]
+
+
+def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, cols: dict):
+    """Vectorised classes, Γ_3N, Γ_vib and activity for all rows of one point group."""
+    table = get_table(group)
+    h = len(table.operations)
+    start = raw["op_offsets"][rows]
+    if np.any(raw["op_offsets"][rows + 1] - start != h):
+        raise GammatraceError(f"{group}: operation count differs from the table's {h}")
+    idx = start[:, None] + np.arange(h)[None, :]
+    # detection lists each group's operations in canonical order (operation k is canonical
+    # operation k), so the classes are the table's own
+    cls = np.broadcast_to(table.operation_class, idx.shape)
+    # Γ_3N per operation: unshifted atoms × the core's per-atom contribution of x, y, z (l = 1)
+    per_atom = _core.orbital_contributions(
+        np.ascontiguousarray(raw["proper"][idx].reshape(-1)),
+        np.ascontiguousarray(raw["angle"][idx].reshape(-1)),
+        1,
+    ).reshape(idx.shape)
+    chi_op = raw["unshifted"][idx].astype(np.float64) * per_atom
+    k, nc = len(rows), len(table.classes)
+    flat = (np.arange(k)[:, None] * nc + cls).reshape(-1)
+    sums = np.bincount(flat, weights=chi_op.reshape(-1), minlength=k * nc).reshape(k, nc)
+    sizes = np.asarray(table.class_sizes, dtype=np.float64)
+    chars = sums / sizes
+    spread = np.abs(chi_op - np.take_along_axis(chars, cls, axis=1)).max(axis=1)
+    bad = spread > 1e-6
+    # the one Γ_vib reduction single analyses use too, for all rows at once
+    mult, modes, ok, _ = reduce_vibrations(table, chars, n_atoms[rows])
+    bad |= ~ok
+    good = ~bad
+    r = rows[good]
+    m = mult[good]
+    ir_mask, raman_mask = activity_masks(table)
+    cols["point_group"][r] = group
+    cols["order"][r] = -1 if table.is_linear else h
+    cols["n_modes"][r] = modes[good]
+    cols["n_fundamentals"][r] = m.sum(axis=1)
+    cols["n_ir"][r] = m[:, ir_mask].sum(axis=1)
+    cols["n_raman"][r] = m[:, raman_mask].sum(axis=1)
+    cols["gamma_vib"][r] = _format_rows(table, m)
+    nprop = raw["n_proper"][r]
+    cols["symmetry_number"][r] = symmetry_number(table, nprop)
+    cols["chiral"][r] = nprop == h
+    for row in rows[bad]:
+        cols["error_type"][row] = "ReductionError"
+        cols["error"][row] = (
+            f"Γ_vib of this {group} structure does not reduce to non-negative integers "
+            "(characters inconsistent within a class: tolerance too loose?)"
+        )
+
+
+def _run_chunk(chunk: Ragged, tol: float, n_threads: int) -> dict:
+    n = len(chunk)
+    cols = _empty_columns(n)
+    cols["source"] = np.asarray(chunk.sources, dtype=object)
+    cols["index"] = chunk.indices.copy()
+    cols["n_atoms"] = np.diff(chunk.offsets)
+    raw = _core.find_point_groups_batch(
+        chunk.positions,
+        chunk.numbers,
+        np.ascontiguousarray(chunk.offsets),
+        tol,
+        LINEAR_SUBGROUP_N,
+        n_threads,
+    )
+    groups = np.asarray(raw["point_group"], dtype=object)
+    cols["max_deviation"] = np.asarray(raw["max_deviation"], dtype=np.float64)
+    for g in np.unique(groups[groups != ""]):
+        rows = np.flatnonzero(groups == g)
+        if g == "K_h":
+            cols["point_group"][rows] = g
+            cols["symmetry_number"][rows] = 1
+            continue
+        try:
+            _reduce_group(str(g), rows, raw, cols["n_atoms"], cols)
+        except GammatraceError as exc:
+            cols["error_type"][rows] = type(exc).__name__
+            cols["error"][rows] = str(exc)
+    for k, err in enumerate(raw["errors"]):
+        if err is not None:
+            cols["error_type"][k], cols["error"][k] = err
+    for k, err in enumerate(chunk.errors):  # read errors win over "no atoms"
+        if err is not None:
+            cols["error_type"][k], cols["error"][k] = err
+            cols["point_group"][k] = ""
+    return cols
+
+
+def iter_batch(
+    data: Ragged,
+    *,
+    tol: float = 0.01,
+    n_threads: int = 0,
+    chunk_size: int = DEFAULT_CHUNK,
+    progress: bool | Callable[[int], None] = False,
+) -> Iterator[dict]:
+    """Analyse a :class:`Ragged` chunk by chunk, yielding a dict of columns per chunk.
+
+    Between chunks control returns to Python, so Ctrl-C stops cleanly after the last
+    completed chunk and a writer can flush what is done.
+    """
+    tol = _check_tol(tol)
+    if chunk_size < 1:
+        raise InputError(f"chunk_size: must be at least 1, got {chunk_size}")
+    bar = None
+    if progress is True:
+        try:
+            from tqdm import tqdm
+
+            bar = tqdm(total=len(data), unit="structure", smoothing=0.1)
+        except ImportError:
+            bar = None
+    try:
+        for a in range(0, len(data), chunk_size):
+            b = min(a + chunk_size, len(data))
+            cols = _run_chunk(data.slice(a, b), float(tol), int(n_threads))
+            if bar is not None:
+                bar.update(b - a)
+            elif callable(progress):
+                progress(b - a)
+            yield cols
+    finally:
+        if bar is not None:
+            bar.close()
+
+
+def _concat(parts: Sequence[dict]) -> dict:
+    if not parts:
+        return {k: v for k, v in _empty_columns(0).items()} | {
+            "source": np.zeros(0, dtype=object),
+            "index": np.zeros(0, np.int64),
+        }
+    return {k: np.concatenate([p[k] for p in parts]) for k in COLUMNS}
+
+
+def analyze_batch(
+    structures: Any,
+    *,
+    tol: float = 0.01,
+    n_threads: int = 0,
+    chunk_size: int = DEFAULT_CHUNK,
+    progress: bool = False,
+    output: str = "pandas",
+):
+    """Analyse many structures in parallel and return one row per structure.
+
+    Parameters
+    ----------
+    structures
+        A :class:`Ragged`, a path to a multi-frame XYZ file, or an iterable of Structures,
+        ``ase.Atoms`` or ``(symbols, positions)`` pairs.
+    tol : float
+        Distance tolerance in ångström.
+    n_threads : int
+        Worker threads in the core (0 = all cores). Results do not depend on it.
+    chunk_size : int
+        Structures per call into the core (progress and Ctrl-C are handled between chunks).
+    progress : bool
+        Show a tqdm progress bar (if tqdm is installed).
+    output : {"pandas", "dict", "arrow"}
+        The table type returned.
+
+    Returns
+    -------
+    pandas.DataFrame, dict of numpy arrays, or pyarrow.Table
+        Columns as in :data:`COLUMNS`; failed structures have ``error_type``/``error`` set.
+    """
+    data = _as_ragged(structures)
+    cols = _concat(
+        list(
+            iter_batch(data, tol=tol, n_threads=n_threads, chunk_size=chunk_size, progress=progress)
+        )
+    )
+    return convert(cols, output)
+
+
+def _as_ragged(structures: Any) -> Ragged:
+    if isinstance(structures, Ragged):
+        return structures
+    if isinstance(structures, (str, os.PathLike)):
+        return ragged_from_file(structures)
+
+    def items():
+        for s in structures:
+            if isinstance(s, tuple) and len(s) == 2:
+                yield as_structure(s[0], s[1])
+            else:
+                yield s
+
+    return ragged_from_structures(items())
+
+
+def convert(cols: dict, output: str = "pandas"):
+    """Turn a dict of columns into the requested table type."""
+    if output == "dict":
+        return cols
+    if output == "pandas":
+        return to_dataframe(cols)
+    if output == "arrow":
+        import pyarrow as pa
+
+        return pa.table({k: _arrow_col(k, v) for k, v in cols.items()})
+    raise InputError(f"output: expected 'pandas', 'dict' or 'arrow', got {output!r}")
+
+
+def _arrow_col(name: str, values: np.ndarray):
+    import pyarrow as pa
+
+    if values.dtype == object:
+        return pa.array([str(v) for v in values], type=pa.string())
+    return pa.array(values)
+
+
+def to_dataframe(cols: dict):
+    """A pandas DataFrame of batch columns (needs pandas: ``pip install 'gammatrace[table]'``)."""
+    try:
+        import pandas as pd
+    except ImportError:
+        raise InputError("output='pandas' needs pandas: pip install 'gammatrace[table]'") from None
+    frame = pd.DataFrame({k: cols[k] for k in COLUMNS})
+    frame["order"] = frame["order"].astype("Int64").where(frame["order"] >= 0, None)
+    return frame

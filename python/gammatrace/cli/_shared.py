@@ -1,0 +1,102 @@
+"""What every command shares, defined once: the common options, the writer (JSON rows, UTF-8
+text on stdout), the one stderr error line, and reading frames with failures kept in place.
+
+Command modules import this and the layers below; never :mod:`gammatrace.cli` itself.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import traceback
+from collections.abc import Sequence
+from typing import Any
+
+from ..analysis import Analysis, analyze
+from ..errors import GammatraceError
+from ..group import DEFAULT_TOL
+from ..io import FrameError, read_structures
+
+__all__ = [
+    "add_format",
+    "add_tolerance",
+    "dump",
+    "error_record",
+    "fail",
+    "first_structure",
+    "skip_unread",
+    "structures",
+    "write",
+]
+
+
+def add_tolerance(parser: argparse.ArgumentParser) -> None:
+    """``--tol DIST`` (Å, default the core's tolerance)."""
+    parser.add_argument(
+        "--tol",
+        type=float,
+        default=DEFAULT_TOL,
+        help=f"distance tolerance in Å (default {DEFAULT_TOL})",
+    )
+
+
+def add_format(parser: argparse.ArgumentParser) -> None:
+    """``--format text|json``."""
+    parser.add_argument("--format", choices=("text", "json"), default="text")
+
+
+def write(text: str) -> None:
+    """Write text to stdout as UTF-8, whatever the terminal's encoding."""
+    sys.stdout.buffer.write(text.encode("utf-8"))
+
+
+def dump(obj: Any) -> str:
+    """One JSON row: UTF-8 kept (Greek labels, ∞), NaN refused."""
+    return json.dumps(obj, ensure_ascii=False, allow_nan=False)
+
+
+def fail(exc: BaseException, show_traceback: bool, where: str = "") -> None:
+    """The one stderr line of a failure (``--traceback`` adds the full story)."""
+    if show_traceback:
+        traceback.print_exception(type(exc), exc, exc.__traceback__, file=sys.stderr)
+    print(f"gammatrace: {type(exc).__name__}: {where}{exc}", file=sys.stderr)
+
+
+def error_record(source: str, index: int, exc: BaseException) -> dict:
+    """The JSON row of a structure that failed: ``{"source", "index", "error"}``."""
+    return {
+        "source": source,
+        "index": index,
+        "error": {"type": type(exc).__name__, "message": str(exc)},
+    }
+
+
+def structures(paths: Sequence[str]):
+    """(source, index, Structure or FrameError) for every frame of every path."""
+    for path in paths:
+        try:
+            frames = read_structures(path)
+        except GammatraceError as exc:
+            yield str(path), 0, FrameError(str(path), 0, type(exc).__name__, str(exc))
+            continue
+        for fr in frames:
+            yield fr.source, fr.index, fr
+
+
+def skip_unread(item: Any, fmt: str) -> bool:
+    """Write a frame that could not be read (JSON record and one stderr line); True if so."""
+    if not isinstance(item, FrameError):
+        return False
+    if fmt == "json":
+        write(dump(item.to_dict()) + "\n")
+    print(
+        f"gammatrace: {item.type}: {item.source} [frame {item.index}]: {item.message}",
+        file=sys.stderr,
+    )
+    return True
+
+
+def first_structure(path: str, tol: float) -> Analysis:
+    """The analysis of the first frame of ``path`` (the one-structure commands)."""
+    return analyze(path, tol=tol, frame=0)

@@ -1,0 +1,25 @@
+"""The group layer: a structure with its point group, above ``io`` and ``tables``.
+
+- :mod:`.symmetry` — :class:`SymmetryData`, the one value object every layer above reads
+  (structure, operations in canonical order, classes, permutations, table);
+- :mod:`.orbits` — symmetry-equivalent atoms and their site groups;
+- :mod:`.stabilisers` — where the operations send given atoms;
+- :mod:`.irreps` — exact operations and reference irreducible matrices (for the matrix code);
+- :mod:`.harmonics` — real spherical harmonics and their rotation matrices.
+"""
+
+from __future__ import annotations
+
+from .orbits import Orbit, orbits, site_group_names
+from .symmetry import DEFAULT_TOL, VERIFY_ALL_LIMIT, SymmetryData, as_symmetry, symmetry_number
+
+__all__ = [
+    "DEFAULT_TOL",
+    "VERIFY_ALL_LIMIT",
+    "Orbit",
+    "SymmetryData",
+    "as_symmetry",
+    "orbits",
+    "site_group_names",
+    "symmetry_number",
+]

@@ -1,0 +1,76 @@
+"""Sets of symmetry-equivalent atoms and the site group of each."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .. import _core
+from ..tables.subgroups import identify_group
+from .stabilisers import atom_images
+from .symmetry import SymmetryData
+
+__all__ = ["Orbit", "orbits", "site_group_names"]
+
+
+@dataclass(frozen=True)
+class Orbit:
+    """A set of symmetry-equivalent atoms.
+
+    Attributes
+    ----------
+    atoms : list of int
+        Zero-based atom indices, ascending.
+    size : int
+        Number of atoms.
+    site_order : int or None
+        Order of the site group (the stabiliser of one atom): group order / orbit size; None
+        for the infinite groups.
+    site_group : str or None
+        Schoenflies name of the site group, when known.
+    """
+
+    atoms: list
+    size: int
+    site_order: int | None
+    site_group: str | None
+
+    def to_dict(self) -> dict:
+        """``{"size", "site_group", "atoms"}`` as in shared/INTERFACE.md."""
+        return {"size": self.size, "site_group": self.site_group, "atoms": self.atoms}
+
+
+def orbits(sym: SymmetryData) -> list[Orbit]:
+    """Sets of symmetry-equivalent atoms, in order of their first atom, with site groups.
+
+    Costs one pass over the verified permutations (the generators' for huge structures);
+    the site group of each orbit comes from where the group's operations send one of its
+    atoms, composed through the multiplication table (no further pass over the atoms).
+    """
+    perms = np.ascontiguousarray(sym.generator_permutations)
+    ids = np.asarray(_core.orbits(sym.n_atoms, perms), dtype=np.int64)
+    order = np.argsort(ids, kind="stable")
+    counts = np.bincount(ids)
+    splits = np.split(order, np.cumsum(counts)[:-1])
+    h = sym.group_order
+    names = site_group_names(sym, np.array([a[0] for a in splits], dtype=np.int64))
+    return [
+        Orbit(atoms.tolist(), len(atoms), h // len(atoms) if h else None, name)
+        for atoms, name in zip(splits, names)
+    ]
+
+
+def site_group_names(sym: SymmetryData, representatives: np.ndarray) -> list:
+    """Schoenflies names of the stabilisers of the given atoms (one per atom)."""
+    images = atom_images(sym, representatives)  # (h, k), rows = canonical operations
+    ops = sym.table.operations
+    cache: dict = {}
+    out = []
+    for j, atom in enumerate(representatives):
+        stab = np.flatnonzero(images[:, j] == atom)
+        key = stab.tobytes()
+        if key not in cache:
+            cache[key] = identify_group(ops[stab])
+        out.append(cache[key])
+    return out
