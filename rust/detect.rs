@@ -18,7 +18,8 @@
 //!    Nothing limits n.
 //! 4. The operations found must close under multiplication (checked exactly through the
 //!    images of a and b); the group is named from its content (orders of the rotations, number
-//!    of axes of order ≥ 3, σh, mirrors, inversion).
+//!    of axes of order ≥ 3, σh, mirrors, inversion) by `naming::name_group`, the namer that
+//!    also names any closed set of matrices (`naming::identify_group`).
 //! 5. The standard frame follows DEVELOPERS.md "Standard orientation" (tie rules by counting
 //!    atoms on axes and planes, then by moments of inertia); the reported operations are the
 //!    group's ideal operations in that frame, rotated back to the input frame, so they form a
@@ -33,6 +34,7 @@
 
 pub mod canonical;
 mod frame;
+pub mod naming;
 
 use crate::error::{Error, Result};
 use crate::lookup::{find_overlap, map_atoms, Grid};
@@ -315,7 +317,14 @@ fn detect_general(
 ) -> Result<Symmetry> {
     let (raw, a, b) = enumerate(ctx, factor * ctx.tol, extra, sampled)?;
     let raw = close_and_order(ctx, raw, a, b)?;
-    let fam = identify(&raw)?;
+    let elems: Vec<naming::Element> = raw
+        .iter()
+        .map(|o| naming::Element {
+            op: o.op,
+            order: o.order,
+        })
+        .collect();
+    let fam = naming::name_group(&elems)?;
     let fr = frame::standard_frame(ctx, fam, &raw)?;
     finish(ctx, fam, fr, center, opts)
 }
@@ -752,91 +761,6 @@ fn maximal_closed_subset(table: &[Option<u32>], h: usize, identity: usize) -> Ve
 
 fn parallel(u: &Vec3, v: &Vec3) -> bool {
     dot(u, v).abs() > 0.99
-}
-
-/// Name the group from the content of the raw operations.
-fn identify(raw: &[RawOp]) -> Result<Family> {
-    let h = raw.len();
-    let rot: Vec<&RawOp> = raw.iter().filter(|o| o.proper).collect();
-    let h_rot = rot.len();
-    let improper = h > h_rot;
-    let bad = |what: &str| Error::GroupClosure {
-        reason: format!("{h} operations ({h_rot} proper) do not form a point group: {what}"),
-    };
-    if improper && h != 2 * h_rot {
-        return Err(bad("proper and improper parts differ in size"));
-    }
-    let mirrors: Vec<&RawOp> = raw
-        .iter()
-        .filter(|o| !o.proper && o.order == 2 && o.op.angle < 90.0)
-        .collect();
-    let inversion = raw
-        .iter()
-        .any(|o| !o.proper && o.order == 2 && o.op.angle >= 90.0);
-    let mut high: Vec<Vec3> = Vec::new();
-    for o in rot.iter().filter(|o| o.order >= 3) {
-        if !high.iter().any(|u| parallel(u, &o.op.axis)) {
-            high.push(o.op.axis);
-        }
-    }
-    if high.len() >= 2 {
-        return match (h_rot, h, inversion) {
-            (12, 12, _) => Ok(Family::T),
-            (12, 24, true) => Ok(Family::Th),
-            (12, 24, false) => Ok(Family::Td),
-            (24, 24, _) => Ok(Family::O),
-            (24, 48, _) => Ok(Family::Oh),
-            (60, 60, _) => Ok(Family::I),
-            (60, 120, _) => Ok(Family::Ih),
-            _ => Err(bad("several high-order axes but no polyhedral group")),
-        };
-    }
-    let n = rot.iter().map(|o| o.order).max().unwrap_or(1);
-    if n == 1 {
-        return Ok(match (improper, mirrors.is_empty()) {
-            (false, _) => Family::C1,
-            (true, false) => Family::Cs,
-            (true, true) => Family::Ci,
-        });
-    }
-    let c2_axes: Vec<Vec3> = rot
-        .iter()
-        .filter(|o| o.order == 2)
-        .map(|o| o.op.axis)
-        .collect();
-    let principal: Vec<Vec3> = if n >= 3 {
-        rot.iter()
-            .filter(|o| o.order == n)
-            .map(|o| o.op.axis)
-            .take(1)
-            .collect()
-    } else {
-        c2_axes.clone()
-    };
-    let sigma_h = mirrors
-        .iter()
-        .any(|m| principal.iter().any(|u| parallel(u, &m.op.axis)));
-    if h_rot == n {
-        Ok(if !improper {
-            Family::Cn(n)
-        } else if sigma_h {
-            Family::Cnh(n)
-        } else if !mirrors.is_empty() {
-            Family::Cnv(n)
-        } else {
-            Family::S2n(2 * n)
-        })
-    } else if h_rot == 2 * n {
-        Ok(if !improper {
-            Family::Dn(n)
-        } else if sigma_h {
-            Family::Dnh(n)
-        } else {
-            Family::Dnd(n)
-        })
-    } else {
-        Err(bad("the rotations form neither Cn nor Dn"))
-    }
 }
 
 #[cfg(test)]

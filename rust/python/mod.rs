@@ -108,6 +108,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(batch::find_point_groups_batch, m)?)?;
     m.add_function(wrap_pyfunction!(detect::canonical_group, m)?)?;
     m.add_function(wrap_pyfunction!(detect::locate_operations, m)?)?;
+    m.add_function(wrap_pyfunction!(detect::identify_group, m)?)?;
     m.add_class::<detect::Detection>()?;
     m.add_class::<detect::GroupData>()?;
     m.add("DEFAULT_TOLERANCE", crate::detect::DEFAULT_TOLERANCE)?;
