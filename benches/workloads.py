@@ -14,8 +14,8 @@ import os
 
 import numpy as np
 from gammatrace import get_table
-from gammatrace.io.builders import fcc_cluster, mackay_icosahedron, orbit_structure
 from gammatrace.io import Structure, write_xyz
+from gammatrace.io.builders import fcc_cluster, mackay_icosahedron, orbit_structure
 
 SEED = 20260707
 TOL = 0.01

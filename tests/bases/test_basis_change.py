@@ -6,7 +6,6 @@ import numpy as np
 import pytest
 import scipy.sparse as sp
 from _symmetry_helpers import PHI, TABLES, build, random_rotation, symmetry_data
-from gammatrace.group import harmonics
 from gammatrace.basis_change import (
     Basis,
     SymmetryData,
@@ -23,6 +22,7 @@ from gammatrace.basis_change import (
     symmetry_adapted_basis,
 )
 from gammatrace.errors import BasisError, InputError, SymmetryError
+from gammatrace.group import harmonics
 
 # One structure per group: a few special orbits plus one generic orbit (seeds in the standard
 # frame of DEVELOPERS.md).

@@ -15,9 +15,9 @@ from gammatrace.basis_change import (
     representation_matrix,
     symmetry_adapted_basis,
 )
-from gammatrace.io.builders import orbit_structure
 from gammatrace.cli import main
 from gammatrace.io import Structure, write_xyz
+from gammatrace.io.builders import orbit_structure
 
 
 def ferrocene_like() -> Structure:

@@ -16,7 +16,6 @@ from collections import Counter
 import gammatrace as gt
 import numpy as np
 import pytest
-from gammatrace.io import builders
 from gammatrace.descent import (
     check_induced,
     distortion_ladder,
@@ -24,7 +23,7 @@ from gammatrace.descent import (
     site_analysis,
 )
 from gammatrace.errors import BasisError, SymmetryError
-from gammatrace.io import Structure
+from gammatrace.io import Structure, builders
 from gammatrace.tables import correlate, get_table
 from hypothesis import assume, given
 from hypothesis import strategies as st

@@ -17,10 +17,10 @@ import numpy as np
 import pytest
 from conftest import random_rotation
 from gammatrace.batch import COLUMNS, analyze_batch
-from gammatrace.io.builders import mackay_icosahedron, orbit_structure
+from gammatrace.batch.screen import screen
 from gammatrace.cli import main
 from gammatrace.io import Structure, write_xyz
-from gammatrace.batch.screen import screen
+from gammatrace.io.builders import mackay_icosahedron, orbit_structure
 
 GROUPS = ["C2v", "C3v", "D3h", "D6h", "Td", "Oh", "Ih", "S8", "C5h", "D4d", "Cs", "C1", "T"]
 BAD_FRAME = "3\na frame with a bad coordinate\nO 0 0 0\nH 0 x 1\nH 0 1 0\n"
