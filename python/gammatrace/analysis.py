@@ -20,9 +20,9 @@ from . import _core
 from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
 from .errors import GammatraceError, InputError, SymmetryError
 from .io import FrameError, Structure, as_structure, element_data, read_structures
-from .representations import Representation, build_representation, single_atom_representation
+from .representations import Representation, build_representation
 from .stabilisers import atom_images
-from .tables import LINEAR_SUBGROUP_N, ClassInfo, get_table
+from .tables import LINEAR_SUBGROUP_N, get_table
 
 __all__ = [
     "DEFAULT_TOL",
@@ -41,8 +41,6 @@ MIN_TOL, MAX_TOL = 1e-6, 10.0
 #: above it detection verifies E and the generators, and the other permutations are mapped
 #: on first use (:attr:`Analysis.permutations`).
 VERIFY_ALL_LIMIT: int = int(_core.VERIFY_ALL_LIMIT)
-#: Group name reported for a single atom.
-ATOM_GROUP = "K_h"
 DEFAULT_BASES = ("atoms", "cartesian")
 
 
@@ -136,11 +134,6 @@ class Analysis:
         #: ``int64 (h,)``: which of the table's canonical operations each detected operation
         #: is, as the core reports it (detection lists them in canonical order).
         self.canonical_index: np.ndarray = raw.canonical_index
-        if self.point_group == ATOM_GROUP:
-            self.table = None
-            self.op_class = np.zeros(len(self.operation_matrices), dtype=np.int64)
-            self.classes = [ClassInfo("E", 1, True, 0.0)]
-            return
         self.table = get_table(self.point_group)
         self.op_class = self.table.operation_class[self.canonical_index]
         self.classes = list(self.table.classes)
@@ -154,18 +147,17 @@ class Analysis:
     @property
     def is_linear(self) -> bool:
         """True for C∞v and D∞h."""
-        return self.table is not None and self.table.is_linear
+        return self.table.is_linear
 
     @property
     def order(self) -> int | None:
         """Group order; None for the infinite groups (linear molecules, a single atom)."""
-        if self.table is None or self.table.is_linear:
-            return None
-        return len(self.operation_matrices)
+        return self.table.order
 
     @cached_property
     def operations(self) -> list[Operation]:
-        """All operations (for linear groups: those of the finite subgroup reported)."""
+        """All operations (for linear groups: those of the finite subgroup reported; for a
+        single atom: those of the sampling of K_h)."""
         labels = [c.label for c in self.classes]
         return [
             Operation(
@@ -229,19 +221,13 @@ class Analysis:
     def symmetry_number(self) -> int:
         """Rotational symmetry number σ: the number of proper operations.
 
-        1 for C∞v, 2 for D∞h, 1 for a single atom.
+        1 for C∞v, 2 for D∞h, 1 for a single atom (the table's).
         """
-        if self.table is None:
-            return 1
-        if self.table.is_linear:
-            return 2 if self.point_group == "D∞h" else 1
-        return int(np.count_nonzero(self.proper))
+        return self.table.symmetry_number
 
     @property
     def chiral(self) -> bool:
         """True when the group has no improper operation (no σ, i or S_n)."""
-        if self.table is None:
-            return False
         return bool(np.all(self.proper))
 
     @cached_property
@@ -285,11 +271,7 @@ class Analysis:
         cache = self.__dict__.setdefault("_rep_cache", {})
         if b not in cache:
             resolved = self.resolve_basis(b)
-            cache[b] = (
-                single_atom_representation(resolved)
-                if self.table is None
-                else build_representation(self, resolved)
-            )
+            cache[b] = build_representation(self, resolved)
         return cache[b]
 
     def resolve_basis(self, basis: Any = "cartesian") -> ResolvedBasis:
@@ -321,12 +303,16 @@ class Analysis:
         Raises
         ------
         SymmetryError
-            For a single atom (no finite group) or when only generators were verified.
+            For a single atom: its group K_h is sampled by rotations about one axis, whose
+            projections do not separate the irreps of O(3).
         """
         from .basis_change import SymmetryData
 
-        if self.table is None:
-            raise SymmetryError("a single atom has no finite group for a change of basis")
+        if self.table.is_spherical:
+            raise SymmetryError(
+                "a single atom (K_h) has no finite group for a change of basis: its group is "
+                "sampled by rotations about one axis, which do not separate the irreps of O(3)"
+            )
         s = self.structure
         return SymmetryData(
             s.positions,
@@ -396,9 +382,12 @@ class Analysis:
         ]
 
     def _site_groups(self, representatives: np.ndarray) -> list:
-        """Schoenflies names of the stabilisers of the given atoms."""
-        if self.table is None:
-            return [ATOM_GROUP] * len(representatives)
+        """Schoenflies names of the stabilisers of the given atoms.
+
+        A stabiliser that is the whole group takes the group's name (C∞v, D∞h and K_h
+        included, never that of their finite stand-in); half of D∞h's stand-in, the site of
+        an atom off the centre of a linear molecule, is C∞v.
+        """
         from .tables.subgroups import identify_group
 
         images = atom_images(
@@ -411,7 +400,12 @@ class Analysis:
             stab = np.flatnonzero(images[:, j] == atom)
             key = stab.tobytes()
             if key not in cache:
-                cache[key] = identify_group(ops[stab])
+                if len(stab) == len(ops):
+                    cache[key] = self.point_group
+                elif self.is_linear and 2 * len(stab) == len(ops):
+                    cache[key] = "C∞v"
+                else:
+                    cache[key] = identify_group(ops[stab])
             out.append(cache[key])
         return out
 

@@ -2,8 +2,8 @@
 
 IR-active irreps transform as x, y or z; Raman-active ones as a quadratic function (read from the
 character table's basis functions). For linear molecules only Rx and Ry are rotations (3N − 5
-modes). Centrosymmetric structures obey mutual exclusion: no fundamental is both IR and Raman
-active.
+modes), and a single atom (K_h) has none (3N − 3 = 0 modes). Centrosymmetric structures obey
+mutual exclusion: no fundamental is both IR and Raman active.
 """
 
 from __future__ import annotations
@@ -28,7 +28,7 @@ class Vibrations:
     irreps : dict
         Γ_vib: Mulliken label -> multiplicity.
     modes : int
-        Number of vibrational degrees of freedom (3N − 6, or 3N − 5 when linear).
+        Number of vibrational degrees of freedom (3N − 6, 3N − 5 when linear, 0 for an atom).
     ir_active, raman_active : dict
         The IR- and Raman-active part of Γ_vib.
     n_fundamentals : int
@@ -72,14 +72,26 @@ def format_irreps(irreps: dict) -> str:
     return " + ".join(f"{n if n != 1 else ''}{label}" for label, n in irreps.items())
 
 
-def external_characters(table) -> np.ndarray:
-    """Characters of Γ_trans + Γ_rot per class (for a linear group only Rx, Ry rotate).
+def rotational_freedom(table) -> int:
+    """Rotational degrees of freedom of a structure of this group: 3, 2 for a linear group
+    (only Rx, Ry), 0 for K_h (a single atom: no rotation moves it). The one place that says so.
+    """
+    if table.is_spherical:
+        return 0
+    return 2 if table.is_linear else 3
 
-    Γ_vib = Γ_3N − this; shared by single analyses and batches.
+
+def external_characters(table) -> np.ndarray:
+    """Characters of Γ_trans + Γ_rot per class (see :func:`rotational_freedom`).
+
+    Γ_vib = Γ_3N − this; shared by single analyses, batches and the site-symmetry route.
     """
     trans = np.asarray(table.vector_characters, dtype=np.float64)
+    free = rotational_freedom(table)
+    if free == 0:
+        return trans
     rot = np.asarray(table.rotation_characters, dtype=np.float64)
-    if table.is_linear:
+    if free == 2:
         # Rotation about the molecular axis is not a degree of freedom: drop the Rz irrep.
         rz = [ir for ir in table.irreps if "Rz" in ir.functions]
         rot = rot - np.asarray(rz[0].characters, dtype=np.float64)
@@ -87,9 +99,10 @@ def external_characters(table) -> np.ndarray:
 
 
 def vibration_count(table, n_atoms) -> np.ndarray:
-    """3N − 6 (3N − 5 for a linear group; 0 for one atom) for each entry of ``n_atoms``."""
+    """3N − 3 − rotations: 3N − 6, 3N − 5 for a linear group, 0 for one atom (K_h), for
+    each entry of ``n_atoms``."""
     n = np.asarray(n_atoms, dtype=np.int64)
-    return np.where(n > 1, 3 * n - (5 if table.is_linear else 6), 0)
+    return 3 * n - 3 - rotational_freedom(table)
 
 
 def vibrations(analysis: Analysis) -> Vibrations:
@@ -102,8 +115,6 @@ def vibrations(analysis: Analysis) -> Vibrations:
     """
     n = analysis.n_atoms
     table = analysis.table
-    if table is None:  # a single atom: no vibrations
-        return Vibrations({}, 0, {}, {}, 0, 0, 0, False, np.zeros(1))
     gamma_3n = analysis.representation("cartesian").characters
     chars = gamma_3n - external_characters(table)
     modes = int(vibration_count(table, np.array([n]))[0])
