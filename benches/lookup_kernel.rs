@@ -52,7 +52,7 @@ fn lerp3(terms: &[(f64, &Vec3)]) -> Vec3 {
 }
 
 /// A Mackay icosahedron (centre + `n_shells` shells of 10k² + 2 atoms), nearest-neighbour
-/// distance `SPACING` Å: the same construction as `gammatrace.builders.mackay_icosahedron`.
+/// distance `SPACING` Å: the same construction as `gammatrace.io.builders.mackay_icosahedron`.
 fn mackay(n_shells: usize) -> Vec<Vec3> {
     let v2 = icosahedron_vertices();
     let v: Vec<Vec3> = v2

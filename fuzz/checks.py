@@ -46,8 +46,6 @@ def check_analysis(numbers: np.ndarray, positions: np.ndarray, tol: float = gt.D
     except gt.GammatraceError as exc:
         assert str(exc)
         return None
-    if res.point_group == "K_h":
-        return res
     n = res.n_atoms
     dims = {ir.label: ir.dim for ir in res.table.irreps}
     try:

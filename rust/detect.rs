@@ -4,7 +4,7 @@
 //! alone):
 //!
 //! 1. Validate; centre on the centre of mass; build the cell grid; reject overlapping atoms.
-//! 2. One atom → K_h. Atoms all within tol/2 of one line through the centre (the axis of
+//! 2. One atom → K_h, reported through C_M × Ci (M = `linear_n`). Atoms all within tol/2 of one line through the centre (the axis of
 //!    least inertia) → C∞v or D∞h, reported through C_Mv / D_Md (M = `linear_n`).
 //! 3. Otherwise enumerate the whole group directly. Pick a reference atom `a` (among atoms at
 //!    ≥ half the largest radius, the one whose *window* — same element, radius within 2·tol —
@@ -90,7 +90,7 @@ pub struct Symmetry {
     /// Rows are the standard x, y, z axes in input coordinates (orthonormal, det +1).
     pub frame: [[f64; 3]; 3],
     /// All operations of the (finite) group, matrices in the input frame; ops[0] is E.
-    /// C∞v / D∞h: the operations of C_Mv / D_Md.
+    /// C∞v / D∞h: the operations of C_Mv / D_Md; K_h: of C_M × Ci.
     pub ops: Vec<PointOp>,
     /// Conjugacy classes as indices into `ops` (classes[0] = [0]).
     pub classes: Vec<Vec<usize>>,
@@ -100,7 +100,7 @@ pub struct Symmetry {
     pub canonical_index: Vec<usize>,
     /// Conjugacy class of each operation: the smallest operation index in its class.
     pub class_of: Vec<usize>,
-    /// Indices of a generating set of `ops` (empty for C1 and K_h).
+    /// Indices of a generating set of `ops` (empty for C1).
     pub generators: Vec<usize>,
     /// Indices of the operations verified against the atoms: E first, then all the others or
     /// (huge structures) the generators.
@@ -196,7 +196,7 @@ pub fn find_point_group(
         inertia,
     };
     if positions.len() == 1 {
-        return Ok(single_atom(center));
+        return single_atom(center, opts);
     }
     let (_, axes) = structure::principal_axes(&inertia);
     let line = axes[0];
@@ -280,20 +280,32 @@ pub fn map_operations(
     Ok((perms, devs))
 }
 
-fn single_atom(center: Vec3) -> Symmetry {
-    Symmetry {
-        point_group: Family::Kh.name(),
+/// One atom: K_h through its sampling C_M × Ci (M = `linear_n`), in the input frame (every
+/// frame is standard). The atom is the centre of mass, so every operation maps it onto itself
+/// at distance 0: verification has nothing to measure.
+fn single_atom(center: Vec3, opts: &DetectOptions) -> Result<Symmetry> {
+    let data = group_data(Family::Kh(opts.linear_n))?;
+    let h = data.ops.len();
+    let verified: Vec<usize> = if h <= opts.verify_all_limit {
+        (0..h).collect()
+    } else {
+        std::iter::once(0)
+            .chain(data.generators.iter().copied())
+            .collect()
+    };
+    Ok(Symmetry {
+        point_group: data.family.name(),
         center,
         frame: crate::ops::IDENTITY,
-        ops: vec![PointOp::identity()],
-        classes: vec![vec![0]],
-        canonical_index: vec![0],
-        class_of: vec![0],
-        generators: vec![],
-        verified: vec![0],
-        permutations: vec![vec![0]],
+        ops: data.ops.iter().map(|m| PointOp::from_matrix(*m)).collect(),
+        classes: classes_from(&data.class_of),
+        canonical_index: (0..h).collect(),
+        class_of: data.class_of.clone(),
+        generators: data.generators.clone(),
+        permutations: vec![vec![0]; verified.len()],
+        verified,
         max_deviation: 0.0,
-    }
+    })
 }
 
 /// A candidate operation that passed the atoms: its fitted matrix and the images of the

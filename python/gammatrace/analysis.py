@@ -20,7 +20,7 @@ import numpy as np
 
 from . import _core
 from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
-from .bases.counting import Representation, build_representation, single_atom_representation
+from .bases.counting import Representation, build_representation
 from .errors import GammatraceError, InputError
 from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, orbits
 from .io import FrameError, Structure, as_structure, element_data, read_structures
@@ -38,8 +38,6 @@ __all__ = [
 
 #: Smallest and largest tolerance accepted, Å.
 MIN_TOL, MAX_TOL = 1e-6, 10.0
-#: Group name reported for a single atom.
-ATOM_GROUP = "K_h"
 DEFAULT_BASES = ("atoms", "cartesian")
 
 
@@ -192,11 +190,7 @@ class Analysis:
         cache = self.__dict__.setdefault("_rep_cache", {})
         if b not in cache:
             resolved = self.resolve_basis(b)
-            cache[b] = (
-                single_atom_representation(resolved)
-                if self.table is None
-                else build_representation(self.symmetry, resolved)
-            )
+            cache[b] = build_representation(self.symmetry, resolved)
         return cache[b]
 
     def resolve_basis(self, basis: Any = "cartesian") -> ResolvedBasis:

@@ -2,8 +2,8 @@
 
 IR-active irreps transform as x, y or z; Raman-active ones as a quadratic function (read from the
 character table's basis functions). For linear molecules only Rx and Ry are rotations (3N − 5
-modes). Centrosymmetric structures obey mutual exclusion: no fundamental is both IR and Raman
-active.
+modes), and a single atom (K_h) has none (3N − 3 = 0 modes). Centrosymmetric structures obey
+mutual exclusion: no fundamental is both IR and Raman active.
 """
 
 from __future__ import annotations
@@ -26,6 +26,7 @@ __all__ = [
     "external_characters",
     "format_irreps",
     "reduce_vibrations",
+    "rotational_freedom",
     "vibration_count",
     "vibrations",
 ]
@@ -84,14 +85,26 @@ def format_irreps(irreps: dict) -> str:
     return " + ".join(f"{n if n != 1 else ''}{label}" for label, n in irreps.items())
 
 
-def external_characters(table) -> np.ndarray:
-    """Characters of Γ_trans + Γ_rot per class (for a linear group only Rx, Ry rotate).
+def rotational_freedom(table) -> int:
+    """Rotational degrees of freedom of a structure of this group: 3, 2 for a linear group
+    (only Rx, Ry), 0 for K_h (a single atom: no rotation moves it). The one place that says so.
+    """
+    if table.is_spherical:
+        return 0
+    return 2 if table.is_linear else 3
 
-    Γ_vib = Γ_3N − this; shared by single analyses and batches.
+
+def external_characters(table) -> np.ndarray:
+    """Characters of Γ_trans + Γ_rot per class (see :func:`rotational_freedom`).
+
+    Γ_vib = Γ_3N − this; shared by single analyses, batches and the site-symmetry route.
     """
     trans = np.asarray(table.vector_characters, dtype=np.float64)
+    free = rotational_freedom(table)
+    if free == 0:
+        return trans
     rot = np.asarray(table.rotation_characters, dtype=np.float64)
-    if table.is_linear:
+    if free == 2:
         # Rotation about the molecular axis is not a degree of freedom: drop the Rz irrep.
         rz = [ir for ir in table.irreps if "Rz" in ir.functions]
         rot = rot - np.asarray(rz[0].characters, dtype=np.float64)
@@ -99,9 +112,10 @@ def external_characters(table) -> np.ndarray:
 
 
 def vibration_count(table, n_atoms) -> np.ndarray:
-    """3N − 6 (3N − 5 for a linear group; 0 for one atom) for each entry of ``n_atoms``."""
+    """3N − 3 − rotations: 3N − 6, 3N − 5 for a linear group, 0 for one atom (K_h), for
+    each entry of ``n_atoms``."""
     n = np.asarray(n_atoms, dtype=np.int64)
-    return np.where(n > 1, 3 * n - (5 if table.is_linear else 6), 0)
+    return 3 * n - 3 - rotational_freedom(table)
 
 
 def reduce_vibrations(table, chars_3n, n_atoms):
@@ -128,8 +142,6 @@ def reduce_vibrations(table, chars_3n, n_atoms):
     """
     chars = np.asarray(chars_3n, dtype=np.float64) - external_characters(table)[None, :]
     modes = vibration_count(table, n_atoms)
-    if len(chars) and np.asarray(n_atoms).min() <= 1:
-        chars = np.where(np.asarray(n_atoms)[:, None] > 1, chars, 0.0)
     raw = table.raw_multiplicities(chars)
     mult = np.rint(raw).astype(np.int64)
     dims = np.asarray([ir.dim for ir in table.irreps], dtype=np.int64)

@@ -46,8 +46,9 @@ pub enum Family {
     Cinfv(usize),
     /// D∞h, reported through D_Md.
     Dinfh(usize),
-    /// A single atom.
-    Kh,
+    /// K_h = O(3), the group of a single atom, sampled by C_M × Ci (M = the field): the
+    /// rotations about z by multiples of 360°/M and their products with i.
+    Kh(usize),
 }
 
 impl Family {
@@ -73,7 +74,7 @@ impl Family {
             Family::Ih => "Ih".into(),
             Family::Cinfv(_) => "C∞v".into(),
             Family::Dinfh(_) => "D∞h".into(),
-            Family::Kh => "K_h".into(),
+            Family::Kh(_) => "K_h".into(),
         }
     }
 }
@@ -147,7 +148,7 @@ fn close(gens: &[Mat3]) -> (Vec<Mat3>, Vec<usize>) {
 }
 
 /// The operations of `family` in the standard frame (E first) and the indices of a
-/// generating set (empty for C1 and K_h).
+/// generating set (empty for C1).
 pub fn standard_operations(family: Family) -> (Vec<Mat3>, Vec<usize>) {
     let cyc: Mat3 = [[0.0, 0.0, 1.0], [1.0, 0.0, 0.0], [0.0, 1.0, 0.0]]; // C3 about (1,1,1)
     let c2z = rz(PI);
@@ -155,7 +156,7 @@ pub fn standard_operations(family: Family) -> (Vec<Mat3>, Vec<usize>) {
     let s = (1.0 + phi * phi).sqrt();
     let c5 = rotation_matrix(&[0.0, 1.0 / s, phi / s], 2.0 * PI / 5.0);
     match family {
-        Family::C1 | Family::Kh => (vec![IDENTITY], vec![]),
+        Family::C1 => (vec![IDENTITY], vec![]),
         Family::Cs => (vec![IDENTITY, SIGMA_H], vec![1]),
         Family::Ci => (vec![IDENTITY, INVERSION], vec![1]),
         Family::Cn(n) => (rotations_z(n), if n > 1 { vec![1] } else { vec![] }),
@@ -203,13 +204,18 @@ pub fn standard_operations(family: Family) -> (Vec<Mat3>, Vec<usize>) {
         // Elements of orders 5 and 3 generate I: A5 has no proper subgroup of order 15·k.
         Family::I => close(&[c5, cyc]),
         Family::Ih => close(&[c5, cyc, INVERSION]),
+        Family::Kh(m) => {
+            let mut v = rotations_z(m);
+            v.extend(rotations_z(m).iter().map(|r| mat_mul(&INVERSION, r)));
+            (v, vec![1, m])
+        }
     }
 }
 
 impl Family {
     /// The family of a Schoenflies name as [`Family::name`] spells it (`"D6h"`, `"S8"`,
     /// `"C∞v"`, `"K_h"`), with `linear_n` the M of the finite subgroups C_Mv / D_Md that
-    /// stand for the linear groups. `None` for anything else (including n < 2 where the
+    /// stand for the linear groups and of the sampling C_M × Ci of K_h. `None` for anything else (including n < 2 where the
     /// name has its own spelling: C1h is Cs, S2 is Ci).
     pub fn from_name(name: &str, linear_n: usize) -> Option<Family> {
         match name {
@@ -225,7 +231,7 @@ impl Family {
             "Ih" => return Some(Family::Ih),
             "C∞v" => return Some(Family::Cinfv(linear_n)),
             "D∞h" => return Some(Family::Dinfh(linear_n)),
-            "K_h" => return Some(Family::Kh),
+            "K_h" => return Some(Family::Kh(linear_n)),
             _ => {}
         }
         let (head, rest) = name.split_at(1);
@@ -257,11 +263,13 @@ impl Family {
 pub struct GroupData {
     /// The family.
     pub family: Family,
-    /// The canonical operations, E first (C∞v / D∞h: those of C_Mv / D_Md).
+    /// The canonical operations, E first (C∞v / D∞h: those of C_Mv / D_Md; K_h: of
+    /// C_M × Ci).
     pub ops: Vec<Mat3>,
-    /// Indices of a generating set (empty for C1 and K_h).
+    /// Indices of a generating set (empty for C1).
     pub generators: Vec<usize>,
-    /// Conjugacy class of each operation: the smallest operation index in its class.
+    /// Conjugacy class of each operation: the smallest operation index in its class (K_h:
+    /// the class in O(3), see [`group_data`]).
     pub class_of: Vec<usize>,
     /// Index of the inverse of each operation.
     pub inverse: Vec<usize>,
@@ -364,6 +372,18 @@ fn build_group_data(family: Family) -> crate::Result<GroupData> {
             }
         }
     }
+    if let Family::Kh(_) = family {
+        // The sampling C_M × Ci is abelian, but K_h = O(3) is not: there a rotation by θ is
+        // conjugate to the rotation by −θ (through a C2 perpendicular to its axis), and
+        // i·C(θ) to i·C(−θ). Those are each operation's inverse, so the classes of the group
+        // that the sampling stands for join every operation with its inverse.
+        for (k, &j) in inverse.iter().enumerate() {
+            let (a, b) = (root(&mut parent, k), root(&mut parent, j));
+            if a != b {
+                parent[a.max(b)] = a.min(b);
+            }
+        }
+    }
     let class_of: Vec<usize> = (0..h).map(|k| root(&mut parent, k)).collect();
     Ok(GroupData {
         family,
@@ -446,7 +466,7 @@ mod tests {
             Family::Ih,
             Family::Cinfv(13),
             Family::Dinfh(13),
-            Family::Kh,
+            Family::Kh(13),
         ] {
             assert_eq!(Family::from_name(&fam.name(), 13), Some(fam));
         }
@@ -474,6 +494,34 @@ mod tests {
             vec![1, 1, 1, 1, 2, 2, 2, 2, 3, 3, 3, 3]
         );
         assert_eq!(sizes(Family::Ih).len(), 10);
+    }
+
+    #[test]
+    fn k_h_classes_pair_each_rotation_with_its_inverse() {
+        // In O(3), C(θ) and C(−θ) are conjugate and so are i·C(θ) and i·C(−θ), while
+        // rotations by different |θ| and proper/improper never are (common practice).
+        let m = 13;
+        let g = group_data(Family::Kh(m)).unwrap();
+        assert_eq!(g.ops.len(), 2 * m);
+        let classes: std::collections::BTreeSet<usize> = g.class_of.iter().copied().collect();
+        // E, i and the (m − 1)/2 pairs of each kind.
+        assert_eq!(classes.len(), m + 1);
+        for k in 0..g.ops.len() {
+            let same: Vec<usize> = (0..g.ops.len())
+                .filter(|&j| g.class_of[j] == g.class_of[k])
+                .collect();
+            let mut want = vec![k, g.inverse[k]];
+            want.sort_unstable();
+            want.dedup();
+            assert_eq!(same, want, "operation {k}");
+        }
+        // Operation m is the inversion, and every operation commutes with every other.
+        assert!(max_abs_diff(&g.ops[m], &INVERSION) < 1e-12);
+        for a in &g.ops {
+            for b in &g.ops {
+                assert!(max_abs_diff(&mat_mul(a, b), &mat_mul(b, a)) < 1e-12);
+            }
+        }
     }
 
     #[test]

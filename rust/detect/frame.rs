@@ -100,7 +100,7 @@ pub(super) fn standard_frame(ctx: &Ctx, fam: Family, raw: &[RawOp]) -> Result<Ma
     let first = |v: Vec<Vec3>, what: &str| v.first().copied().ok_or_else(|| missing(what));
     let perpendicular_to = |z: Vec3| move |o: &RawOp| dot(&o.op.axis, &z).abs() < 0.1;
     match fam {
-        Family::C1 | Family::Ci | Family::Kh => {
+        Family::C1 | Family::Ci | Family::Kh(_) => {
             Ok(axial_frame(&inertia_axes[2], Some(inertia_axes[0])))
         }
         Family::Cs => {

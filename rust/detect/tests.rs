@@ -566,7 +566,21 @@ fn test_linear_molecules_and_single_atom() {
     let one = find_point_group(&[[1.0, 2.0, 3.0]], &[26], &DetectOptions::default()).unwrap();
     assert_eq!(one.point_group, "K_h");
     assert_eq!(one.center, [1.0, 2.0, 3.0]);
-    assert_eq!(one.permutations, vec![vec![0u32]]);
+    // K_h through C13 × Ci: E, 6 pairs C(±θ), i, 6 pairs i·C(±θ) (DEVELOPERS.md).
+    assert_eq!(one.order(), 26);
+    assert_eq!(one.canonical_index, (0..26).collect::<Vec<_>>());
+    assert_eq!(one.verified, (0..26).collect::<Vec<_>>());
+    assert_eq!(one.permutations, vec![vec![0u32]; 26]);
+    assert_eq!(one.max_deviation, 0.0);
+    let mut sizes: Vec<usize> = one.classes.iter().map(Vec::len).collect();
+    sizes.sort_unstable();
+    assert_eq!(sizes, [vec![1, 1], vec![2; 12]].concat());
+    assert_eq!(one.ops.iter().filter(|o| o.proper).count(), 13);
+    let g = canonical::group_data(Family::Kh(13)).unwrap();
+    assert_eq!(one.class_of, g.class_of);
+    assert_eq!(one.generators, g.generators);
+    let one5 = find_point_group(&[[0.0; 3]], &[2], &opts).unwrap();
+    assert_eq!((one5.point_group.as_str(), one5.order()), ("K_h", 10));
     // Two atoms: always linear.
     let h2 = (vec![[0.3, 0.1, 0.0], [-0.3, -0.1, 0.0]], vec![1, 1]);
     assert_eq!(

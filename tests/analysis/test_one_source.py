@@ -17,6 +17,7 @@ from gammatrace.tables.subgroups import identify_group
 GROUPS = [
     "C1", "Cs", "Ci", "C2", "C7", "C2v", "C5v", "C3h", "C6h", "S4", "S6", "S10", "D2", "D5",
     "D2h", "D6h", "D7h", "D2d", "D3d", "D8d", "T", "Td", "Th", "O", "Oh", "I", "Ih", "C∞v", "D∞h",
+    "K_h",
 ]  # fmt: skip
 
 

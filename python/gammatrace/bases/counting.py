@@ -28,7 +28,6 @@ __all__ = [
     "Representation",
     "build_representation",
     "count_characters",
-    "single_atom_representation",
 ]
 
 
@@ -189,8 +188,21 @@ def per_class(
 
 
 def build_representation(sym: SymmetryData, resolved: ResolvedBasis) -> Representation:
-    """Count, check per class and reduce a resolved basis on a structure with its group."""
+    """Count, check per class and reduce a resolved basis on a structure with its group.
+
+    Raises
+    ------
+    BasisError
+        For user vectors on a single atom: K_h is sampled by rotations about one axis, so
+        their characters cannot say how all of O(3) moves them (a vector along z would pass
+        for a scalar).
+    """
     basis = resolved.basis
+    if sym.table.is_spherical and basis.kind == "vectors":
+        raise BasisError(
+            "basis 'vectors' has no meaning for a single atom: its group K_h is sampled by "
+            "rotations about one axis, which cannot tell how every rotation moves the vectors"
+        )
     chars_op, unshifted_op = count_characters(sym, resolved)
     labels = tuple(c.label for c in sym.table.classes)
     chars = per_class(chars_op, sym.op_class, labels, f"basis '{basis.name}'")
@@ -207,43 +219,3 @@ def build_representation(sym: SymmetryData, resolved: ResolvedBasis) -> Represen
             contributions.append(per_item)
     irreps = sym.table.reduce(chars, what=f"basis '{basis.name}'")
     return Representation(basis, chars, chars_op, irreps, unshifted, contributions, labels)
-
-
-_L_LABELS = "SPDFGHI"
-
-
-def single_atom_representation(resolved: ResolvedBasis) -> Representation:
-    """A single atom (K_h): representations labelled by angular momentum and parity.
-
-    Parameters
-    ----------
-    resolved : ResolvedBasis
-        The basis on the one-atom structure.
-
-    Raises
-    ------
-    BasisError
-        For a basis that has no meaning on one atom (π, user vectors).
-    """
-
-    def label(l: int) -> str:
-        return _L_LABELS[l] + ("g" if l % 2 == 0 else "u")
-
-    b = resolved.basis
-    irreps: dict[str, int] = {}
-    if b.kind == "atoms":
-        irreps = {"Sg": 1}
-    elif b.kind == "cartesian":
-        irreps = {"Pu": 1}
-    elif b.kind == "orbitals":
-        for l, c in enumerate(resolved.shell_counts[0]):
-            if c:
-                irreps[label(l)] = int(c)
-    elif b.kind in ("bonds", "bond_vectors"):
-        irreps = {}
-    else:
-        raise BasisError(f"basis '{b.kind}' has no meaning for a single atom")
-    dim = sum((2 * "SPDFGHI".index(k[0]) + 1) * v for k, v in irreps.items())
-    return Representation(
-        b, np.array([float(dim)]), np.array([float(dim)]), irreps, np.array([1.0]), [None], ("E",)
-    )

@@ -22,7 +22,6 @@ import numpy as np
 from .. import _core
 from ..analysis import _check_tol
 from ..errors import GammatraceError, InputError
-from ..group.symmetry import symmetry_number
 from ..io import FrameError, as_structure, read_xyz_raw
 from ..spectroscopy import activity_masks, format_irreps, reduce_vibrations
 from ..tables import LINEAR_SUBGROUP_N, get_table
@@ -196,15 +195,14 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
     m = mult[good]
     ir_mask, raman_mask = activity_masks(table)
     cols["point_group"][r] = group
-    cols["order"][r] = -1 if table.is_linear else h
+    cols["order"][r] = -1 if table.order is None else h
     cols["n_modes"][r] = modes[good]
     cols["n_fundamentals"][r] = m.sum(axis=1)
     cols["n_ir"][r] = m[:, ir_mask].sum(axis=1)
     cols["n_raman"][r] = m[:, raman_mask].sum(axis=1)
     cols["gamma_vib"][r] = _format_rows(table, m)
-    nprop = raw["n_proper"][r]
-    cols["symmetry_number"][r] = symmetry_number(table, nprop)
-    cols["chiral"][r] = nprop == h
+    cols["symmetry_number"][r] = table.symmetry_number
+    cols["chiral"][r] = raw["n_proper"][r] == h
     for row in rows[bad]:
         cols["error_type"][row] = "ReductionError"
         cols["error"][row] = (
@@ -231,10 +229,6 @@ def _run_chunk(chunk: Ragged, tol: float, n_threads: int) -> dict:
     cols["max_deviation"] = np.asarray(raw["max_deviation"], dtype=np.float64)
     for g in np.unique(groups[groups != ""]):
         rows = np.flatnonzero(groups == g)
-        if g == "K_h":
-            cols["point_group"][rows] = g
-            cols["symmetry_number"][rows] = 1
-            continue
         try:
             _reduce_group(str(g), rows, raw, cols["n_atoms"], cols)
         except GammatraceError as exc:

@@ -221,8 +221,6 @@ def _restrict_through_operations(high: Analysis, low: Analysis) -> tuple[dict | 
 def _descent(steps: list, hi: int, lo: int) -> Descent:
     high, low = steps[hi].analysis, steps[lo].analysis
     hg, lg = high.point_group, low.point_group
-    if high.table is None or low.table is None:
-        return Descent(hg, lg, hi, lo, None, None, "no correlation for a single atom")
     try:
         known = correlate(hg, lg)["embeddings"]
     except TableError as exc:

@@ -30,13 +30,10 @@ from ..bases.counting import build_representation, json_number
 from ..errors import BasisError, SymmetryError
 from ..group.stabilisers import atom_images
 from ..group.symmetry import SymmetryData, as_symmetry
-from ..spectroscopy import format_irreps, vibrations
+from ..spectroscopy import external_characters, format_irreps, vibrations
 from ..tables import get_table
 from ..tables._ops import multiplication_table
 from ..tables.subgroups import _describe, _frames, identify_group
-
-#: Group name of a single atom.
-ATOM_GROUP = "K_h"
 
 __all__ = [
     "InducedRepresentation",
@@ -242,12 +239,6 @@ def site_analysis(sym: SymmetryData) -> SiteAnalysis:
     s = sym.structure
     n = sym.n_atoms
     symbols = s.symbols
-    if sym.table is None:  # a single atom
-        site = Site(
-            np.array([0], dtype=np.int64), 0, symbols[0], 0.0, ATOM_GROUP, ATOM_GROUP,
-            np.array([0], dtype=np.int64), np.eye(3), "", ("E",), np.array([0], dtype=np.int64),
-        )  # fmt: skip
-        return SiteAnalysis(ATOM_GROUP, None, 1, [site])
     gen = np.ascontiguousarray(sym.generator_permutations)
     ids = np.asarray(_core.orbits(n, gen), dtype=np.int64)
     _, first = np.unique(ids, return_index=True)
@@ -268,7 +259,11 @@ def site_analysis(sym: SymmetryData) -> SiteAnalysis:
     per_key = []
     for key in keys:
         idx = np.flatnonzero(key)
-        name, site_tab, f, classes = _site_frame(table, idx)
+        if len(idx) == len(table.operations):
+            # an atom at the centre: the site group is the group, in its own frame
+            name, site_tab, f, classes = table.name, table, np.eye(3), table.operation_class
+        else:
+            name, site_tab, f, classes = _site_frame(table, idx)
         shown = _display_name(sym, name, len(idx))
         if shown != name:
             # the linear table has its finite stand-in's operations and classes, with the
@@ -431,15 +426,8 @@ def _per_class(table, chars_op: np.ndarray, what: str) -> np.ndarray:
     return out
 
 
-def _vibrations_from(table, chars: np.ndarray, n_atoms: int) -> dict:
-    trans = np.asarray(table.vector_characters, dtype=np.float64)
-    rot = np.asarray(table.rotation_characters, dtype=np.float64)
-    if table.is_linear:
-        rz = [ir for ir in table.irreps if "Rz" in ir.functions]
-        rot = rot - np.asarray(rz[0].characters, dtype=np.float64)
-    if n_atoms == 1:
-        return {}
-    return table.reduce(chars - trans - rot, what="Γ_vib (site-symmetry route)")
+def _vibrations_from(table, chars: np.ndarray) -> dict:
+    return table.reduce(chars - external_characters(table), what="Γ_vib (site-symmetry route)")
 
 
 def induced_representation(
@@ -485,13 +473,6 @@ def induced_representation(
     sym = as_symmetry(sym)
     sites = sites if sites is not None else site_analysis(sym)
     table = sym.table
-    if table is None:  # a single atom: the site group is the whole group
-        irreps = {"Pu": 1} if kind == "cartesian" else {"Sg": 1}
-        chars = np.array([3.0 if kind == "cartesian" else 1.0])
-        o = OrbitInduction(sites.sites[0], irreps, {k: {k: 1} for k in irreps}, chars, irreps)
-        return InducedRepresentation(
-            kind, ATOM_GROUP, ("E",), chars, irreps, [o], {} if kind == "cartesian" else None
-        )
     prod, inv = multiplication_table(table.name)
     cache: dict = {}
     total = np.zeros(len(table.classes))
@@ -519,7 +500,7 @@ def induced_representation(
         total += chars
         shares.append(OrbitInduction(site, site_irreps, induced, chars, irreps))
     irreps = table.reduce(total, what=f"Γ({kind}) by the site-symmetry route")
-    vib = _vibrations_from(table, total, sym.n_atoms) if kind == "cartesian" else None
+    vib = _vibrations_from(table, total) if kind == "cartesian" else None
     labels = tuple(c.label for c in table.classes)
     return InducedRepresentation(kind, sym.point_group, labels, total, irreps, shares, vib)
 
@@ -553,7 +534,7 @@ def check_induced(
             f"from counted {[json_number(c) for c in counted.characters]} "
             f"({format_irreps(counted.irreps)})"
         )
-    if ind.vibrations is not None and sym.table is not None:
+    if ind.vibrations is not None:
         cart = counted.characters if b.kind == "cartesian" else None
         counted_vib = vibrations(sym, cart).irreps
         if counted_vib != ind.vibrations:

@@ -11,7 +11,7 @@
 from __future__ import annotations
 
 from .orbits import Orbit, orbits, site_group_names
-from .symmetry import DEFAULT_TOL, VERIFY_ALL_LIMIT, SymmetryData, as_symmetry, symmetry_number
+from .symmetry import DEFAULT_TOL, VERIFY_ALL_LIMIT, SymmetryData, as_symmetry
 
 __all__ = [
     "DEFAULT_TOL",
@@ -21,5 +21,4 @@ __all__ = [
     "as_symmetry",
     "orbits",
     "site_group_names",
-    "symmetry_number",
 ]

@@ -305,8 +305,15 @@ def group_data(sym) -> GroupData:
     Raises
     ------
     SymmetryError
-        If the operations do not form a group or do not match the table.
+        If the operations do not form a group or do not match the table, or for a single
+        atom (K_h): its group is sampled by rotations about one axis, whose projections do not
+        separate the irreps of O(3).
     """
+    if getattr(sym.table, "is_spherical", False):
+        raise SymmetryError(
+            "a single atom (K_h) has no finite group for a change of basis: its group is "
+            "sampled by rotations about one axis, which do not separate the irreps of O(3)"
+        )
     frame = _orthonormal_frame(sym.frame)
     ops_in = np.asarray(sym.operations, dtype=np.float64)
     op_class = np.asarray(sym.op_class, dtype=np.int64)

@@ -62,7 +62,12 @@ def orbits(sym: SymmetryData) -> list[Orbit]:
 
 
 def site_group_names(sym: SymmetryData, representatives: np.ndarray) -> list:
-    """Schoenflies names of the stabilisers of the given atoms (one per atom)."""
+    """Schoenflies names of the stabilisers of the given atoms (one per atom).
+
+    A stabiliser that is the whole group takes the group's name (C∞v, D∞h and K_h included,
+    never that of their finite stand-in); half of D∞h's stand-in, the site of an atom off the
+    centre of a linear molecule, is C∞v.
+    """
     images = atom_images(sym, representatives)  # (h, k), rows = canonical operations
     ops = sym.table.operations
     cache: dict = {}
@@ -71,6 +76,11 @@ def site_group_names(sym: SymmetryData, representatives: np.ndarray) -> list:
         stab = np.flatnonzero(images[:, j] == atom)
         key = stab.tobytes()
         if key not in cache:
-            cache[key] = identify_group(ops[stab])
+            if len(stab) == len(ops):
+                cache[key] = sym.point_group
+            elif sym.is_linear and 2 * len(stab) == len(ops):
+                cache[key] = "C∞v"
+            else:
+                cache[key] = identify_group(ops[stab])
         out.append(cache[key])
     return out

@@ -24,7 +24,7 @@ from ..io.structure import Structure
 from ..tables import get_table
 from ..tables._ops import describe
 
-__all__ = ["DEFAULT_TOL", "VERIFY_ALL_LIMIT", "SymmetryData", "as_symmetry", "symmetry_number"]
+__all__ = ["DEFAULT_TOL", "VERIFY_ALL_LIMIT", "SymmetryData", "as_symmetry"]
 
 #: Default distance tolerance in ångström (see DEVELOPERS.md, "Tolerance"); the core's value.
 DEFAULT_TOL: float = float(_core.DEFAULT_TOLERANCE)
@@ -41,14 +41,6 @@ def _shape_error(name, expected, received):
 def _frozen(a: np.ndarray) -> np.ndarray:
     a.setflags(write=False)
     return a
-
-
-def symmetry_number(table: Any, n_proper: Any) -> Any:
-    """σ from the table and the number of proper operations (scalar or array): that number
-    for a finite group; 2 for D∞h, 1 for C∞v and for one atom (the infinite groups)."""
-    if table.order is None:
-        return 2 if table.name == "D∞h" else 1
-    return n_proper
 
 
 class SymmetryData:
@@ -240,7 +232,7 @@ class SymmetryData:
     def symmetry_number(self) -> int:
         """Rotational symmetry number σ: the number of proper operations (the infinite groups:
         2 for D∞h, 1 for C∞v and for one atom)."""
-        return symmetry_number(self.table, int(np.count_nonzero(self.proper)))
+        return int(self.table.symmetry_number)
 
     @property
     def chiral(self) -> bool:

@@ -137,7 +137,8 @@ def canonical_group(name: str):
     ----------
     name : str
         Schoenflies name as the core spells it (``"C3v"``, ``"S8"``, ``"Ih"``, ``"C∞v"``,
-        ``"K_h"``); C∞v / D∞h give the operations of C_Mv / D_Md, M = ``LINEAR_SUBGROUP_N``.
+        ``"K_h"``); C∞v / D∞h give the operations of C_Mv / D_Md and K_h those of
+        C_M × Ci, M = ``LINEAR_SUBGROUP_N``.
 
     Returns
     -------

@@ -58,7 +58,9 @@ class TableSpec:
 
     ``op_class`` holds the class index (print order) of each operation in ``ops``;
     ``characters`` is (n_irreps, n_classes) in print order; ``square`` holds the index of
-    each operation's square (the core's group arithmetic).
+    each operation's square (the core's group arithmetic). ``weights`` are the class weights
+    of the reduction formula when they are not size / h (K_h: a quadrature of the integral
+    over O(3)); ``unresolved`` names, for such a table, the representations outside its reach.
     """
 
     name: str
@@ -70,6 +72,9 @@ class TableSpec:
     order: int | None
     square: np.ndarray | None = None
     is_linear: bool = False
+    is_spherical: bool = False
+    weights: np.ndarray | None = None
+    unresolved: str = ""
 
 
 # Surds that printed tables write exactly; characters are snapped to them so that,

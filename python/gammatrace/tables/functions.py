@@ -5,10 +5,11 @@ For every candidate set of functions (``z``, ``(x,y)``, ``(Rx,Ry)``, ``x2+y2``,
 computed numerically: the functions are sampled at fixed points r, the transformed
 functions f(R⁻¹r) are sampled too, and a least-squares fit gives the matrix (a residual
 check proves the span is invariant). A set whose character reduces to one irrep, once,
-is listed under that irrep. Rotations (Rx, Ry, Rz) transform as x, y, z times det R.
+with that irrep's characters (the table's reduction formula, class weights included), is
+listed under that irrep. Rotations (Rx, Ry, Rz) transform as x, y, z times det R.
 
 Which sets are tried follows printed tables: cubic groups list (x,y,z), x2+y2+z2 and the
-(2z2-x2-y2, x2-y2) / (xy,xz,yz) sets (or all five together for I and Ih); axial groups with
+(2z2-x2-y2, x2-y2) / (xy,xz,yz) sets (or all five together for I, Ih and K_h); axial groups with
 a two-dimensional (x,y) list z, (x,y), x2+y2, z2, (x2-y2,xy) (or x2-y2 and xy apart when
 they split) and (xz,yz); the groups of order ≤ 8 without such a pair list x, y, z and the
 six quadratic monomials one by one. Functions are written in ASCII (x2 for x²).
@@ -67,22 +68,25 @@ def _characters_of(name: str, ops: np.ndarray):
     return chi
 
 
-def _single_irrep(chi_ops, op_class, char_matrix, sizes, h, kappa):
+def _single_irrep(chi_ops, op_class, char_matrix, factor, h, kappa):
     """Index of the irrep that the per-operation character chi_ops is, or None."""
     reps = np.unique(op_class, return_index=True)[1]
     chi = chi_ops[reps]
     if np.abs(chi_ops - chi[op_class]).max() > 1e-8:
         return None
-    n = (char_matrix * sizes) @ chi / (h * kappa)
+    n = (char_matrix * factor) @ chi / (h * kappa)
     if np.abs(n - np.round(n)).max() > 1e-6:
         return None
     n = np.round(n).astype(int)
     if n.sum() != 1 or n.min() < 0:
         return None
-    return int(np.argmax(n))
+    j = int(np.argmax(n))
+    if np.abs(char_matrix[j] - chi).max() > 1e-6:
+        return None  # K_h: a set beyond the table's reach can reduce to one row by aliasing
+    return j
 
 
-def match_functions(ops, op_class, char_matrix, sizes, kappa):
+def match_functions(ops, op_class, char_matrix, factor, kappa):
     """Linear, rotational and quadratic functions of each irrep.
 
     Parameters
@@ -91,7 +95,9 @@ def match_functions(ops, op_class, char_matrix, sizes, kappa):
         Canonical operations in the standard frame.
     op_class : numpy.ndarray of int, shape (h,)
     char_matrix : numpy.ndarray, shape (n_irreps, n_classes)
-    sizes : numpy.ndarray, shape (n_classes,)
+    factor : numpy.ndarray, shape (n_classes,)
+        h times the class weights of the reduction formula: the class sizes for a finite
+        group, size·(1 − cos θ) for K_h.
     kappa : numpy.ndarray, shape (n_irreps,)
         1 for real irreps, 2 for complex-conjugate pairs combined into one real irrep.
 
@@ -107,7 +113,7 @@ def match_functions(ops, op_class, char_matrix, sizes, kappa):
         chi = _characters_of(name, ops)
         if chi is None:
             return False
-        j = _single_irrep(chi, op_class, char_matrix, sizes, h, kappa)
+        j = _single_irrep(chi, op_class, char_matrix, factor, h, kappa)
         if j is None:
             return False
         out[j].append(name)
@@ -117,7 +123,7 @@ def match_functions(ops, op_class, char_matrix, sizes, kappa):
         chi = _characters_of(name, ops)
         return (
             chi is not None
-            and _single_irrep(chi, op_class, char_matrix, sizes, h, kappa) is not None
+            and _single_irrep(chi, op_class, char_matrix, factor, h, kappa) is not None
         )
 
     if irreducible("(x,y,z)"):

@@ -8,7 +8,8 @@ INTERFACE.md):
   n ≥ 2, Dn/Dnh/Dnd n ≥ 2);
 - S2n for even 4 ≤ 2n ≤ 2·``MAX_N``;
 - T, Td, Th, O, Oh, I, Ih;
-- C∞v and D∞h, also typed as ``Cinfv`` / ``Dinfh`` (reported as ``C∞v`` / ``D∞h``).
+- C∞v and D∞h, also typed as ``Cinfv`` / ``Dinfh`` (reported as ``C∞v`` / ``D∞h``);
+- K_h (the group of a single atom), also typed as ``Kh``.
 
 Other names of the same groups are refused with a message naming the standard one (S2 is
 Ci, C1h and C1v are Cs, D1 is C2, D1h is C2v, D1d is C2h, S_odd n is Cnh, C3i is S6), so
@@ -29,7 +30,7 @@ MAX_N = 1000
 
 ACCEPTED_FORMS = (
     "C1, Cs, Ci, Cn, Cnv, Cnh, S2n, Dn, Dnh, Dnd (n = 2 ... "
-    f"{MAX_N}), T, Td, Th, O, Oh, I, Ih, C∞v (or Cinfv), D∞h (or Dinfh)"
+    f"{MAX_N}), T, Td, Th, O, Oh, I, Ih, C∞v (or Cinfv), D∞h (or Dinfh), K_h (or Kh)"
 )
 
 
@@ -43,7 +44,7 @@ class GroupName(NamedTuple):
     family : str
         One of ``"C"``, ``"Cv"``, ``"Ch"``, ``"S"``, ``"D"``, ``"Dh"``, ``"Dd"``, ``"Cs"``,
         ``"Ci"``, ``"T"``, ``"Td"``, ``"Th"``, ``"O"``, ``"Oh"``, ``"I"``, ``"Ih"``,
-        ``"Cinfv"``, ``"Dinfh"``.
+        ``"Cinfv"``, ``"Dinfh"``, ``"Kh"``.
     n : int or None
         The n of the axial families (for ``"S"``, the order 2n of S2n); None otherwise.
     """
@@ -67,6 +68,7 @@ _FIXED = {
     "cinfv": GroupName("C∞v", "Cinfv", None),
     "d∞h": GroupName("D∞h", "Dinfh", None),
     "dinfh": GroupName("D∞h", "Dinfh", None),
+    "kh": GroupName("K_h", "Kh", None),
 }
 
 _SAME_AS = {

@@ -8,6 +8,7 @@ from .axial import axial_spec
 from .linear import linear_spec
 from .names import parse_group_name
 from .polyhedral import polyhedral_spec
+from .spherical import spherical_spec
 from .table import CharacterTable
 
 __all__ = ["get_table"]
@@ -23,6 +24,8 @@ def _build(name: str) -> CharacterTable:
         spec = axial_spec("S", 2, "Ci")
     elif fam in ("Cinfv", "Dinfh"):
         spec = linear_spec(parsed.name)
+    elif fam == "Kh":
+        spec = spherical_spec()
     elif parsed.n is None:
         spec = polyhedral_spec(parsed.name)
     else:
@@ -37,7 +40,8 @@ def get_table(name: str) -> CharacterTable:
     ----------
     name : str
         Schoenflies name, e.g. ``"D6h"``, ``"C2v"``, ``"S8"``, ``"Ih"``, ``"C∞v"`` (also
-        ``"Cinfv"``); see :func:`parse_group_name` for every accepted form.
+        ``"Cinfv"``), ``"K_h"`` (also ``"Kh"``); see :func:`parse_group_name` for every
+        accepted form.
 
     Returns
     -------

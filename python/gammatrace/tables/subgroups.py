@@ -19,6 +19,12 @@ present) with M the smallest suitable multiple of the subgroup's axis order that
 and the irreps with |m| ≤ 6 are reported with their linear labels. ``subgroups`` of a
 linear group lists those of C12v / D12h (principal axes of order dividing 12).
 
+K_h: every point group is a subgroup of O(3), and all copies of one point group are
+conjugate in it, so ``correlate("K_h", H)`` has one embedding for every H; the characters of
+its irreps on H's classes come from the rotation angle of each class's proper part
+(``spherical.spherical_characters``, times −1 on improper classes for u). ``subgroups`` of
+K_h is refused (there are infinitely many).
+
 Enumeration is limited to groups of order ≤ ``MAX_ORDER``.
 """
 
@@ -35,6 +41,7 @@ from ._ops import canonical_group, contains_all, describe, fraction_of_turn, mul
 from .linear import linear_class_label
 from .names import parse_group_name
 from .registry import get_table
+from .spherical import L_LETTERS, spherical_characters
 
 __all__ = ["MAX_ORDER", "SubgroupEmbedding", "correlate", "identify_group", "subgroups"]
 
@@ -326,6 +333,11 @@ def subgroups(group_name: str) -> list[SubgroupEmbedding]:
     ['C1', 'C3', 'C3v', 'Cs']
     """
     parent = get_table(group_name)
+    if parent.is_spherical:
+        raise TableError(
+            f"{parent.name} has infinitely many subgroups (every point group, each in "
+            "every orientation): correlate it with a named group instead"
+        )
     out = []
     for sub_name, idx, frames, finite in _parent_subgroups(parent.name):
         sub_tab = get_table(sub_name)
@@ -410,6 +422,8 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
     """
     parent = get_table(group_name)
     sub = get_table(subgroup_name)
+    if parent.is_spherical:
+        return _correlate_spherical(parent, sub)
     if parent.is_linear:
         parsed = parse_group_name(sub.name)
         n_axis = parsed.n or 1
@@ -445,6 +459,26 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
             desc = _describe(parent.name, finite, sub.name, sub, idx, f, _n_choices(fs) > 1)
             embeddings.append({"description": desc, "correlation": corr})
     return {"group": parent.name, "subgroup": sub.name, "embeddings": embeddings}
+
+
+def _correlate_spherical(parent, sub) -> dict:
+    """K_h into any point group: χ_l on the rotation angle of each class's proper part."""
+    theta = np.array([c.angle if c.proper else 180.0 - c.angle for c in sub.classes])
+    improper = np.array([not c.proper for c in sub.classes])
+    corr = {}
+    for ir in parent.irreps:
+        chi = spherical_characters(L_LETTERS.index(ir.label[0]), theta)
+        if ir.label.endswith("u"):
+            chi = np.where(improper, -chi, chi)
+        corr[ir.label] = sub.reduce(chi, what=f"{ir.label} of {parent.name}")
+    desc = (
+        f"{sub.name} in any orientation (all copies of {sub.name} are conjugate in {parent.name})"
+    )
+    return {
+        "group": parent.name,
+        "subgroup": sub.name,
+        "embeddings": [{"description": desc, "correlation": corr}],
+    }
 
 
 def _line(v: np.ndarray) -> tuple:

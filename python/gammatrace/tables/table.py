@@ -10,6 +10,13 @@ tables with the pair combined show them. For such an irrep the norm
 
 which equals the complex formula n_i = (1/h) Σ g χ χ_i* for each member of the pair
 (a real representation holds both members equally often). Likewise Σ_i dim_i² / κ_i = h.
+
+In general the formula weighs class c by w_c: n_i = Σ_c w_c χ(c) χ_i(c) / κ_i with
+κ_i = Σ_c w_c χ_i(c)². For a finite group w_c = g_c / h (the formula above, computed as
+written there). K_h, sampled by a finite group, weighs its classes by a quadrature of the
+integral over O(3) (``spherical``), and its rows span only part of the class functions of the
+sampling: so every reduction also checks that Σ_i n_i χ_i gives back the characters, and
+refuses a representation the table does not resolve.
 """
 
 from __future__ import annotations
@@ -20,6 +27,7 @@ from ..errors import ReductionError
 from ._ops import LINEAR_SUBGROUP_N, locate
 from ._types import ClassInfo, Irrep, TableSpec
 from .functions import match_functions
+from .spherical import MAX_L
 
 __all__ = ["CharacterTable"]
 
@@ -43,16 +51,21 @@ class CharacterTable:
     name : str
         Schoenflies name (``"D6h"``, ``"C∞v"``).
     order : int or None
-        Number of operations; None for the linear groups.
+        Number of operations; None for the linear groups and K_h.
     is_linear : bool
+        True for C∞v and D∞h.
+    is_spherical : bool
+        True for K_h.
     classes : list of ClassInfo
         In print order.
     irreps : list of Irrep
         In print order.
     character_matrix : numpy.ndarray, shape (n_irreps, n_classes)
     class_sizes : numpy.ndarray of int, shape (n_classes,)
+    class_weights : numpy.ndarray, shape (n_classes,)
+        w_c of the reduction formula: g_c / h, or K_h's quadrature weights.
     operations : numpy.ndarray, shape (h, 3, 3)
-        Canonical operations (for linear groups: of the finite subgroup).
+        Canonical operations (for linear groups: of the finite subgroup; K_h: its sampling).
     operation_class : numpy.ndarray of int, shape (h,)
         Class index of each canonical operation.
     """
@@ -61,6 +74,7 @@ class CharacterTable:
         self.name: str = spec.name
         self.order: int | None = spec.order
         self.is_linear: bool = spec.is_linear
+        self.is_spherical: bool = spec.is_spherical
         self.classes: list[ClassInfo] = list(spec.classes)
         chars = np.array(spec.characters, dtype=np.float64)
         self.character_matrix = chars
@@ -70,12 +84,20 @@ class CharacterTable:
         for arr in (self.character_matrix, self.class_sizes, self.operations, self.operation_class):
             arr.setflags(write=False)
         self._h = len(self.operations)
-        norms = (chars**2 * self.class_sizes).sum(axis=1) / self._h
+        # w_c·h: the class sizes themselves for a finite group (so its formula is evaluated
+        # as (1/h) Σ g_c χ χ_i / κ_i, written above), K_h's quadrature weights times h
+        if spec.weights is None:
+            self._factor = self.class_sizes.astype(np.float64)
+        else:
+            self._factor = np.asarray(spec.weights, dtype=np.float64) * self._h
+        self._factor.setflags(write=False)
+        self._unresolved = spec.unresolved
+        norms = (chars**2 * self._factor).sum(axis=1) / self._h
         self._kappa = np.round(norms)
         if np.abs(norms - self._kappa).max() > 1e-9 or not set(self._kappa) <= {1.0, 2.0}:
             raise RuntimeError(f"internal: {self.name} rows have norms {norms}")
         functions = match_functions(
-            self.operations, self.operation_class, chars, self.class_sizes, self._kappa
+            self.operations, self.operation_class, chars, self._factor, self._kappa
         )
         self.irreps: list[Irrep] = [
             Irrep(label, round(row[0]), tuple(row.tolist()), funcs)
@@ -92,8 +114,30 @@ class CharacterTable:
         return f"CharacterTable({self.name!r}, {len(self.classes)} classes)"
 
     @property
+    def symmetry_number(self) -> int:
+        """Rotational symmetry number σ: the number of proper operations.
+
+        For the infinite groups, the classical count: 2 for D∞h, 1 for C∞v and for K_h (a
+        single atom has no rotational degrees of freedom to count).
+        """
+        if self.is_linear:
+            return 2 if self.name == "D∞h" else 1
+        if self.is_spherical:
+            return 1
+        return int(np.count_nonzero(np.linalg.det(self.operations) > 0))
+
+    @property
+    def class_weights(self) -> np.ndarray:
+        """w_c of the reduction formula n_i = Σ_c w_c χ(c) χ_i(c) / κ_i (they sum to 1).
+
+        g_c / h for a finite group (and the finite stand-ins of C∞v, D∞h); for K_h the
+        quadrature weights g_c (1 − cos θ_c) / h of its sampling (``tables.spherical``).
+        """
+        return self._factor / self._h
+
+    @property
     def norms(self) -> np.ndarray:
-        """κ_i = (1/h) Σ g_c χ_i(c)²: 1 for real irreps, 2 for combined complex pairs."""
+        """κ_i = Σ_c w_c χ_i(c)²: 1 for real irreps, 2 for combined complex pairs."""
         return self._kappa.copy()
 
     @property
@@ -172,14 +216,37 @@ class CharacterTable:
     # -- reduction ---------------------------------------------------------------------
 
     def raw_multiplicities(self, chars) -> np.ndarray:
-        """The reduction formula without rounding or checks: n_i = (1/h) Σ g χ χ_i / κ_i.
+        """The reduction formula without rounding or checks: n_i = Σ_c w_c χ χ_i / κ_i.
 
         ``chars`` is ``(n_classes,)`` or ``(k, n_classes)``; the result has the matching
         leading shape. For callers that check integrality themselves (batches flag bad rows
         instead of raising); :meth:`reduce` and :meth:`reduce_many` use it.
         """
         arr = np.asarray(chars, dtype=np.float64)
-        return arr @ (self.character_matrix * self.class_sizes).T / (self._h * self._kappa)
+        return arr @ (self.character_matrix * self._factor).T / (self._h * self._kappa)
+
+    def _unresolved_rows(self, arr: np.ndarray, raw: np.ndarray) -> np.ndarray:
+        """Rows (of ``arr``, 2-D) that Σ_i n_i χ_i, with the raw multiplicities, misses.
+
+        The sum gives the characters back exactly when they lie in the span of the rows:
+        always for a finite group, whose rows span all its class functions; for K_h, when no
+        angular momentum above l = 5 is present. The tolerance per class, 1e-6 (1 + Σ_i
+        |χ_i(c)|), leaves room for rounding in the characters.
+        """
+        back = raw @ self.character_matrix
+        tol = _INTEGER_TOL * (1.0 + np.abs(self.character_matrix).sum(axis=0))
+        return (np.abs(back - arr) > tol).any(axis=1)
+
+    def _unresolved_message(self, what: str, chars, raw) -> str:
+        cols = ", ".join(f"{c.label}: {_fmt_number(x)}" for c, x in zip(self.classes, chars))
+        back = np.asarray(raw) @ self.character_matrix
+        got = ", ".join(_fmt_number(x) for x in back)
+        reach = f" ({self._unresolved})" if self._unresolved else ""
+        return (
+            f"{what} lies outside what the {self.name} table resolves{reach}: characters "
+            f"[{cols}] are no combination of its irreps (the reduction formula gives back "
+            f"[{got}])"
+        )
 
     def _check_chars(self, chars, ndim: int) -> np.ndarray:
         arr = np.asarray(chars, dtype=np.float64)
@@ -225,7 +292,9 @@ class CharacterTable:
             Wrong shape or non-finite characters.
         ReductionError
             A multiplicity is farther than 1e-6 from an integer, or negative; the message
-            shows the characters and every multiplicity with its residual.
+            shows the characters and every multiplicity with its residual. Also when the
+            irreps do not give the characters back (Σ n_i χ_i ≠ χ beyond 1e-6): the
+            representation lies outside what the table resolves (K_h: l > 5).
 
         Examples
         --------
@@ -235,6 +304,8 @@ class CharacterTable:
         """
         chars = self._check_chars(chars_per_class, 1)
         raw = self.raw_multiplicities(chars)
+        if self._unresolved_rows(chars[None], raw[None])[0]:
+            raise ReductionError(self._unresolved_message(what, chars, raw))
         n = np.round(raw)
         if np.abs(raw - n).max() > _INTEGER_TOL or (n < 0).any():
             raise ReductionError(self._residual_message(what, chars, raw))
@@ -254,10 +325,16 @@ class CharacterTable:
         Raises
         ------
         ReductionError
-            For the first row that does not reduce (the message names the row).
+            For the first row that does not reduce or lies outside what the table resolves
+            (the message names the row).
         """
         arr = self._check_chars(chars, 2)
         raw = self.raw_multiplicities(arr)
+        outside = np.flatnonzero(self._unresolved_rows(arr, raw))
+        if len(outside):
+            row = int(outside[0])
+            msg = self._unresolved_message(f"row {row}", arr[row], raw[row])
+            raise ReductionError(f"{msg} ({len(outside)} of {len(arr)} rows fail)")
         n = np.round(raw)
         bad = np.flatnonzero((np.abs(raw - n).max(axis=1) > _INTEGER_TOL) | (n < 0).any(axis=1))
         if len(bad):
@@ -296,13 +373,16 @@ class CharacterTable:
     # -- output ------------------------------------------------------------------------
 
     def to_dict(self) -> dict:
-        """The table as the INTERFACE.md ``table`` JSON object."""
+        """The table as the INTERFACE.md ``table`` JSON object.
+
+        K_h adds ``weights``: the class weights w_c of its reduction formula.
+        """
 
         def num(x):
             r = round(x)
             return int(r) if abs(x - r) < 1e-12 else float(x)
 
-        return {
+        out = {
             "group": self.name,
             "order": self.order,
             "classes": [
@@ -319,6 +399,9 @@ class CharacterTable:
                 for ir in self.irreps
             ],
         }
+        if self.is_spherical:
+            out["weights"] = [float(w) for w in self.class_weights]
+        return out
 
     def to_text(self) -> str:
         """A readable, aligned text table (irrational characters to three decimals)."""
@@ -338,5 +421,11 @@ class CharacterTable:
                 f"(C∞ and S∞ sampled at multiples of 360°/{LINEAR_SUBGROUP_N}; class sizes "
                 f"and h = {self._h} of that sampling in the reduction formula; "
                 "|m| ≤ 6 resolved)"
+            )
+        if self.is_spherical:
+            lines.append(
+                f"(rotations sampled at multiples of 360°/{LINEAR_SUBGROUP_N}, with and without "
+                "i; each class weighted by size·(1 − cos θ)/h, θ its rotation angle, in the "
+                f"reduction formula; l ≤ {MAX_L} resolved)"
             )
         return "\n".join(lines)
