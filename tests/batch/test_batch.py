@@ -146,12 +146,10 @@ def test_distributed_equals_local(tmp_path):
         p = tmp_path / f"part{k}.xyz"
         write_xyz(torsion_scan(10 + k), p)
         paths.append(str(p))
-    local = analyze_batch(
-        __import__("gammatrace.batch", fromlist=["x"]).ragged_from_structures(
-            s for p in paths for s in gt.read_xyz(p)
-        ),
-        output="pandas",
-    )
+    import pandas as pd
+
+    # files keep their frame numbers (a list would be numbered by position instead)
+    local = pd.concat([analyze_batch(p, output="pandas") for p in paths], ignore_index=True)
     with (
         distributed.LocalCluster(
             n_workers=2,
@@ -206,3 +204,17 @@ def test_batch_equals_single_analysis_for_complex_pair_groups(group):
     from gammatrace.spectroscopy import format_irreps
 
     assert table["gamma_vib"][0] == format_irreps(single.irreps)
+
+
+def test_batch_index_is_the_position_in_a_list():
+    # rows of a list carry their position, even when every Structure says index 0
+    # (shared/INTERFACE.md, "Batches"); the source is kept
+    symbols, pos = ethane(0.0)
+    same = [Structure(atomic_numbers(symbols), pos + k, source="scan.xyz") for k in range(5)]
+    table = analyze_batch(same, output="dict")
+    assert table["index"].tolist() == [0, 1, 2, 3, 4]
+    assert list(table["source"]) == ["scan.xyz"] * 5
+    mixed = [same[0], Structure(np.array([1, 1]), np.zeros((2, 3))), same[1]]
+    rows = analyze_batch(mixed, output="dict")
+    assert rows["index"].tolist() == [0, 1, 2]
+    assert rows["error_type"][1] and not rows["error_type"][0] and not rows["error_type"][2]

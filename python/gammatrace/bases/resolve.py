@@ -140,7 +140,9 @@ def plane_normal(positions: np.ndarray, center: np.ndarray, tol: float) -> np.nd
     return normal / np.linalg.norm(normal)
 
 
-def resolve(basis: Any, structure: Any, *, center: Any = None, tol: float = 0.01) -> ResolvedBasis:
+def resolve(
+    basis: Any, structure: Any, *, center: Any = None, tol: float = _core.DEFAULT_TOLERANCE
+) -> ResolvedBasis:
     """Resolve a :class:`~gammatrace.Basis` against one structure.
 
     Parameters

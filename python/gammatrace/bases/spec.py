@@ -29,6 +29,7 @@ from typing import Any, Union
 
 import numpy as np
 
+from .. import _core
 from ..errors import BasisError
 from ..io.elements import SYMBOLS, atomic_number
 from .resolve import ResolvedBasis, resolve
@@ -188,7 +189,9 @@ class Basis:
         """For orbitals: atomic number (or ``"*"``) -> tuple of angular momenta; else None."""
         return dict(self.shell_spec) if self.kind == "orbitals" else None
 
-    def resolve(self, structure: Any, *, center: Any = None, tol: float = 0.01) -> ResolvedBasis:
+    def resolve(
+        self, structure: Any, *, center: Any = None, tol: float = _core.DEFAULT_TOLERANCE
+    ) -> ResolvedBasis:
         """This basis on one structure; see :func:`gammatrace.bases.resolve.resolve`."""
         return resolve(self, structure, center=center, tol=tol)
 

@@ -22,6 +22,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from ..errors import InputError
+from ..group import DEFAULT_TOL
 from .run import _concat, convert, iter_batch, ragged_from_file
 
 __all__ = ["analyze_distributed", "plan_partitions"]
@@ -62,7 +63,7 @@ def analyze_distributed(
     paths: Sequence[str | os.PathLike],
     client: Any,
     *,
-    tol: float = 0.01,
+    tol: float = DEFAULT_TOL,
     frames_per_partition: int | None = None,
     n_threads: int = 0,
     output: str = "pandas",

@@ -22,6 +22,7 @@ import numpy as np
 from .. import _core
 from ..analysis import _check_tol
 from ..errors import GammatraceError, InputError
+from ..group import DEFAULT_TOL
 from ..io import FrameError, as_structure, read_xyz_raw
 from ..spectroscopy import activity_masks, format_irreps, reduce_vibrations
 from ..tables import LINEAR_SUBGROUP_N, get_table
@@ -91,19 +92,24 @@ class Ragged:
 
 
 def ragged_from_structures(structures: Iterable[Any]) -> Ragged:
-    """Pack Structures (or anything :func:`~gammatrace.io.as_structure` takes) into a Ragged."""
+    """Pack Structures (or anything :func:`~gammatrace.io.as_structure` takes) into a Ragged.
+
+    Row ``index`` is the position in ``structures`` (0, 1, 2, …), whatever frame of which file a
+    Structure came from; ``source`` keeps where it came from.
+    """
     pos, num, offs, srcs, idx, errs = [], [], [0], [], [], []
     for k, item in enumerate(structures):
         if isinstance(item, FrameError):
             s_pos, s_num, err = np.zeros((0, 3)), np.zeros(0, np.int64), (item.type, item.message)
-            src, index = item.source, item.index
+            src = item.source
         else:
             try:
                 s = as_structure(item)
-                s_pos, s_num, err, src, index = s.positions, s.numbers, None, s.source, s.index
+                s_pos, s_num, err, src = s.positions, s.numbers, None, s.source
             except GammatraceError as exc:
                 s_pos, s_num = np.zeros((0, 3)), np.zeros(0, np.int64)
-                err, src, index = (type(exc).__name__, str(exc)), "<input>", k
+                err, src = (type(exc).__name__, str(exc)), "<input>"
+        index = k
         pos.append(s_pos)
         num.append(s_num)
         offs.append(offs[-1] + len(s_num))
@@ -247,7 +253,7 @@ def _run_chunk(chunk: Ragged, tol: float, n_threads: int) -> dict:
 def iter_batch(
     data: Ragged,
     *,
-    tol: float = 0.01,
+    tol: float = DEFAULT_TOL,
     n_threads: int = 0,
     chunk_size: int = DEFAULT_CHUNK,
     progress: bool | Callable[[int], None] = False,
@@ -294,7 +300,7 @@ def _concat(parts: Sequence[dict]) -> dict:
 def analyze_batch(
     structures: Any,
     *,
-    tol: float = 0.01,
+    tol: float = DEFAULT_TOL,
     n_threads: int = 0,
     chunk_size: int = DEFAULT_CHUNK,
     progress: bool = False,

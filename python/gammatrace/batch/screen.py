@@ -20,6 +20,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import InputError
+from ..group import DEFAULT_TOL
 from .run import (
     COLUMNS,
     DEFAULT_CHUNK,
@@ -168,7 +169,7 @@ def screen(
     out: str | None = None,
     *,
     fmt: str | None = None,
-    tol: float = 0.01,
+    tol: float = DEFAULT_TOL,
     n_threads: int = 0,
     chunk_size: int = DEFAULT_CHUNK,
     progress: bool = True,
