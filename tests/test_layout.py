@@ -153,3 +153,59 @@ def test_cycle_finder_sees_function_local_imports(tmp_path, monkeypatch):
     monkeypatch.setattr(sys.modules[__name__], "ROOT", tmp_path)
     graph = _import_graph()
     assert "gammatrace.a" in graph["gammatrace.b"] and "gammatrace.b" in graph["gammatrace.a"]
+
+
+# The layers of DEVELOPERS.md ("Layers"), bottom up: a module imports only from its own layer
+# or the layers below it. Keys are top-level modules or sub-packages of gammatrace.
+LAYERS = {
+    "_core": 0,
+    "errors": 0,
+    "io": 1,
+    "tables": 2,
+    "group": 3,
+    "bases": 4,
+    "basis_change": 4,
+    "spectroscopy": 5,
+    "modes": 5,
+    "symmetrize": 5,
+    "pictures": 5,
+    "analysis": 6,
+    "descent": 7,
+    "batch": 7,
+    "demo": 8,
+    "cli": 9,
+}
+
+
+def _layer(module: str) -> int | None:
+    parts = module.split(".")
+    if len(parts) < 2:
+        return None  # the package's own __init__ (the public API) may import anything
+    return LAYERS[parts[1]]
+
+
+def _upward_imports(graph: dict[str, set[str]]) -> list[tuple[str, str]]:
+    return sorted(
+        (mod, dep)
+        for mod, deps in graph.items()
+        for dep in deps
+        if _layer(mod) is not None and _layer(dep) is not None and _layer(dep) > _layer(mod)
+    )
+
+
+def test_every_module_has_a_layer_and_imports_only_downward():
+    graph = _import_graph()
+    unplaced = sorted(m for m in graph if "." in m and m.split(".")[1] not in LAYERS)
+    assert unplaced == []
+    assert _upward_imports(graph) == []
+
+
+def test_layer_check_sees_an_upward_import(tmp_path, monkeypatch):
+    # the check above must be able to fail: io importing the analysis layer
+    pkg = tmp_path / "python" / "gammatrace"
+    (pkg / "io").mkdir(parents=True)
+    (pkg / "__init__.py").write_text("")
+    (pkg / "io" / "__init__.py").write_text("def f():\n    from ..analysis import analyze\n")
+    (pkg / "analysis.py").write_text("from .io import f\n")
+    monkeypatch.setattr(sys.modules[__name__], "ROOT", tmp_path)
+    assert _upward_imports(_import_graph()) == [("gammatrace.io", "gammatrace.analysis")]

@@ -22,7 +22,7 @@ from . import _core
 from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
 from .bases.counting import Representation, build_representation
 from .errors import GammatraceError, InputError
-from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, orbits
+from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, improper_within, orbits
 from .io import FrameError, Structure, as_structure, element_data, read_structures
 from .spectroscopy import Vibrations, format_irreps, vibrations
 from .tables import LINEAR_SUBGROUP_N
@@ -159,6 +159,13 @@ class Analysis:
         ]
 
     @cached_property
+    def improper_within(self) -> float | None:
+        """The smallest tolerance (Å) at which a mirror, the inversion or an S_n holds; at most
+        :attr:`tol` when the structure is not chiral, ``None`` when none holds within 10 ×
+        :attr:`tol` (see :func:`gammatrace.group.improper_within`)."""
+        return improper_within(self.symmetry)
+
+    @cached_property
     def masses(self) -> np.ndarray:
         """Standard atomic masses (u)."""
         return element_data(self.structure.numbers)[0]
@@ -291,6 +298,8 @@ class Analysis:
         out["vibrations"] = self.vibrations().to_dict()
         out["symmetry_number"] = self.symmetry_number
         out["chiral"] = self.chiral
+        iw = self.improper_within
+        out["improper_within"] = None if iw is None else float(iw)
         if orbits:
             out["orbits"] = [o.to_dict() for o in self.orbits]
         return out
@@ -303,8 +312,7 @@ class Analysis:
             f"  point group   {self.point_group}"
             + (f"  (order {self.order})" if self.order else "")
             + f"   tolerance {self.tol} Å, largest deviation {self.max_deviation:.2e} Å",
-            f"  symmetry number σ = {self.symmetry_number}, "
-            + ("chiral" if self.chiral else "not chiral"),
+            f"  symmetry number σ = {self.symmetry_number}, {self._chirality_text()}",
         ]
         for spec in bases:
             rep = self.representation(spec)
@@ -322,6 +330,17 @@ class Analysis:
             + ("; mutual exclusion (centrosymmetric)" if vib.mutual_exclusion else "")
         )
         return "\n".join(lines)
+
+    def _chirality_text(self) -> str:
+        """``not chiral``, or ``chiral at 0.01 Å; achiral within 0.03 Å`` (the margin)."""
+        if not self.chiral:
+            return "not chiral"
+        iw = self.improper_within
+        if iw is None:
+            return (
+                f"chiral at {self.tol:g} Å; no mirror, inversion or S_n within {10 * self.tol:g} Å"
+            )
+        return f"chiral at {self.tol:g} Å; achiral within {iw:.2g} Å"
 
     def __repr__(self) -> str:
         return (

@@ -2,6 +2,7 @@
 
 - :mod:`.symmetry` — :class:`SymmetryData`, the one value object every layer above reads
   (structure, operations in canonical order, classes, permutations, table);
+- :mod:`.chirality` — ``improper_within``, the margin of a chiral verdict;
 - :mod:`.orbits` — symmetry-equivalent atoms and their site groups;
 - :mod:`.stabilisers` — where the operations send given atoms;
 - :mod:`.irreps` — exact operations and reference irreducible matrices (for the matrix code);
@@ -10,6 +11,7 @@
 
 from __future__ import annotations
 
+from .chirality import improper_within
 from .orbits import Orbit, orbits, site_group_names
 from .symmetry import DEFAULT_TOL, VERIFY_ALL_LIMIT, SymmetryData, as_symmetry
 
@@ -19,6 +21,7 @@ __all__ = [
     "Orbit",
     "SymmetryData",
     "as_symmetry",
+    "improper_within",
     "orbits",
     "site_group_names",
 ]

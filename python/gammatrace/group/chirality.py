@@ -1,0 +1,63 @@
+"""How far a structure is from having an improper operation: the margin of "chiral".
+
+A structure is chiral at a tolerance when no mirror, inversion or S_n holds within it. Noise
+makes that verdict fragile (benzene with 0.02 Å noise is C1 at 0.01 Å), so the verdict comes
+with ``improper_within``: the smallest tolerance, searched up to ``SEARCH_FACTOR`` × the
+given one, at which an improper operation holds — the largest distance any atom moves to its
+image under the best improper operation found. ``None`` when none holds within that range.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .. import _core
+from ..tables import LINEAR_SUBGROUP_N
+from .symmetry import VERIFY_ALL_LIMIT, SymmetryData
+
+__all__ = ["SEARCH_FACTOR", "improper_within"]
+
+#: The search for an improper operation stops at this multiple of the tolerance.
+SEARCH_FACTOR = 10.0
+#: Tolerances tried above the given one, geometric up to SEARCH_FACTOR × tol.
+_STEPS = 10
+
+
+def _best_improper(positions, species, center, ops, proper, tol) -> float | None:
+    """Largest image distance of the best improper operation among ``ops`` (held at tol)."""
+    improper = np.flatnonzero(~np.asarray(proper, dtype=bool))
+    if len(improper) == 0:
+        return None
+    _, devs = _core.map_operations(
+        positions, species, tuple(center), np.ascontiguousarray(ops[improper]), tol
+    )
+    return float(np.min(devs))
+
+
+def improper_within(sym: SymmetryData) -> float | None:
+    """The smallest tolerance (Å) at which the structure has an improper operation.
+
+    For an achiral structure it is at most ``sym.tol`` (the deviation of its best improper
+    operation); for a chiral one the group is searched again at tolerances up to
+    ``SEARCH_FACTOR`` × ``sym.tol``; ``None`` when no improper operation appears there.
+
+    Examples
+    --------
+    >>> import gammatrace as gt
+    >>> water = gt.analyze(["O", "H", "H"], [[0, 0, 0.1173], [0, 0.7572, -0.4692],
+    ...                                      [0, -0.7572, -0.4692]])
+    >>> water.improper_within < 1e-6
+    True
+    """
+    s = sym.structure
+    if not sym.chiral:
+        return _best_improper(
+            s.positions, s.numbers, sym.center, sym.operations, sym.proper, sym.tol
+        )
+    for t in np.geomspace(sym.tol, SEARCH_FACTOR * sym.tol, _STEPS + 1)[1:]:
+        t = float(t)
+        raw = _core.find_point_group(s.positions, s.numbers, t, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT)
+        if raw.proper.all():
+            continue
+        return _best_improper(s.positions, s.numbers, raw.center, raw.operations, raw.proper, t)
+    return None
