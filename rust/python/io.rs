@@ -17,7 +17,8 @@ pub(super) fn frames_to_dict<'py>(
 ) -> PyResult<Bound<'py, PyDict>> {
     let out = PyDict::new(py);
     let n = frames.positions.len();
-    let flat: Vec<f64> = frames.positions.iter().flatten().copied().collect();
+    // the reader's Vec<[f64; 3]> becomes the numpy buffer as it is: no copy
+    let flat: Vec<f64> = frames.positions.into_flattened();
     let pos =
         Array2::from_shape_vec((n, 3), flat).map_err(|e| PyValueError::new_err(e.to_string()))?;
     out.set_item("positions", pos.into_pyarray(py))?;
