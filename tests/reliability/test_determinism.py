@@ -140,7 +140,12 @@ def test_shuffled_batch_comes_back_in_input_order_with_the_same_rows():
         rows = json.loads(_as_json(cols))
         # input order kept: row k is the k-th structure handed in
         assert [r["source"] for r in rows] == [s.source for s in shuffled]
-        assert rows == [ref_rows[i] for i in order]
+        # index is the position in the list handed in (shared/INTERFACE.md, "Batches")
+        assert [r.pop("index") for r in rows] == list(range(len(shuffled)))
+        expected = [dict(ref_rows[i]) for i in order]
+        for r in expected:
+            del r["index"]
+        assert rows == expected
 
 
 def test_screened_jsonl_is_identical_for_1_and_2_threads(mixed_file, tmp_path):
