@@ -20,7 +20,8 @@ Conventions
   irrep's reference matrix D(R) (the same for every copy). Rows are ordered by irrep (table
   order), then copy, then partner. The reference matrices are described in
   :mod:`gammatrace.group.irreps`; they are returned as ``irreducible_matrices``.
-* Operations are made exact first (nearest canonical table operation, or group averaging), so
+* Operations are made exact first (the canonical operation detection says each one is, or
+  group averaging with products read off the atom permutations), so
   the results are exact for the ideal group near the detected one.
 """
 

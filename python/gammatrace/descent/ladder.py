@@ -2,7 +2,8 @@
 
 * :func:`distortion_ladder` — the point group at a series of tolerances, the largest deviation
   at each, and how the irreps correlate between successive distinct groups, restricted through
-  the actual operations (the lower group's operations matched by matrix among the higher's)
+  the actual operations (each of the lower group's operations found among the higher's by how
+  it permutes the atoms and whether it is proper)
   and named by the embedding of :func:`gammatrace.tables.correlate` with that correlation.
 """
 

@@ -34,7 +34,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.spatial import cKDTree
 
 from ..errors import SymmetryError, TableError
 from ..tables._ops import locate
@@ -94,33 +93,45 @@ def _polar(m: np.ndarray) -> np.ndarray:
     return u @ vt
 
 
-def multiplication_table(ops: np.ndarray) -> np.ndarray:
-    """Multiplication table of approximate group matrices, matched to the nearest element.
+def products_from_permutations(ops: np.ndarray, perms: np.ndarray) -> np.ndarray:
+    """Multiplication table of approximate group matrices, read off their atom permutations.
 
-    Only for tables without canonical operations (a table made by hand), before and after
-    idealising the matrices by group averaging; detected operations never come here.
+    Only for tables without canonical operations (a table made by hand): operation a·b moves
+    atom i to ``perms[a][perms[b][i]]``, and that permutation is looked up exactly among the
+    given ones. No matrix is matched to a nearest one; the matrices only confirm the result.
 
     Raises
     ------
     SymmetryError
-        If the products do not close onto the set (not a group within rounding).
+        If two operations move the atoms alike (the structure cannot tell them apart), or the
+        products do not close onto the set, or a product's matrix disagrees with the operation
+        its permutation names.
     """
     h = ops.shape[0]
-    flat = ops.reshape(h, 9)
-    tree = cKDTree(flat)
-    if h > 1:
-        dd, _ = tree.query(flat, k=2)
-        spacing = float(dd[:, 1].min())
-    else:
-        spacing = 1.0
-    prod = np.einsum("aij,bjk->abik", ops, ops).reshape(h * h, 9)
-    dist, idx = tree.query(prod)
-    mult = idx.reshape(h, h).astype(np.int64)
-    worst = float(dist.max())
-    if worst > 0.25 * spacing or np.any(np.sort(mult, axis=1) != np.arange(h)):
+    perms = np.ascontiguousarray(perms, dtype=np.int64)
+    where = {row.tobytes(): k for k, row in enumerate(perms)}
+    if len(where) != h:
         raise SymmetryError(
-            f"the {h} operations do not close into a group: a product lies {worst:.3g} from the "
-            f"nearest operation (operations are {spacing:.3g} apart)"
+            f"{h} operations but only {len(where)} distinct atom permutations: the structure "
+            "cannot tell the operations apart, so their products are unknown (use a table "
+            "from gammatrace.tables.get_table, which carries the canonical operations)"
+        )
+    mult = np.empty((h, h), dtype=np.int64)
+    for a in range(h):
+        composed = perms[a][perms]  # row b: a·b
+        for b in range(h):
+            k = where.get(composed[b].tobytes())
+            if k is None:
+                raise SymmetryError(
+                    f"the {h} operations do not close into a group: operation {a} times "
+                    f"operation {b} moves the atoms as none of them does"
+                )
+            mult[a, b] = k
+    worst = float(np.abs(np.einsum("aij,bjk->abik", ops, ops) - ops[mult]).max())
+    if worst > 0.1:
+        raise SymmetryError(
+            f"the operations' matrices disagree with their atom permutations: a product lies "
+            f"{worst:.3g} from the operation its permutation names"
         )
     return mult
 
@@ -320,9 +331,8 @@ def group_data(sym) -> GroupData:
     ops_std = np.einsum("ai,kij,bj->kab", frame, ops_in, frame)
     found = _canonical(ops_std, sym)
     if found is None:
-        mult = multiplication_table(ops_std)
+        mult = products_from_permutations(ops_std, sym.permutations)
         exact = _idealise(ops_std, mult)
-        mult = multiplication_table(exact)
     else:
         exact, mult = found
     identity = int(np.argmin(np.abs(exact - np.eye(3)).reshape(-1, 9).sum(axis=1)))
