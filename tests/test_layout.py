@@ -159,6 +159,7 @@ def test_cycle_finder_sees_function_local_imports(tmp_path, monkeypatch):
 # or the layers below it. Keys are top-level modules or sub-packages of gammatrace.
 LAYERS = {
     "_core": 0,
+    "_progress": 0,
     "errors": 0,
     "io": 1,
     "tables": 2,

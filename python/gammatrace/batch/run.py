@@ -20,6 +20,7 @@ from typing import Any, Callable
 import numpy as np
 
 from .. import _core
+from .._progress import progress as _progress
 from ..analysis import _check_tol
 from ..errors import GammatraceError, InputError
 from ..group import DEFAULT_TOL
@@ -266,26 +267,14 @@ def iter_batch(
     tol = _check_tol(tol)
     if chunk_size < 1:
         raise InputError(f"chunk_size: must be at least 1, got {chunk_size}")
-    bar = None
-    if progress is True:
-        try:
-            from tqdm import tqdm
-
-            bar = tqdm(total=len(data), unit="structure", smoothing=0.1)
-        except ImportError:
-            bar = None
-    try:
+    with _progress(len(data), enabled=None if progress is True else False) as bar:
         for a in range(0, len(data), chunk_size):
             b = min(a + chunk_size, len(data))
             cols = _run_chunk(data.slice(a, b), float(tol), int(n_threads))
-            if bar is not None:
-                bar.update(b - a)
-            elif callable(progress):
+            bar.update(b - a)
+            if callable(progress):
                 progress(b - a)
             yield cols
-    finally:
-        if bar is not None:
-            bar.close()
 
 
 def _concat(parts: Sequence[dict]) -> dict:
@@ -320,7 +309,7 @@ def analyze_batch(
     chunk_size : int
         Structures per call into the core (progress and Ctrl-C are handled between chunks).
     progress : bool
-        Show a tqdm progress bar (if tqdm is installed).
+        Show a progress bar on standard error (when it is a terminal and tqdm is installed).
     output : {"pandas", "dict", "arrow"}
         The table type returned.
 

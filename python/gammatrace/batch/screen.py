@@ -19,6 +19,7 @@ from typing import Any
 
 import numpy as np
 
+from .._progress import progress as _progress
 from ..errors import InputError
 from ..group import DEFAULT_TOL
 from .run import (
@@ -193,15 +194,7 @@ def screen(
             skip = min(done.get(os.fspath(p), 0), len(d))
             datas.append(d.slice(skip, len(d)))
         total = sum(len(d) for d in datas)
-        bar = None
-        if progress:
-            try:
-                from tqdm import tqdm
-
-                bar = tqdm(total=total, unit="structure", smoothing=0.1)
-            except ImportError:
-                bar = None
-        try:
+        with _progress(total, enabled=None if progress else False) as bar:
             for p, d in zip(paths, datas):
                 if len(d) == 0 and not done.get(os.fspath(p)):
                     cols = _empty_file_row(os.fspath(p))
@@ -213,11 +206,7 @@ def screen(
                     if writer is not None:
                         writer.write(cols)
                     parts.append({k: cols[k] for k in ("source", "index", "point_group", "error")})
-                    if bar is not None:
-                        bar.update(len(cols["index"]))
-        finally:
-            if bar is not None:
-                bar.close()
+                    bar.update(len(cols["index"]))
     finally:
         if writer is not None:
             writer.close()

@@ -10,9 +10,10 @@ import argparse
 import json
 import sys
 import traceback
-from collections.abc import Sequence
+from collections.abc import Iterable, Iterator, Sequence
 from typing import Any
 
+from .._progress import progress
 from ..analysis import Analysis, analyze
 from ..errors import GammatraceError
 from ..group import DEFAULT_TOL
@@ -27,6 +28,7 @@ __all__ = [
     "first_structure",
     "skip_unread",
     "structures",
+    "watched",
     "write",
 ]
 
@@ -100,3 +102,13 @@ def skip_unread(item: Any, fmt: str) -> bool:
 def first_structure(path: str, tol: float) -> Analysis:
     """The analysis of the first frame of ``path`` (the one-structure commands)."""
     return analyze(path, tol=tol, frame=0)
+
+
+def watched(items: Iterable[Any], unit: str = "frame") -> Iterator[Any]:
+    """``items`` with a progress bar on standard error while the results go elsewhere (standard
+    output redirected, standard error a terminal); otherwise just ``items``."""
+    shown = not sys.stdout.isatty() and sys.stderr.isatty()
+    with progress(None, unit=unit, enabled=shown) as bar:
+        for item in items:
+            yield item
+            bar.update(1)

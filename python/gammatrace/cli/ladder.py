@@ -8,7 +8,7 @@ import sys
 
 from ..descent import distortion_ladder
 from ..errors import GammatraceError
-from ._shared import add_format, dump, error_record, fail, skip_unread, structures, write
+from ._shared import add_format, dump, error_record, fail, skip_unread, structures, watched, write
 
 __all__ = ["register", "run"]
 
@@ -36,7 +36,7 @@ def run(args: argparse.Namespace) -> int:
         print(f"gammatrace: {exc}", file=sys.stderr)
         return 2
     status = 0
-    for source, index, item in structures(args.paths):
+    for source, index, item in watched(structures(args.paths)):
         if skip_unread(item, args.format):
             status = 1
             continue

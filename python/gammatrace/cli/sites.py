@@ -17,6 +17,7 @@ from ._shared import (
     fail,
     skip_unread,
     structures,
+    watched,
     write,
 )
 
@@ -25,7 +26,7 @@ __all__ = ["register", "run"]
 
 def run(args: argparse.Namespace) -> int:
     status = 0
-    for source, index, item in structures(args.paths):
+    for source, index, item in watched(structures(args.paths)):
         if skip_unread(item, args.format):
             status = 1
             continue
