@@ -7,11 +7,12 @@ Command modules import this and the layers below; never :mod:`gammatrace.cli` it
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 import traceback
 from collections.abc import Iterable, Iterator, Sequence
 from typing import Any
+
+import orjson
 
 from .._progress import progress
 from ..analysis import Analysis, analyze
@@ -54,8 +55,11 @@ def write(text: str) -> None:
 
 
 def dump(obj: Any) -> str:
-    """One JSON row: UTF-8 kept (Greek labels, ∞), NaN refused."""
-    return json.dumps(obj, ensure_ascii=False, allow_nan=False)
+    """One JSON row, UTF-8 kept (Greek labels, ∞), always valid JSON (a NaN would be null).
+
+    Written with orjson: several times faster than the standard library on these rows.
+    """
+    return orjson.dumps(obj, option=orjson.OPT_SERIALIZE_NUMPY).decode()
 
 
 def fail(exc: BaseException, show_traceback: bool, where: str = "") -> None:
