@@ -23,6 +23,8 @@ from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
 from .bases.counting import Representation, build_representation
 from .errors import GammatraceError, InputError
 from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, improper_within, orbits
+from .group.chirality import SEARCH_FACTOR
+from .group.measure import NearGroup, NearSymmetry
 from .io import FrameError, Structure, as_structure, element_data, read_structures
 from .spectroscopy import Vibrations, format_irreps, vibrations
 from .tables import LINEAR_SUBGROUP_N
@@ -165,6 +167,30 @@ class Analysis:
         :attr:`tol` (see :func:`gammatrace.group.improper_within`)."""
         return improper_within(self.symmetry)
 
+    # ---------------------------------------------------------------- near symmetry
+    @cached_property
+    def near(self) -> NearSymmetry:
+        """Detection at looser tolerances, cached (:mod:`gammatrace.group.measure`)."""
+        return NearSymmetry(self.symmetry)
+
+    def near_symmetry(self, max_factor: float = SEARCH_FACTOR) -> list[NearGroup]:
+        """The groups of larger order found up to ``max_factor`` × :attr:`tol`, each with its
+        continuous symmetry measure (0–100; assignment as detected, orientation optimised:
+        an upper bound of the optimal measure). See :mod:`gammatrace.group.measure`."""
+        return self.near.higher_groups(max_factor)
+
+    def symmetry_measure(self, group: str) -> NearGroup:
+        """The continuous symmetry measure against a named group (``.measure``; None when the
+        group is not found up to 0.5 Å), where it was found (``.tolerance``, ``.found_at``)."""
+        return self.near.measure(group)
+
+    @cached_property
+    def chirality_measure(self) -> NearGroup | None:
+        """The continuous chirality measure: the smallest measure against Cs, Ci, S4, … at
+        the first tolerance where an improper operation holds (None when none does up to
+        0.5 Å); ``.group`` names the improper group that gives it."""
+        return self.near.chirality()
+
     @cached_property
     def masses(self) -> np.ndarray:
         """Standard atomic masses (u)."""
@@ -268,7 +294,13 @@ class Analysis:
         return orbits(self.symmetry)
 
     # ---------------------------------------------------------------- output
-    def to_dict(self, bases: Sequence[Any] = DEFAULT_BASES, orbits: bool = False) -> dict:
+    def to_dict(
+        self,
+        bases: Sequence[Any] = DEFAULT_BASES,
+        orbits: bool = False,
+        near: bool = False,
+        measure: Sequence[str] = (),
+    ) -> dict:
         """The JSON object of shared/INTERFACE.md for this structure.
 
         Parameters
@@ -277,6 +309,11 @@ class Analysis:
             Which representations to include (``"atoms"`` and ``"cartesian"`` by default).
         orbits : bool
             Include the symmetry-distinct atoms (``orbits``).
+        near : bool
+            Include ``near_symmetry`` (the higher groups up to 10 × :attr:`tol`) and
+            ``chirality_measure``.
+        measure
+            Group names whose measure ``near_symmetry`` also lists (once per group).
         """
         out: dict[str, Any] = {
             "source": self.structure.source,
@@ -302,6 +339,11 @@ class Analysis:
         out["improper_within"] = None if iw is None else float(iw)
         if orbits:
             out["orbits"] = [o.to_dict() for o in self.orbits]
+        if near or measure:
+            out["near_symmetry"] = [r.to_dict() for r in self.near.records(near, measure)]
+        if near:
+            cm = self.chirality_measure
+            out["chirality_measure"] = None if cm is None else cm.to_dict()
         return out
 
     def report(self, bases: Sequence[Any] = DEFAULT_BASES, worked: bool = True) -> str:

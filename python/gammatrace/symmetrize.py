@@ -1,7 +1,8 @@
 """Symmetrisation: move a nearly symmetric structure onto the exact point group.
 
 Each atom becomes the group average of the images that the operations bring onto it,
-x'_i = (1/h) Σ_R R⁻¹ x_{π_R(i)}, computed in the standard frame with the exact operations
+x'_i = (1/h) Σ_R R⁻¹ x_{π_R(i)} (:func:`gammatrace.group.measure.symmetric_part`, the projection
+the symmetry measures use), computed in the standard frame with the exact operations
 (the table's canonical matrices when it has them, see :mod:`gammatrace.group.irreps`). When the
 permutations compose like the operations, the result satisfies R x'_i = x'_{π_R(i)} exactly
 (to rounding).
@@ -16,6 +17,7 @@ import numpy as np
 from .bases.matrices import SymmetryData
 from .errors import SymmetryError
 from .group.irreps import group_data
+from .group.measure import symmetric_part
 
 __all__ = ["SymmetrizedStructure", "symmetrize"]
 
@@ -67,13 +69,7 @@ def symmetrize(sym: SymmetryData, tolerance: float | None = None) -> Symmetrized
     g = group_data(sym)
     frame = g.frame
     y = (sym.positions - sym.center) @ frame.T  # standard frame
-    acc = np.zeros_like(y)
-    for k in range(g.order):
-        # R⁻¹ x_{π(i)} as rows: x_{π(i)} @ R for orthogonal R
-        acc += y[sym.permutations[k]] @ g.ops_standard[k]
-    ysym = acc / g.order
-    moved = np.einsum("kij,nj->kni", g.ops_standard, ysym)
-    dev = np.linalg.norm(moved - ysym[sym.permutations], axis=2)
+    ysym, dev = symmetric_part(y, g.ops_standard, sym.permutations)
     max_dev = float(dev.max())
     scale = max(1.0, float(np.abs(ysym).max()))
     if max_dev > 1e-9 * scale:

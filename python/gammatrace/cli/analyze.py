@@ -9,8 +9,11 @@ import sys
 from ..analysis import analyze_many
 from ..bases import parse_basis
 from ..errors import GammatraceError
+from ..group.chirality import SEARCH_FACTOR
+from ..group.measure import EXTENDED_BOUND
 from ..io import FrameError
 from ..pictures import draw_symmetry
+from ..tables import get_table
 from ._shared import add_format, add_tolerance, dump, fail, watched, write
 
 __all__ = ["register", "run"]
@@ -20,9 +23,11 @@ def run(args: argparse.Namespace) -> int:
     bases = ["atoms", "cartesian"] + [
         b for b in (args.basis or []) if b not in ("atoms", "cartesian")
     ]
+    named = args.measure or []
     try:
         for spec in bases:
             parse_basis(spec)
+        named = [get_table(name).name for name in named]
     except GammatraceError as exc:
         fail(exc, args.traceback)
         return 2
@@ -46,12 +51,14 @@ def run(args: argparse.Namespace) -> int:
                     result, os.path.join(args.draw, f"{stem}_{result.structure.index}.png")
                 )
             if args.format == "json":
-                write(dump(result.to_dict(bases, orbits=args.orbits)) + "\n")
+                row = result.to_dict(bases, orbits=args.orbits, near=args.near, measure=named)
+                write(dump(row) + "\n")
             else:
                 write(result.report(bases, worked=not args.brief) + "\n")
                 if args.orbits:
                     for o in result.orbits:
                         write(f"    orbit of {o.size} ({o.site_group}): atoms {o.atoms}\n")
+                write(_near_lines(result, args.near, named))
                 write("\n")
         except GammatraceError as exc:
             status = 1
@@ -63,6 +70,25 @@ def run(args: argparse.Namespace) -> int:
             fail(exc, args.traceback)
         sys.stdout.flush()
     return status
+
+
+def _near_lines(result, near: bool, named: list) -> str:
+    """The text lines of ``--near`` and ``--measure``."""
+    lines = []
+    if near:
+        found = result.near_symmetry()
+        lines += [r.describe("near") for r in found]
+        if not found:
+            lines.append(f"no higher group within {SEARCH_FACTOR * result.tol:g} Å")
+        cm = result.chirality_measure
+        lines.append(
+            cm.describe("chirality")
+            if cm is not None
+            else "chirality measure: no improper operation within "
+            f"{result.near.extended_bound:.2g} Å"
+        )
+    lines += [result.symmetry_measure(name).describe("named") for name in named]
+    return "".join(f"  {line}\n" for line in lines)
 
 
 def register(sub) -> None:
@@ -80,6 +106,20 @@ def register(sub) -> None:
     )
     a.add_argument("--orbits", action="store_true", help="list symmetry-distinct atoms")
     a.add_argument("--brief", action="store_true", help="text: omit the per-class tables")
+    a.add_argument(
+        "--near",
+        action="store_true",
+        help=f"list the higher groups found up to {SEARCH_FACTOR:g} x the tolerance, each with "
+        "its continuous "
+        "symmetry measure (0-100), and the chirality measure",
+    )
+    a.add_argument(
+        "--measure",
+        action="append",
+        metavar="GROUP",
+        help="continuous symmetry measure against a named group, searched up to "
+        f"{EXTENDED_BOUND:g} Å (repeatable)",
+    )
     a.add_argument(
         "--draw",
         default=None,

@@ -3,6 +3,8 @@
 - :mod:`.symmetry` — :class:`SymmetryData`, the one value object every layer above reads
   (structure, operations in canonical order, classes, permutations, table);
 - :mod:`.chirality` — ``improper_within``, the margin of a chiral verdict;
+- :mod:`.measure` — near symmetry: higher groups at looser tolerances and continuous symmetry
+  measures (``NearSymmetry``, ``continuous_measure``);
 - :mod:`.orbits` — symmetry-equivalent atoms and their site groups;
 - :mod:`.stabilisers` — where the operations send given atoms;
 - :mod:`.irreps` — exact operations and reference irreducible matrices (for the matrix code);
@@ -12,15 +14,19 @@
 from __future__ import annotations
 
 from .chirality import improper_within
+from .measure import NearGroup, NearSymmetry, continuous_measure
 from .orbits import Orbit, orbits, site_group_names
 from .symmetry import DEFAULT_TOL, VERIFY_ALL_LIMIT, SymmetryData, as_symmetry
 
 __all__ = [
     "DEFAULT_TOL",
     "VERIFY_ALL_LIMIT",
+    "NearGroup",
+    "NearSymmetry",
     "Orbit",
     "SymmetryData",
     "as_symmetry",
+    "continuous_measure",
     "improper_within",
     "orbits",
     "site_group_names",

@@ -9,18 +9,31 @@ image under the best improper operation found. ``None`` when none holds within t
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from .. import _core
 from ..tables import LINEAR_SUBGROUP_N
 from .symmetry import VERIFY_ALL_LIMIT, SymmetryData
 
-__all__ = ["SEARCH_FACTOR", "improper_within"]
+__all__ = ["SEARCH_FACTOR", "improper_within", "tolerance_ladder"]
 
 #: The search for an improper operation stops at this multiple of the tolerance.
 SEARCH_FACTOR = 10.0
-#: Tolerances tried above the given one, geometric up to SEARCH_FACTOR × tol.
+#: Tolerances tried per factor of ten above the given one (a geometric ladder).
 _STEPS = 10
+
+
+def tolerance_ladder(tol: float, bound: float) -> list[float]:
+    """The tolerances searched above ``tol``: ``tol · 10^(j/10)`` for j = 0, 1, … up to
+    ``bound`` (the last one clipped to it), ``tol`` itself first.
+
+    >>> [round(t, 4) for t in tolerance_ladder(0.01, 0.1)][:3], tolerance_ladder(0.01, 0.1)[-1]
+    ([0.01, 0.0126, 0.0158], 0.1)
+    """
+    n = max(0, math.ceil(math.log10(bound / tol) * _STEPS - 1e-9))
+    return [min(tol * 10.0 ** (j / _STEPS), bound) for j in range(n + 1)]
 
 
 def _best_improper(positions, species, center, ops, proper, tol) -> float | None:
@@ -54,8 +67,7 @@ def improper_within(sym: SymmetryData) -> float | None:
         return _best_improper(
             s.positions, s.numbers, sym.center, sym.operations, sym.proper, sym.tol
         )
-    for t in np.geomspace(sym.tol, SEARCH_FACTOR * sym.tol, _STEPS + 1)[1:]:
-        t = float(t)
+    for t in tolerance_ladder(sym.tol, SEARCH_FACTOR * sym.tol)[1:]:
         raw = _core.find_point_group(s.positions, s.numbers, t, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT)
         if raw.proper.all():
             continue
