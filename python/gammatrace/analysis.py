@@ -26,7 +26,7 @@ from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, improper_
 from .group.chirality import SEARCH_FACTOR
 from .group.measure import NearGroup, NearSymmetry
 from .io import FrameError, Structure, as_structure, element_data, read_structures
-from .spectroscopy import Vibrations, format_irreps, vibrations
+from .spectroscopy import Vibrations, binary_bands, fermi_resonances, format_irreps, vibrations
 from .tables import LINEAR_SUBGROUP_N
 
 __all__ = [
@@ -248,6 +248,24 @@ class Analysis:
             self.__dict__["_vibrations"] = vibrations(self.symmetry, gamma_3n)
         return self.__dict__["_vibrations"]
 
+    def combination_bands(self) -> list:
+        """First overtones and binary combinations of the fundamentals with their IR/Raman
+        activity: a list of :class:`~gammatrace.spectroscopy.CombinationBand` (see
+        :func:`gammatrace.spectroscopy.binary_bands`)."""
+        return binary_bands(self.table, self.vibrations().irreps)
+
+    def fermi_resonances(self, frequencies: Any, window: float) -> list:
+        """Fundamentals within ``window`` cm⁻¹ of an overtone 2ν_a or combination ν_a + ν_b
+        whose species contains their irrep: candidates for Fermi resonance.
+
+        ``frequencies``: ``{irrep: wavenumber or [wavenumbers]}``, ``(irrep, wavenumber)``
+        pairs or the result of :meth:`label_modes` with frequencies, checked against Γ_vib.
+        Band positions are harmonic sums with no anharmonic correction. Returns
+        :class:`~gammatrace.spectroscopy.FermiCandidate` records (see
+        :func:`gammatrace.spectroscopy.fermi_resonances`).
+        """
+        return fermi_resonances(self.table, frequencies, window, self.vibrations().irreps)
+
     # ---------------------------------------------------------------- change of basis
     def symmetry_data(self) -> SymmetryData:
         """The one value object (:attr:`symmetry`), for :mod:`gammatrace.basis_change`,
@@ -365,7 +383,8 @@ class Analysis:
         lines.append(f"  Γ_vib = {format_irreps(vib.irreps)}   ({vib.modes} modes)")
         lines.append(
             f"  IR active: {format_irreps(vib.ir_active)}   "
-            f"Raman active: {format_irreps(vib.raman_active)}"
+            f"Raman active: {format_irreps(vib.raman_active)}   "
+            f"polarised: {format_irreps(vib.polarised)}"
         )
         lines.append(
             f"  distinct fundamentals {vib.n_fundamentals}: {vib.n_ir} IR, {vib.n_raman} Raman"

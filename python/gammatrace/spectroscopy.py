@@ -3,28 +3,43 @@
 IR-active irreps transform as x, y or z; Raman-active ones as a quadratic function (read from the
 character table's basis functions). For linear molecules only Rx and Ry are rotations (3N − 5
 modes), and a single atom (K_h) has none (3N − 3 = 0 modes). Centrosymmetric structures obey
-mutual exclusion: no fundamental is both IR and Raman active.
+mutual exclusion: no fundamental is both IR and Raman active. Only totally symmetric
+fundamentals give polarised Raman bands (depolarisation ratio below 3/4; common practice).
+
+Beyond the fundamentals: :func:`binary_bands` lists the first overtones (the symmetric square of
+each fundamental's irrep) and binary combinations (direct products) of a structure's
+fundamentals with their activity, and :func:`fermi_resonances` the fundamentals lying near an
+overtone or combination of the same symmetry (products and powers: ``tables.products``).
 """
 
 from __future__ import annotations
 
+import math
+from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from .bases import parse_basis
 from .bases.counting import build_representation
-from .errors import ReductionError
+from .errors import InputError, ReductionError
+from .tables.products import band, totally_symmetric
 
 if TYPE_CHECKING:  # pragma: no cover
     from .group.symmetry import SymmetryData
 
 __all__ = [
+    "CombinationBand",
+    "FermiCandidate",
+    "Fundamental",
     "Vibrations",
     "activity_masks",
+    "binary_bands",
     "external_characters",
+    "fermi_resonances",
     "format_irreps",
+    "fundamentals",
     "reduce_vibrations",
     "rotational_freedom",
     "vibration_count",
@@ -52,6 +67,9 @@ class Vibrations:
         True for centrosymmetric structures (no fundamental both IR and Raman active).
     characters : numpy.ndarray
         Characters of Γ_vib per class.
+    polarised : dict
+        The fundamentals with polarised Raman bands: the totally symmetric ones (A1, A1g, Σ+,
+        …), label -> count; empty when Γ_vib has none.
     """
 
     irreps: dict
@@ -63,6 +81,7 @@ class Vibrations:
     n_raman: int
     mutual_exclusion: bool
     characters: np.ndarray
+    polarised: dict
 
     def to_dict(self) -> dict:
         """The ``vibrations`` object of shared/INTERFACE.md (plus counts)."""
@@ -75,6 +94,7 @@ class Vibrations:
             "n_ir_active": self.n_ir,
             "n_raman_active": self.n_raman,
             "mutual_exclusion": self.mutual_exclusion,
+            "polarised": self.polarised,
         }
 
 
@@ -197,6 +217,8 @@ def vibrations(sym: SymmetryData, cartesian_characters=None) -> Vibrations:
     ir = {lab: int(v) for lab, v, a in zip(labels, mult[0], ir_mask) if v and a}
     raman = {lab: int(v) for lab, v, a in zip(labels, mult[0], raman_mask) if v and a}
     centro = any(c.label == "i" for c in table.classes)
+    a1 = totally_symmetric(table)
+    polarised = {a1: irreps[a1]} if a1 in irreps and a1 in raman else {}
     return Vibrations(
         irreps,
         int(modes[0]),
@@ -207,4 +229,276 @@ def vibrations(sym: SymmetryData, cartesian_characters=None) -> Vibrations:
         int(sum(raman.values())),
         centro,
         chars[0],
+        polarised,
     )
+
+
+# ------------------------------------------------------------------ overtones and combinations
+
+
+@dataclass(frozen=True)
+class CombinationBand:
+    """A first overtone (2ν_a) or binary combination (ν_a + ν_b) of fundamentals.
+
+    Attributes
+    ----------
+    kind : str
+        ``"overtone"`` (two quanta of one fundamental: the symmetric square of its irrep) or
+        ``"combination"`` (one quantum each of two fundamentals: the direct product; two
+        different fundamentals of one irrep give its full direct square).
+    quanta : tuple of str
+        The irreps of the two quanta, ``(a, a)`` for an overtone.
+    irreps : dict
+        The band's species, label -> multiplicity.
+    ir_active, raman_active : bool
+        Some irrep of the band carries x, y or z / a quadratic function.
+    """
+
+    kind: str
+    quanta: tuple
+    irreps: dict
+    ir_active: bool
+    raman_active: bool
+
+    @property
+    def allowed(self) -> bool:
+        """Active in the IR or in the Raman spectrum."""
+        return self.ir_active or self.raman_active
+
+    @property
+    def label(self) -> str:
+        """``2ν(E1u)`` or ``ν(E1u) + ν(E2g)``."""
+        a, b = self.quanta
+        return f"2ν({a})" if self.kind == "overtone" else f"ν({a}) + ν({b})"
+
+    def to_dict(self) -> dict:
+        return {
+            "kind": self.kind,
+            "quanta": list(self.quanta),
+            "irreps": dict(self.irreps),
+            "ir_active": self.ir_active,
+            "raman_active": self.raman_active,
+        }
+
+
+def _binary(table, a: str, b: str | None, cache: dict):
+    """The species and activity of 2ν_a (b None) or ν_a + ν_b, computed once per pair."""
+    key = (a, b)
+    if key not in cache:
+        terms = [(a, 2)] if b is None else [(a, 1), (b, 1)]
+        cache[key] = band(table, terms)
+    return cache[key]
+
+
+def binary_bands(table, irreps: dict) -> list[CombinationBand]:
+    """First overtones and binary combinations of the fundamentals ``irreps`` (Γ_vib).
+
+    For each irrep a of Γ_vib, its overtone 2ν_a (the symmetric square); for each pair of
+    irreps a ≠ b, the combination ν_a + ν_b (the direct product); and when Γ_vib holds a more
+    than once, the combination of two different fundamentals of species a (the direct
+    square). Irreps in table order.
+
+    Parameters
+    ----------
+    table : CharacterTable
+    irreps : dict
+        Label -> number of fundamentals (:attr:`Vibrations.irreps`).
+    """
+    labels = [ir.label for ir in table.irreps if irreps.get(ir.label, 0) > 0]
+    cache: dict = {}
+    out = []
+    for i, a in enumerate(labels):
+        b = _binary(table, a, None, cache)
+        out.append(CombinationBand("overtone", (a, a), b.irreps, b.ir_active, b.raman_active))
+        for c in labels[i:]:
+            if c == a and irreps[a] < 2:
+                continue
+            b = _binary(table, a, c, cache)
+            out.append(
+                CombinationBand("combination", (a, c), b.irreps, b.ir_active, b.raman_active)
+            )
+    return out
+
+
+@dataclass(frozen=True)
+class Fundamental:
+    """One fundamental with its wavenumber: ``index`` = position in the list given."""
+
+    index: int
+    irrep: str
+    wavenumber: float
+
+
+@dataclass(frozen=True)
+class FermiCandidate:
+    """A fundamental near an overtone or combination band that contains its irrep.
+
+    Attributes
+    ----------
+    fundamental : Fundamental
+    kind : str
+        ``"overtone"`` or ``"combination"``.
+    quanta : tuple of Fundamental
+        The fundamentals of the band (the same one twice for an overtone).
+    wavenumber : float
+        The band's harmonic position, 2ν_a or ν_a + ν_b (cm⁻¹).
+    irreps : dict
+        The band's species.
+    """
+
+    fundamental: Fundamental
+    kind: str
+    quanta: tuple
+    wavenumber: float
+    irreps: dict
+
+    @property
+    def separation(self) -> float:
+        """|ν_fundamental − ν_band| in cm⁻¹."""
+        return abs(self.fundamental.wavenumber - self.wavenumber)
+
+    def to_dict(self) -> dict:
+        def fund(f: Fundamental) -> dict:
+            return {"index": f.index, "irrep": f.irrep, "wavenumber": f.wavenumber}
+
+        return {
+            "fundamental": fund(self.fundamental),
+            "kind": self.kind,
+            "quanta": [fund(f) for f in self.quanta],
+            "wavenumber": self.wavenumber,
+            "irreps": dict(self.irreps),
+            "separation": self.separation,
+        }
+
+
+def _pairs_from(frequencies: Any) -> list[tuple[Any, Any]]:
+    if hasattr(frequencies, "sets") and hasattr(frequencies, "frequencies"):  # mode labels
+        if frequencies.frequencies is None:
+            raise InputError(
+                "frequencies: these mode labels carry no frequencies (label them from a "
+                "Hessian with masses, or pass frequencies)"
+            )
+        freqs = np.asarray(frequencies.frequencies, dtype=np.float64)
+        external = np.asarray(frequencies.external, dtype=bool)
+        return [
+            (s.irrep, float(freqs[list(s.modes)].mean()))
+            for s in frequencies.sets
+            if not external[list(s.modes)].any()
+        ]
+    if isinstance(frequencies, Mapping):
+        pairs = []
+        for label, value in frequencies.items():
+            values = np.atleast_1d(np.asarray(value, dtype=object))
+            pairs += [(label, v) for v in values.tolist()]
+        return pairs
+    try:
+        return [(label, value) for label, value in frequencies]
+    except (TypeError, ValueError):
+        raise InputError(
+            "frequencies: expected {irrep: wavenumber or [wavenumbers]}, (irrep, wavenumber) "
+            f"pairs or labelled modes, got {type(frequencies).__name__}"
+        ) from None
+
+
+def fundamentals(table, frequencies: Any, irreps: dict | None = None) -> list[Fundamental]:
+    """Fundamentals with wavenumbers (cm⁻¹), one per degenerate set, checked against a table.
+
+    Parameters
+    ----------
+    table : CharacterTable
+    frequencies
+        ``{irrep: wavenumber or [wavenumbers]}``, ``[(irrep, wavenumber), …]``, or the
+        labelled modes of :func:`gammatrace.modes.label_modes` with frequencies (a
+        degenerate set counts once, at its mean; translations and rotations are left out).
+    irreps : dict, optional
+        Γ_vib: each irrep given must be in it, at most as often as it occurs there.
+
+    Raises
+    ------
+    InputError
+        An unknown irrep (the message lists the table's), a wavenumber that is not a positive
+        finite number, more fundamentals of an irrep than Γ_vib holds.
+    """
+    labels = [ir.label for ir in table.irreps]
+    out: list[Fundamental] = []
+    for label, value in _pairs_from(frequencies):
+        if label not in labels:
+            raise InputError(
+                f"frequencies: {label!r} is not an irrep of {table.name}; its irreps are "
+                + ", ".join(labels)
+            )
+        try:
+            nu = float(value)
+        except (TypeError, ValueError):
+            nu = math.nan
+        if not math.isfinite(nu) or nu <= 0:
+            raise InputError(
+                f"frequencies: the wavenumber of {label} must be a positive number in cm⁻¹, "
+                f"got {value!r}"
+            )
+        out.append(Fundamental(len(out), label, nu))
+    if irreps is not None:
+        for label in dict.fromkeys(f.irrep for f in out):
+            given = sum(f.irrep == label for f in out)
+            if given > irreps.get(label, 0):
+                raise InputError(
+                    f"frequencies: {given} fundamentals of {label} given, but Γ_vib = "
+                    f"{format_irreps(irreps)} holds {irreps.get(label, 0)}"
+                )
+    return out
+
+
+def fermi_resonances(
+    table, frequencies: Any, window: float, irreps: dict | None = None
+) -> list[FermiCandidate]:
+    """Pairs that could be in Fermi resonance: a fundamental ν_c within ``window`` cm⁻¹ of an
+    overtone 2ν_a or a binary combination ν_a + ν_b (c not a, b) whose species contains c's irrep.
+
+    Positions are harmonic: 2ν_a and ν_a + ν_b with no anharmonic corrections, so a real
+    overtone usually lies somewhat lower; choose ``window`` with that in mind. Symmetry only
+    says which pairs *can* interact; how strongly is beyond it.
+
+    Parameters
+    ----------
+    table : CharacterTable
+    frequencies
+        As for :func:`fundamentals`.
+    window : float
+        Largest |ν_c − ν_band| in cm⁻¹ (positive).
+    irreps : dict, optional
+        Γ_vib, to check the fundamentals against.
+
+    Returns
+    -------
+    list of FermiCandidate
+        By fundamental (in the order given), then by separation.
+    """
+    try:
+        w = float(window)
+    except (TypeError, ValueError):
+        w = math.nan
+    if not math.isfinite(w) or w <= 0:
+        raise InputError(f"window: expected a positive width in cm⁻¹, got {window!r}")
+    funds = fundamentals(table, frequencies, irreps)
+    nu = np.array([f.wavenumber for f in funds])
+    order = np.argsort(nu, kind="stable")
+    sorted_nu = nu[order]
+    cache: dict = {}
+    out = []
+    for i, a in enumerate(funds):
+        for b in funds[i:]:
+            target = a.wavenumber + b.wavenumber
+            lo = np.searchsorted(sorted_nu, target - w, side="left")
+            hi = np.searchsorted(sorted_nu, target + w, side="right")
+            if lo == hi:
+                continue
+            overtone = b is a
+            species = _binary(table, a.irrep, None if overtone else b.irrep, cache).irreps
+            for k in order[lo:hi]:
+                c = funds[int(k)]
+                if c is a or c is b or c.irrep not in species:
+                    continue
+                kind = "overtone" if overtone else "combination"
+                out.append(FermiCandidate(c, kind, (a, b), target, species))
+    out.sort(key=lambda r: (r.fundamental.index, r.separation, r.quanta[0].index))
+    return out

@@ -1,8 +1,9 @@
 """The ``gammatrace`` command line: one module per command, registered here.
 
-Commands: ``analyze``, ``table``, ``correlate``, ``screen``, ``sites``, ``ladder``, ``salc``,
-``modes``, ``symmetrize``, ``demo``. Each command module has ``register(subparsers)`` and
-``run(args)``; the shared options, writer and error line live in :mod:`._shared`.
+Commands: ``analyze``, ``table``, ``correlate``, ``selection``, ``screen``, ``sites``,
+``ladder``, ``salc``, ``modes``, ``symmetrize``, ``demo``. Each command module has
+``register(subparsers)`` and ``run(args)``; the shared options, writer and error line live
+in :mod:`._shared`.
 Machine-readable output follows shared/INTERFACE.md. Exit status: 0 when everything was analysed,
 1 when anything failed (the rest is still written), 2 for a bad command line.
 """
@@ -14,13 +15,37 @@ import sys
 from collections.abc import Sequence
 
 from ..errors import GammatraceError
-from . import analyze, correlate, demo, ladder, modes, salc, screen, sites, symmetrize, table
+from . import (
+    analyze,
+    correlate,
+    demo,
+    ladder,
+    modes,
+    salc,
+    screen,
+    selection,
+    sites,
+    symmetrize,
+    table,
+)
 from ._shared import fail
 
 __all__ = ["main"]
 
 #: The commands in the order ``--help`` lists them.
-COMMANDS = (analyze, table, correlate, screen, sites, ladder, salc, modes, symmetrize, demo)
+COMMANDS = (
+    analyze,
+    table,
+    correlate,
+    selection,
+    screen,
+    sites,
+    ladder,
+    salc,
+    modes,
+    symmetrize,
+    demo,
+)
 
 
 def _parser() -> argparse.ArgumentParser:
