@@ -232,7 +232,7 @@ class Analysis:
         Raises
         ------
         BasisError
-            For a basis the matrix code does not serve (π, user vectors, l > 3).
+            For a basis the matrix code does not serve (user vectors, l > 3).
         """
         from .bases.matrices import symmetry_adapted_basis  # scipy loads on first use only
 
