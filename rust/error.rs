@@ -131,7 +131,8 @@ impl fmt::Display for Error {
             }
             Error::CoordinateTooLarge { atom, value } => write!(
                 f,
-                "atom {atom} has coordinate {value:e} Å, beyond the supported range of ±1e6 Å"
+                "atom {atom} has coordinate {} Å, beyond the supported range of ±1e6 Å",
+                length(*value)
             ),
             Error::UnknownAtomicNumber { atom, number } => {
                 write!(f, "atom {atom} has atomic number {number}, outside 1..=118")
@@ -146,17 +147,21 @@ impl fmt::Display for Error {
                 tolerance,
             } => write!(
                 f,
-                "atoms {first} and {second} are {distance:.3e} Å apart, within the tolerance \
-                 {tolerance} Å: overlapping atoms"
+                "atoms {first} and {second} are {} Å apart, within the tolerance {} Å: \
+                 overlapping atoms",
+                length(*distance),
+                length(*tolerance)
             ),
             Error::BadTolerance { value } => write!(
                 f,
-                "tolerance must be a positive finite distance in Å, got {value:.3e}"
+                "tolerance must be a positive finite distance in Å, got {}",
+                length(*value)
             ),
             Error::NotASymmetry { atom, distance } => write!(
                 f,
                 "operation is not a symmetry: atom {atom} has no image of its element \
-                 (nearest at {distance:.3e} Å)"
+                 (nearest at {} Å)",
+                length(*distance)
             ),
             Error::AmbiguousImage {
                 first,
@@ -195,6 +200,44 @@ impl fmt::Display for Error {
 
 impl std::error::Error for Error {}
 
+/// A length (or any small positive quantity) as a reader writes it: four significant
+/// digits without an exponent (`1.524`, `0.0152`, `1250`), an exponent only below 1e-3
+/// (`3.2e-05`) or from 1e4 on (`1.2e+07`), trailing zeros dropped; `0` for zero. The same
+/// rule as `gammatrace.text.format_length` on the Python side.
+pub fn length(x: f64) -> String {
+    if !x.is_finite() {
+        return x.to_string();
+    }
+    if x == 0.0 {
+        return "0".to_string();
+    }
+    let a = x.abs();
+    if (1e-3..1e4).contains(&a) {
+        let decimals = (3 - a.log10().floor() as i32).max(0) as usize;
+        let text = format!("{x:.decimals$}");
+        let rounded: f64 = text.parse().unwrap_or(x);
+        // rounding may carry into 1e4 (9999.96): fall through to the exponent form then
+        if rounded.abs() < 1e4 {
+            return if text.contains('.') {
+                text.trim_end_matches('0').trim_end_matches('.').to_string()
+            } else {
+                text
+            };
+        }
+    }
+    let digits = if a < 1e-3 { 1 } else { 3 };
+    let text = format!("{x:.digits$e}");
+    let (mantissa, exponent) = text.split_once('e').unwrap_or((&text, "0"));
+    let exponent: i32 = exponent.parse().unwrap_or(0);
+    let mantissa = if mantissa.contains('.') {
+        mantissa.trim_end_matches('0').trim_end_matches('.')
+    } else {
+        mantissa
+    };
+    let sign = if exponent < 0 { '-' } else { '+' };
+    format!("{mantissa}e{sign}{:02}", exponent.abs())
+}
+
 /// Text quoted from a file, with control characters (ESC, CR, NUL, a stray byte-order
 /// mark...) written as escapes, so that a message stays one printable line.
 fn printable(text: &str) -> String {
@@ -213,3 +256,31 @@ fn printable(text: &str) -> String {
 
 /// Shorthand for core results.
 pub type Result<T> = std::result::Result<T, Error>;
+
+#[cfg(test)]
+mod tests {
+    use super::length;
+
+    #[test]
+    fn lengths_read_naturally() {
+        // common practice: plain decimals for everyday sizes, an exponent for tiny values
+        let cases = [
+            (1.524, "1.524"),
+            (1.5240001, "1.524"),
+            (0.0152, "0.0152"),
+            (0.001, "0.001"),
+            (2.0, "2"),
+            (1250.0, "1250"),
+            (9999.96, "1e+04"),
+            (3.2e-5, "3.2e-05"),
+            (-3.24e-5, "-3.2e-05"),
+            (5e7, "5e+07"),
+            (1.23456e7, "1.235e+07"),
+            (0.0, "0"),
+        ];
+        for (x, want) in cases {
+            assert_eq!(length(x), want, "{x}");
+        }
+        assert_eq!(length(f64::NAN), "NaN");
+    }
+}

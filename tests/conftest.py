@@ -44,6 +44,34 @@ def square_planar(center: str, ligand: str, d: float):
     return [center] + [ligand] * 4, pos
 
 
+def ferrocene_like():
+    """An invented staggered M(C5H5)2 sandwich built as orbits of D5d (no reference geometry):
+    Fe at the centre, C and H seeds in a mirror plane (18° from x, between two C2' axes)."""
+    import gammatrace as gt
+    from gammatrace.io.builders import orbit_structure
+
+    ops = gt.get_table("D5d").operations
+    phi = np.radians(18.0)
+    direction = np.array([np.cos(phi), np.sin(phi), 0.0])
+    seeds = np.array([[0.0, 0.0, 0.0], 1.2 * direction + [0, 0, 1.65], 2.27 * direction])
+    seeds[2, 2] = 1.65
+    return orbit_structure(ops, seeds, np.array([26, 6, 1]))
+
+
+def twisted_ethylene():
+    """Ethylene twisted by 90° about the C=C axis (z), invented geometry (C=C 1.34 Å, C-H
+    1.08 Å, H-C-H 117°): the CH2 planes are the diagonal mirror planes x = y and x = -y, so
+    the structure is D2d and the two p orbitals of the π bond are perpendicular."""
+    half = np.radians(117.0 / 2)
+    r, z = 1.08 * np.sin(half), 0.67 + 1.08 * np.cos(half)
+    d = np.array([1.0, 1.0, 0.0]) / np.sqrt(2.0)
+    e = np.array([1.0, -1.0, 0.0]) / np.sqrt(2.0)
+    pos = [[0, 0, 0.67], [0, 0, -0.67]]
+    pos += [list(r * d + [0, 0, z]), list(-r * d + [0, 0, z])]
+    pos += [list(r * e - [0, 0, z]), list(-r * e - [0, 0, z])]
+    return ["C", "C", "H", "H", "H", "H"], np.array(pos, dtype=float)
+
+
 def random_rotation(rng: np.random.Generator) -> np.ndarray:
     """A uniformly random proper rotation matrix."""
     q, r = np.linalg.qr(rng.normal(size=(3, 3)))

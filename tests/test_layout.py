@@ -160,6 +160,7 @@ def test_cycle_finder_sees_function_local_imports(tmp_path, monkeypatch):
 LAYERS = {
     "_core": 0,
     "_progress": 0,
+    "text": 0,
     "errors": 0,
     "io": 1,
     "tables": 2,

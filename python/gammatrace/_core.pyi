@@ -12,6 +12,7 @@ I64: TypeAlias = npt.NDArray[np.int64]
 DEFAULT_TOLERANCE: float  # default distance tolerance, Å
 LINEAR_SUBGROUP_N: int  # M of the C_Mv / D_Md that stand for C∞v / D∞h
 VERIFY_ALL_LIMIT: int  # verify every operation while n_atoms * order stays below this
+PI_ALIGNMENT: float  # smallest |(R n)·n| at a π centre that R leaves in place
 
 class Detection:
     """The point group of one structure as detection found it (frozen; arrays moved, not copied)."""
@@ -89,10 +90,11 @@ def pi_characters(
     positions: F64,
     center: tuple[float, float, float],
     operations: F64,
-    normal: tuple[float, float, float],
+    normals: F64,
     tol: float,
 ) -> F64:
-    """Per-operation characters of p orbitals perpendicular to the molecular plane."""
+    """Per-operation characters of one p orbital per atom along its row of ``normals``
+    (n_atoms, 3); a zero row carries none. Each unshifted centre adds ±1."""
 
 def find_bonds(positions: F64, radii: F64, scale: float) -> I64:
     """Bonded pairs (n_bonds, 2) with d <= scale * (r_i + r_j)."""

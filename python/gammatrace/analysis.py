@@ -28,6 +28,7 @@ from .group.measure import NearGroup, NearSymmetry
 from .io import FrameError, Structure, as_structure, element_data, read_structures
 from .spectroscopy import Vibrations, binary_bands, fermi_resonances, format_irreps, vibrations
 from .tables import LINEAR_SUBGROUP_N
+from .text import format_length, plural
 
 __all__ = [
     "DEFAULT_TOL",
@@ -282,7 +283,7 @@ class Analysis:
         Raises
         ------
         BasisError
-            For a basis the matrix code does not serve (π, user vectors, l > 3).
+            For a basis the matrix code does not serve (user vectors, l > 3).
         """
         from .bases.matrices import symmetry_adapted_basis  # scipy loads on first use only
 
@@ -368,10 +369,10 @@ class Analysis:
         """A readable text report: group, classes, representations, vibrations."""
         s = self.structure
         lines = [
-            f"{s.source} [frame {s.index}]: {self.n_atoms} atoms",
+            f"{s.source} [frame {s.index}]: {plural(self.n_atoms, 'atom')}",
             f"  point group   {self.point_group}"
             + (f"  (order {self.order})" if self.order else "")
-            + f"   tolerance {self.tol} Å, largest deviation {self.max_deviation:.2e} Å",
+            + f"   tolerance {self.tol} Å, largest deviation {format_length(self.max_deviation)} Å",
             f"  symmetry number σ = {self.symmetry_number}, {self._chirality_text()}",
         ]
         for spec in bases:
@@ -380,7 +381,7 @@ class Analysis:
             if worked:
                 lines.extend("      " + row for row in rep.worked_table().splitlines())
         vib = self.vibrations()
-        lines.append(f"  Γ_vib = {format_irreps(vib.irreps)}   ({vib.modes} modes)")
+        lines.append(f"  Γ_vib = {format_irreps(vib.irreps)}   ({plural(vib.modes, 'mode')})")
         lines.append(
             f"  IR active: {format_irreps(vib.ir_active)}   "
             f"Raman active: {format_irreps(vib.raman_active)}   "
@@ -406,7 +407,7 @@ class Analysis:
     def __repr__(self) -> str:
         return (
             f"<Analysis {self.structure.source}[{self.structure.index}]: {self.point_group}, "
-            f"{self.n_atoms} atoms, max deviation {self.max_deviation:.1e} Å>"
+            f"{plural(self.n_atoms, 'atom')}, max deviation {format_length(self.max_deviation)} Å>"
         )
 
 

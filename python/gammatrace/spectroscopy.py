@@ -25,6 +25,7 @@ from .bases import parse_basis
 from .bases.counting import build_representation
 from .errors import InputError, ReductionError
 from .tables.products import band, totally_symmetric
+from .text import plural
 
 if TYPE_CHECKING:  # pragma: no cover
     from .group.symmetry import SymmetryData
@@ -208,7 +209,8 @@ def vibrations(sym: SymmetryData, cartesian_characters=None) -> Vibrations:
         raw = table.raw_multiplicities(chars)[0]
         parts = ", ".join(f"{ir.label} {v:.6g}" for ir, v in zip(table.irreps, raw))
         raise ReductionError(
-            f"Γ_vib does not reduce to non-negative integers spanning {int(modes[0])} modes: "
+            f"Γ_vib does not reduce to non-negative integers spanning "
+            f"{plural(int(modes[0]), 'mode')}: "
             f"characters {chars[0].tolist()} give {parts}"
         )
     labels = [ir.label for ir in table.irreps]

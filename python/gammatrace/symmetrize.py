@@ -18,6 +18,7 @@ from .bases.matrices import SymmetryData
 from .errors import SymmetryError
 from .group.irreps import group_data
 from .group.measure import symmetric_part
+from .text import format_length
 
 __all__ = ["SymmetrizedStructure", "symmetrize"]
 
@@ -76,15 +77,16 @@ def symmetrize(sym: SymmetryData, tolerance: float | None = None) -> Symmetrized
         k, i = np.unravel_index(int(np.argmax(dev)), dev.shape)
         raise SymmetryError(
             f"the permutations do not compose like the operations: after symmetrisation "
-            f"operation {k} still moves atom {i} {max_dev:.3g} Å from atom {sym.permutations[k, i]}"
+            f"operation {k} still moves atom {i} {format_length(max_dev)} Å from atom "
+            f"{sym.permutations[k, i]}"
         )
     positions = ysym @ frame + sym.center
     step = np.linalg.norm(positions - sym.positions, axis=1)
     worst = int(np.argmax(step))
     if tolerance is not None and step[worst] > tolerance:
         raise SymmetryError(
-            f"symmetrisation would move atom {worst} by {step[worst]:.3g} Å, more than the "
-            f"tolerance {tolerance:.3g} Å"
+            f"symmetrisation would move atom {worst} by {format_length(step[worst])} Å, more "
+            f"than the tolerance {format_length(tolerance)} Å"
         )
     return SymmetrizedStructure(
         positions, float(np.sqrt(np.mean(step**2))), float(step[worst]), worst, max_dev

@@ -19,7 +19,7 @@
 //!   every result is bit-identical for any number of threads.
 //!
 //! Files by basis: `atoms` (unshifted atoms, Cartesian displacements), `orbitals` (shells of
-//! angular momentum l), `pi` (p orbitals normal to a plane), `bonds` (bond search, stretches
+//! angular momentum l), `pi` (one p orbital per π centre along its normal), `bonds` (bond search, stretches
 //! and bond vectors), `vectors` (a user's vector set per atom), `orbits` (union-find over
 //! permutations).
 
@@ -37,7 +37,7 @@ pub use atoms::{cartesian_characters, count_unshifted};
 pub use bonds::{bond_characters, find_bonds};
 pub use orbitals::{orbital_character, orbital_contributions, shell_characters};
 pub use orbits::orbits;
-pub use pi::pi_characters;
+pub use pi::{pi_characters, PI_ALIGNMENT};
 pub use vectors::{vector_set_characters, SPAN_RESIDUAL};
 
 use crate::error::{Error, Result};

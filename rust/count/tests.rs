@@ -514,10 +514,52 @@ fn benzene_pi_characters() {
     // Source: Cotton, benzene π orbitals, Γπ = 6 0 0 0 −2 0 0 0 0 −6 (mirror through
     // atoms 2, between atoms 0) = A2u + B2g + E1g + E2u (from memory).
     let want = [6.0, 0.0, 0.0, 0.0, -2.0, 0.0, 0.0, 0.0, 0.0, -6.0, 2.0, 0.0];
-    let chi = pi_characters(&pos, c, &ops, [0.0, 0.0, 2.0], 1e-3);
+    let normals = vec![[0.0, 0.0, 2.0]; 6];
+    let chi = pi_characters(&pos, c, &ops, &normals, 1e-3).unwrap();
     for (k, (a, b)) in chi.iter().zip(want).enumerate() {
         assert!((a - b).abs() < 1e-12, "op {k}: {chi:?}");
     }
+    // Hydrogens at the same angles carry no p orbital (zero rows): nothing changes.
+    let mut with_h = pos.clone();
+    with_h.extend(
+        pos.iter()
+            .map(|p| [2.0 * p[0] - 5.0, 2.0 * p[1] + 2.0, 7.0]),
+    );
+    let mut rows = normals.clone();
+    rows.extend([[0.0; 3]; 6]);
+    assert_eq!(pi_characters(&with_h, c, &ops, &rows, 1e-3).unwrap(), chi);
+}
+
+#[test]
+fn twisted_ethylene_pi_characters_follow_local_normals() {
+    // C=C along z with one CH2 in the xz plane and the other in the yz plane (D2d): each p
+    // orbital is normal to its own CH2 plane, so the two are perpendicular. Literal method:
+    // Γ(R) sends the orbital of atom j onto (R n_j)·n_{π(j)} times the orbital of π(j); its
+    // trace sums (R n_j)·n_j over unshifted atoms. Derived by hand from the D2d table (Cotton,
+    // appendix): E 2, S4 0, C2 -2, C2' 0, σd 0, i.e. E.
+    let z = [0.0, 0.0, 1.0];
+    let pos = vec![[0.0, 0.0, 0.67], [0.0, 0.0, -0.67]];
+    let normals = vec![[0.0, 1.0, 0.0], [1.0, 0.0, 0.0]];
+    let diag = [0.5f64.sqrt(), 0.5f64.sqrt(), 0.0];
+    let ops = vec![
+        EYE,
+        improper(z, 90.0),
+        rot(z, 180.0),
+        rot(diag, 180.0),
+        refl([0.0, 1.0, 0.0]), // σd = xz, the plane of the first CH2
+    ];
+    let chi = pi_characters(&pos, [0.0; 3], &ops, &normals, 1e-6).unwrap();
+    assert_eq!(chi, vec![2.0, 0.0, -2.0, 0.0, 0.0]);
+    // An operation that keeps an atom but turns its orbital by 90° is no symmetry of the basis.
+    let err = pi_characters(&pos, [0.0; 3], &[rot(z, 90.0)], &normals, 1e-6).unwrap_err();
+    assert!(
+        err.to_string().contains("operation 0 leaves atom 0"),
+        "{err}"
+    );
+    // One row per atom, finite.
+    assert!(pi_characters(&pos, [0.0; 3], &ops, &normals[..1], 1e-6).is_err());
+    let nan = vec![[f64::NAN, 0.0, 0.0], [1.0, 0.0, 0.0]];
+    assert!(pi_characters(&pos, [0.0; 3], &ops, &nan, 1e-6).is_err());
 }
 
 // ---------- the formula against literal traces ----------
@@ -720,7 +762,7 @@ fn zero_and_one_atom() {
     assert_eq!(find_bonds(&[], &[], 1.2).unwrap(), Vec::<[u32; 2]>::new());
     assert_eq!(orbits(0, &[vec![]]).unwrap(), Vec::<u32>::new());
     assert_eq!(
-        pi_characters(&[], [0.0; 3], &ops, [0.0, 0.0, 1.0], 0.01),
+        pi_characters(&[], [0.0; 3], &ops, &[], 0.01).unwrap(),
         vec![0.0, 0.0]
     );
     let one = [[1.0, 2.0, 3.0]];

@@ -69,19 +69,22 @@ pub(super) fn orbital_contributions<'py>(
     Ok(out.into_pyarray(py))
 }
 
-/// Characters of one p orbital per atom perpendicular to the molecular plane.
+/// Characters of one p orbital per π centre along its normal (a zero row: no orbital).
 #[pyfunction]
 pub(super) fn pi_characters<'py>(
     py: Python<'py>,
     positions: PyReadonlyArray2<'py, f64>,
     center: [f64; 3],
     operations: PyReadonlyArray3<'py, f64>,
-    normal: [f64; 3],
+    normals: PyReadonlyArray2<'py, f64>,
     tol: f64,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let pos = coords(&positions, "positions")?;
     let ops = matrices(&operations, "operations")?;
-    let out = py.detach(|| count::pi_characters(pos, center, ops, normal, tol));
+    let nrm = coords(&normals, "normals")?;
+    let out = py
+        .detach(|| guarded(|| count::pi_characters(pos, center, ops, nrm, tol)))
+        .map_err(CoreError)?;
     Ok(out.into_pyarray(py))
 }
 

@@ -114,5 +114,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("DEFAULT_TOLERANCE", crate::detect::DEFAULT_TOLERANCE)?;
     m.add("LINEAR_SUBGROUP_N", crate::detect::LINEAR_SUBGROUP_N)?;
     m.add("VERIFY_ALL_LIMIT", crate::detect::DEFAULT_VERIFY_ALL_LIMIT)?;
+    m.add("PI_ALIGNMENT", crate::count::PI_ALIGNMENT)?;
     Ok(())
 }

@@ -117,6 +117,27 @@ def test_bond_bases_are_block_diagonal():
     assert sab.multiplicities == flipped.multiplicities
 
 
+def test_pi_bases_are_block_diagonal():
+    # benzene through the helper's D6h table, rotated and shifted: one p orbital per carbon
+    sym, _ = _benzene_sym()
+    sab = check_block_structure(sym, "pi")
+    # Cotton, ch. 7 (benzene π MOs): A2u + B2g + E1g + E2u
+    assert {k: v for k, v in sab.multiplicities.items() if v} == {
+        "A2u": 1,
+        "B2g": 1,
+        "E1g": 1,
+        "E2u": 1,
+    }
+    # p orbitals along two perpendicular local normals (twisted ethylene, D2d): the signs of
+    # the operations that turn one orbital into ± the other follow the normals
+    import gammatrace as gt
+    from conftest import twisted_ethylene
+
+    sym = gt.analyze(*twisted_ethylene()).symmetry_data()
+    sab = check_block_structure(sym, "pi")
+    assert {k: v for k, v in sab.multiplicities.items() if v} == {"E": 1}
+
+
 def test_benzene_cc_stretches_are_a1g_b2u_e1u_e2g():
     # Source: common practice (benzene C-C stretches, Kekulé mode b2u with C2' through atoms;
     # Wilson's numbering ν14).

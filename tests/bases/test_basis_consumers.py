@@ -8,7 +8,7 @@ from __future__ import annotations
 import gammatrace as gt
 import numpy as np
 import pytest
-from conftest import ase_molecule, octahedral
+from conftest import ase_molecule, ferrocene_like, octahedral, twisted_ethylene
 from gammatrace.basis_change import (
     basis_dimension,
     representation_matrices,
@@ -17,19 +17,6 @@ from gammatrace.basis_change import (
 )
 from gammatrace.cli import main
 from gammatrace.io import Structure, write_xyz
-from gammatrace.io.builders import orbit_structure
-
-
-def ferrocene_like() -> Structure:
-    """An invented staggered M(C5H5)2 sandwich built as orbits of D5d (no reference geometry):
-    Fe at the centre, C and H seeds in a mirror plane (18° from x, between two C2' axes)."""
-    ops = gt.get_table("D5d").operations
-    phi = np.radians(18.0)
-    direction = np.array([np.cos(phi), np.sin(phi), 0.0])
-    seeds = np.array([[0.0, 0.0, 0.0], 1.2 * direction + [0, 0, 1.65], 2.27 * direction])
-    seeds[2, 2] = 1.65
-    return orbit_structure(ops, seeds, np.array([26, 6, 1]))
-
 
 MOLECULES = {
     "water": lambda: gt.analyze(*ase_molecule("H2O")),
@@ -83,26 +70,23 @@ def test_salc_multiplicities_equal_the_counted_reduction(analysis, spec):
 def test_unserved_bases_raise_basis_error_when_used():
     benzene = gt.analyze(*ase_molecule("C6H6"))
     sym = benzene.symmetry_data()
-    pi = gt.Basis.pi()  # constructing is fine: the characters are counted
-    assert benzene.representation(pi).dimension == 12
-    for call in (
-        lambda: benzene.symmetry_adapted_basis(pi),
-        lambda: symmetry_adapted_basis(sym, "pi"),
-        lambda: representation_matrix(sym, 0, benzene.resolve_basis(pi)),
-    ):
-        with pytest.raises(gt.BasisError, match=r"basis 'pi'.*serves atoms, cartesian"):
-            call()
     vec = gt.Basis.vector_set(np.broadcast_to(np.eye(3), (12, 3, 3)))
     assert benzene.representation(vec).irreps == benzene.representation("cartesian").irreps
     with pytest.raises(gt.BasisError, match=r"basis 'vectors.*serves"):
         benzene.symmetry_adapted_basis(vec)
     g = gt.Basis.orbitals({"C": "g"})
     assert benzene.representation(g).dimension == 6 * 9  # counted for any l
-    with pytest.raises(gt.BasisError, match=r"'orbitals:C=g'.*l = 4"):
-        representation_matrices(sym, g)
+    for call in (
+        lambda: representation_matrices(sym, g),
+        lambda: benzene.symmetry_adapted_basis(g),
+        lambda: symmetry_adapted_basis(sym, "orbitals:C=g"),
+        lambda: representation_matrix(sym, 0, benzene.resolve_basis(g)),
+    ):
+        with pytest.raises(gt.BasisError, match=r"'orbitals:C=g'.*l = 4"):
+            call()
     methane = gt.analyze(*ase_molecule("CH4"))
-    # not planar, but the first thing said is that the matrix code has no π
-    with pytest.raises(gt.BasisError, match="serves"):
+    # the matrix code serves π; methane has no π centre to put it on
+    with pytest.raises(gt.BasisError, match="no π centres"):
         methane.symmetry_adapted_basis("pi")
 
 
@@ -110,7 +94,33 @@ def test_cli_salc_reports_an_unserved_basis(tmp_path, capsys):
     symbols, pos = ase_molecule("C6H6")
     xyz = tmp_path / "benzene.xyz"
     write_xyz([Structure(np.asarray(gt.io.atomic_numbers(symbols)), pos)], xyz)
-    assert main(["salc", str(xyz), "--basis", "pi"]) == 1
+    assert main(["salc", str(xyz), "--basis", "orbitals:C=g"]) == 1
     err = capsys.readouterr().err
-    assert "BasisError" in err and "'pi'" in err
+    assert "BasisError" in err and "'orbitals:C=g'" in err
     assert main(["salc", str(xyz), "--basis", "orbitals:C=p", "--format", "json"]) == 0
+
+
+PI_MOLECULES = {
+    "benzene": lambda: gt.analyze(*ase_molecule("C6H6")),
+    "pyridine": lambda: gt.analyze(*ase_molecule("C5H5N")),
+    "furan": lambda: gt.analyze(*ase_molecule("C4H4O")),
+    "isobutene": lambda: gt.analyze(*ase_molecule("isobutene")),
+    "ferrocene-like": lambda: gt.analyze(ferrocene_like()),
+    "twisted ethylene": lambda: gt.analyze(*twisted_ethylene()),
+}
+
+
+@pytest.mark.parametrize("name", list(PI_MOLECULES))
+def test_pi_characters_equal_matrix_traces(name):
+    # The matrix code serves π: p orbital j goes to ±(p orbital π_R(j)), the sign that of
+    # (R n_j)·n_π(j); its traces are the counted characters, operation by operation.
+    analysis = PI_MOLECULES[name]()
+    resolved = analysis.resolve_basis("pi")
+    counted = analysis.representation("pi").per_operation
+    matrices = representation_matrices(analysis.symmetry_data(), resolved)
+    traces = np.array([m.diagonal().sum() for m in matrices])
+    assert np.allclose(traces, counted, atol=1e-8), (traces, counted)
+    assert basis_dimension(analysis.symmetry_data(), resolved) == resolved.centres.size
+    sab = analysis.symmetry_adapted_basis("pi")
+    counted_irreps = analysis.representation("pi").irreps
+    assert {k: v for k, v in sab.multiplicities.items() if v} == counted_irreps

@@ -19,6 +19,8 @@ SPECS = [
     "atoms",
     "cartesian",
     "pi",
+    "pi:C,N",
+    "pi:*",
     "bonds",
     "bonds:scale=1.3",
     "bond_vectors",
@@ -67,6 +69,24 @@ def test_different_specs_differ():
     assert Basis.bonds([[0, 1]]) != Basis.bonds([[1, 2]])
     assert Basis.bond_vectors([[0, 1]]) != Basis.bond_vectors([[1, 0]])  # orientation
     assert parse_basis("orbitals:O=sp") != parse_basis("orbitals:O=sp,*=s")
+    assert parse_basis("pi") != parse_basis("pi:C") != parse_basis("pi:*")
+
+
+def test_pi_names_its_elements_in_any_form():
+    same = [parse_basis("pi:N,C"), parse_basis("pi: C , N "), Basis.pi(["C", "N"])]
+    same += [Basis.pi([7, 6]), Basis.pi("n,c")]
+    assert all(b == same[0] and hash(b) == hash(same[0]) for b in same)
+    assert str(same[0]) == "pi:C,N" and same[0].elements == (6, 7)
+    assert parse_basis("pi:").elements == () and str(parse_basis("pi:")) == "pi"
+    assert parse_basis("pi:*").elements == ("*",)
+    with pytest.raises(gt.BasisError, match="named twice"):
+        parse_basis("pi:C,C")
+    with pytest.raises(gt.BasisError, match="every element"):
+        parse_basis("pi:*,C")
+    with pytest.raises(gt.BasisError, match="unknown option"):
+        parse_basis("pi:scale=1.3")
+    with pytest.raises(gt.BasisError, match="takes no element list"):
+        Basis("cartesian", elements=(6,))
 
 
 def test_basis_is_frozen_and_keeps_its_own_arrays():

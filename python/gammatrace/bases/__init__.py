@@ -3,7 +3,7 @@
 - :class:`Basis` (:mod:`.spec`): frozen, hashable; string form ``NAME:options``
   (:func:`parse_basis`), constructors for every kind.
 - :class:`ResolvedBasis` (:mod:`.resolve`): a basis on one structure (shells per atom, bonds,
-  plane normal, vectors), read by the counting code and the matrix code alike.
+  π centres and normals, vectors), read by the counting code and the matrix code alike.
 - :mod:`.components`: a resolved basis as site components for the matrix code;
   :mod:`.salc` their orbit-type reduction; :mod:`.harmonics` real spherical harmonics;
   :mod:`.elements` element symbols.
@@ -15,7 +15,7 @@ of them.
 from __future__ import annotations
 
 from .components import MATRIX_KINDS, check_matrix_kind
-from .resolve import ResolvedBasis, find_bonds, plane_normal
+from .resolve import ResolvedBasis, find_bonds, pi_centres, plane_normal
 from .spec import ANY_ELEMENT, DEFAULT_BOND_SCALE, KINDS, ORBITAL_LETTERS, Basis, parse_basis
 
 __all__ = [
@@ -29,5 +29,6 @@ __all__ = [
     "check_matrix_kind",
     "find_bonds",
     "parse_basis",
+    "pi_centres",
     "plane_normal",
 ]

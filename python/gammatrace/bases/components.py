@@ -8,8 +8,9 @@ representation matrices, projectors and the orbit-type reduction of
 
 Basis order: Cartesian ``3 * atom + (x, y, z)``; atoms one per atom; orbitals atom-major, within
 an atom the element's shells in the order given, within a shell the real harmonics
-m = -l..l of :mod:`gammatrace.group.harmonics`; bonds in the order of the pairs, a vector along
-bond (a, b) pointing from a to b.
+m = -l..l of :mod:`gammatrace.group.harmonics`; π one p orbital per π centre in atom order,
+along the centre's normal (``ResolvedBasis.normals``); bonds in the order of the pairs, a
+vector along bond (a, b) pointing from a to b.
 
 The matrix code serves :data:`MATRIX_KINDS` (orbitals up to l = ``harmonics.MAX_L``); any
 other basis raises :class:`~gammatrace.errors.BasisError` when it is used here
@@ -23,6 +24,7 @@ from typing import Any
 
 import numpy as np
 
+from .. import _core
 from ..errors import BasisError, SymmetryError
 from ..group import harmonics
 from .spec import ORBITAL_LETTERS
@@ -37,7 +39,7 @@ __all__ = [
 ]
 
 #: The kinds of basis the matrix code (representation matrices, SALCs, projectors) serves.
-MATRIX_KINDS = ("atoms", "cartesian", "orbitals", "bonds", "bond_vectors")
+MATRIX_KINDS = ("atoms", "cartesian", "orbitals", "pi", "bonds", "bond_vectors")
 
 
 @dataclass(frozen=True)
@@ -51,7 +53,8 @@ class Component:
     site_perm : ndarray, shape (h, n_universe)
         Image of every site of the universe (atoms or bonds) under each operation.
     site_sign : ndarray or None, shape (h, n_universe)
-        ±1 factor of every site's function under each operation (vectors along bonds).
+        ±1 factor of every site's function under each operation (vectors along bonds, π
+        orbitals turned over).
     sites : ndarray, shape (n_c,)
         Sites (indices into the universe) carrying this component; closed under the group.
     offsets : ndarray, shape (n_c,)
@@ -148,6 +151,44 @@ def bond_permutation(permutations: np.ndarray, pairs: np.ndarray):
     return bperm, sign
 
 
+def pi_signs(
+    permutations: np.ndarray, operations: np.ndarray, normals: np.ndarray, centres: np.ndarray
+) -> np.ndarray:
+    """``(h, n_atoms)`` ±1: operation k sends the p orbital of centre j onto that sign times
+    the p orbital of centre ``permutations[k, j]`` (1 at atoms without one).
+
+    Raises
+    ------
+    SymmetryError
+        When an operation sends a centre onto an atom without a p orbital, or turns an orbital
+        away from ± the orbital of its image (|(R n_j)·n_{π(j)}| < ``_core.PI_ALIGNMENT``).
+    """
+    h, n = permutations.shape
+    sign = np.ones((h, n))
+    if centres.size == 0:
+        return sign
+    img = permutations[:, centres]
+    has = np.zeros(n, dtype=bool)
+    has[centres] = True
+    if not has[img].all():
+        k, j = np.argwhere(~has[img])[0]
+        raise SymmetryError(
+            f"pi: operation {k} maps π centre {centres[j]} onto atom {img[k, j]}, which "
+            "carries no p orbital"
+        )
+    turned = np.einsum("kab,jb->kja", operations, normals[centres])
+    dot = np.einsum("kja,kja->kj", turned, normals[img])
+    bad = np.abs(dot) < _core.PI_ALIGNMENT
+    if bad.any():
+        k, j = np.argwhere(bad)[0]
+        raise SymmetryError(
+            f"pi: operation {k} turns the p orbital of atom {centres[j]} away from that of "
+            f"atom {img[k, j]} ((R n)·n' = {dot[k, j]:.3f}, not ±1)"
+        )
+    sign[:, centres] = np.sign(dot)
+    return sign
+
+
 def site_components(resolved: Any, permutations: np.ndarray, operations: np.ndarray) -> list:
     """The components of a resolved basis under a group's operations.
 
@@ -168,7 +209,8 @@ def site_components(resolved: Any, permutations: np.ndarray, operations: np.ndar
     BasisError
         For a basis the matrix code does not serve (:func:`check_matrix_kind`).
     SymmetryError
-        For bonds that the operations do not map onto bonds.
+        For bonds that the operations do not map onto bonds, or π orbitals that they do not
+        map onto ± π orbitals.
     """
     check_matrix_kind(resolved.basis)
     h, n = permutations.shape
@@ -187,6 +229,11 @@ def site_components(resolved: Any, permutations: np.ndarray, operations: np.ndar
         bperm, sign = bond_permutation(permutations, pairs)
         signs = sign if kind == "bond_vectors" else None
         return [Component(kind, bperm, signs, np.arange(nb), np.arange(nb), np.ones((h, 1, 1)))]
+    if kind == "pi":
+        centres = resolved.centres
+        offsets = np.arange(centres.size, dtype=np.int64)
+        sign = pi_signs(permutations, operations, resolved.atom_normals, centres)
+        return [Component("pi", permutations, sign, centres, offsets, np.ones((h, 1, 1)))]
     # orbitals: one component per (element, shell), atoms of the element in index order
     sizes = resolved.functions_per_atom
     atom_off = np.concatenate([[0], np.cumsum(sizes)[:-1]]).astype(np.int64)

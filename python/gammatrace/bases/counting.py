@@ -46,9 +46,12 @@ class Representation:
     irreps : dict
         Mulliken label -> multiplicity (zeros left out).
     unshifted : numpy.ndarray
-        Unshifted atoms (or bonds) for one operation of each class.
+        Unshifted atoms carrying the basis (or unshifted bonds) for one operation of each
+        class: an atom without functions (a hydrogen of ``orbitals:Fe=d``, of π) is not
+        counted.
     contributions : list
-        Contribution per unshifted item in each class (a number, or None when it varies).
+        Contribution per unshifted item in each class: a number when every item unshifted in
+        that class contributes the same, else None.
     """
 
     basis: Basis
@@ -71,9 +74,11 @@ class Representation:
     def worked_table(self) -> str:
         """The per-class table a practitioner writes by hand.
 
-        Columns: class, unshifted atoms (or bonds), contribution per unshifted item, character.
+        Columns: class, unshifted atoms carrying the basis (or bonds), contribution per
+        unshifted item, character.
         """
-        item = "bonds" if self.basis.kind in ("bonds", "bond_vectors") else "atoms"
+        kind = self.basis.kind
+        item = {"bonds": "bonds", "bond_vectors": "bonds", "pi": "π centres"}.get(kind, "atoms")
         rows = [("class", f"unshifted {item}", "per item", "character")]
         for label, n, contrib, chi in zip(
             self.class_labels, self.unshifted, self.contributions, self.characters
@@ -116,9 +121,11 @@ def format_number(x: float) -> str:
 
 
 def count_characters(sym: SymmetryData, resolved: ResolvedBasis) -> tuple[np.ndarray, np.ndarray]:
-    """Per-operation characters and unshifted items (atoms or bonds) of a resolved basis.
+    """Per-operation characters and unshifted items of a resolved basis: bonds for the bond
+    bases, else the atoms carrying at least one function.
 
-    One call into the core (rust/count.rs) per basis; no matrix is built.
+    One call into the core (rust/count/) per basis, and one more for the unshifted atoms when
+    some atoms carry nothing; no matrix is built.
     """
     pos, center, ops, tol = (sym.positions, tuple(sym.center), sym.operations, sym.tol)
     kind = resolved.kind
@@ -129,7 +136,7 @@ def count_characters(sym: SymmetryData, resolved: ResolvedBasis) -> tuple[np.nda
         if kind == "bonds":
             return unshifted.copy(), unshifted
         return _core.bond_characters(pos, center, ops, bonds, True, tol), unshifted
-    unshifted = sym.unshifted_atoms
+    unshifted = _unshifted_carriers(sym, resolved)
     if kind == "atoms":
         return unshifted.copy(), unshifted
     proper = np.ascontiguousarray(sym.proper)
@@ -141,12 +148,36 @@ def count_characters(sym: SymmetryData, resolved: ResolvedBasis) -> tuple[np.nda
         counts = resolved.shell_counts
         return _core.shell_characters(pos, center, ops, proper, angle, counts, tol), unshifted
     if kind == "pi":
-        normal = tuple(resolved.normal)
-        return _core.pi_characters(pos, center, ops, normal, tol), unshifted
+        normals = np.ascontiguousarray(resolved.atom_normals)
+        return _core.pi_characters(pos, center, ops, normals, tol), unshifted
     # vectors
     vec = resolved.vectors
     flat = np.ascontiguousarray(vec.reshape(-1, 3))
     return _core.vector_set_characters(pos, center, ops, flat, vec.shape[1], tol), unshifted
+
+
+def _unshifted_carriers(sym: SymmetryData, resolved: ResolvedBasis) -> np.ndarray:
+    """Atoms carrying the basis that each operation leaves unshifted (``float64 (h,)``)."""
+    carriers = resolved.carriers
+    if carriers.all():
+        return sym.unshifted_atoms
+    pos = np.ascontiguousarray(sym.positions[carriers])
+    counts = _core.count_unshifted(pos, tuple(sym.center), sym.operations, sym.tol)
+    return counts.astype(np.float64)
+
+
+def _orbital_groups_unshifted(sym: SymmetryData, resolved: ResolvedBasis) -> np.ndarray:
+    """Orbitals on atoms of different shells: ``(n_groups, h)`` unshifted atoms of each set
+    of shells, so a class whose unshifted atoms all carry the same shells is known."""
+    shells = resolved.element_shells
+    signature = {z: tuple(sorted(ls)) for z, ls in shells.items() if ls}
+    groups = sorted(set(signature.values()))
+    out = np.zeros((len(groups), sym.order))
+    for g, sig in enumerate(groups):
+        zs = [z for z, s in signature.items() if s == sig]
+        pos = np.ascontiguousarray(sym.positions[np.isin(sym.numbers, zs)])
+        out[g] = _core.count_unshifted(pos, tuple(sym.center), sym.operations, sym.tol)
+    return out
 
 
 def per_class(
@@ -207,13 +238,21 @@ def build_representation(sym: SymmetryData, resolved: ResolvedBasis) -> Represen
     labels = tuple(c.label for c in sym.table.classes)
     chars = per_class(chars_op, sym.op_class, labels, f"basis '{basis.name}'")
     unshifted = per_class(unshifted_op, sym.op_class, labels, f"basis '{basis.name}'")
+    # Each unshifted bond vector or π centre adds +1 or -1: the items agree exactly when the
+    # character per item is ±1. Otherwise the items of a class contribute alike when they are
+    # all of one kind: always for a uniform basis; for orbitals of several kinds, when one
+    # kind alone is unshifted in that class.
+    signed = basis.kind in ("bond_vectors", "pi")
+    single_kind = np.full(len(labels), signed or resolved.uniform)
+    if not single_kind.all() and basis.kind == "orbitals":
+        by_group = _orbital_groups_unshifted(sym, resolved)
+        kinds = np.stack([per_class(g, sym.op_class, labels, "unshifted") for g in by_group])
+        single_kind = (kinds > 0).sum(axis=0) <= 1
     contributions: list = []
     for k in range(len(labels)):
         n = unshifted[k]
         per_item = chars[k] / n if n else 0.0
-        if not resolved.uniform or (
-            basis.kind == "bond_vectors" and n and abs(abs(per_item) - 1) > 1e-9
-        ):
+        if not single_kind[k] or (signed and n and abs(abs(per_item) - 1) > 1e-9):
             contributions.append(None)
         else:
             contributions.append(per_item)

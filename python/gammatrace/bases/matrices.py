@@ -4,14 +4,15 @@ Everything here starts from a :class:`SymmetryData` (structure, operations with 
 permutations, character table) and a basis: the one :class:`~gammatrace.Basis` (also
 importable as ``basis_change.Basis``), a spec string such as ``"orbitals:Fe=spd,H=s"``, or a
 :class:`~gammatrace.bases.ResolvedBasis` already resolved on the same structure. The matrix
-code serves Cartesian displacements, atom positions, atomic orbitals up to l = 3, bond
-stretches and vectors along bonds; any other basis raises ``BasisError`` when used here.
+code serves Cartesian displacements, atom positions, atomic orbitals up to l = 3, π orbitals,
+bond stretches and vectors along bonds; any other basis raises ``BasisError`` when used here.
 
 Conventions
 -----------
 * Basis order: see :mod:`gammatrace.bases.components` (Cartesian ``3 * atom + (x, y, z)``,
-  orbitals atom-major with real harmonics m = -l..l, p = y, z, x; bonds in the order given, a
-  vector along bond (a, b) pointing from a to b), all in the input frame.
+  orbitals atom-major with real harmonics m = -l..l, p = y, z, x; π one p orbital per π centre
+  along its normal; bonds in the order given, a vector along bond (a, b) pointing from a to
+  b), all in the input frame.
 * Representation matrices act on coefficient vectors: Γ(R) maps the function at site j to
   the function at site π_R(j), so Γ(R S) = Γ(R) Γ(S). Cartesian: Γ(R) = P(R) ⊗ R.
 * The symmetry-adapted basis ``X`` is square and orthogonal with ROWS = symmetry-adapted
@@ -36,6 +37,7 @@ import scipy.sparse as sp
 from ..errors import BasisError, InputError
 from ..group.irreps import GroupData, group_data
 from ..group.symmetry import SymmetryData
+from ..text import plural
 from .components import check_matrix_kind, component_matrix, site_components
 from .resolve import ResolvedBasis
 from .salc import reduce_components
@@ -72,8 +74,8 @@ def resolve_on(sym: SymmetryData, basis: Any) -> ResolvedBasis:
     if isinstance(basis, ResolvedBasis):
         if basis.n_atoms != sym.n_atoms or np.any(basis.numbers != sym.numbers):
             raise BasisError(
-                f"basis '{basis.basis}': resolved on a structure of {basis.n_atoms} atoms, not "
-                f"on this one ({sym.n_atoms} atoms)"
+                f"basis '{basis.basis}': resolved on a structure of "
+                f"{plural(basis.n_atoms, 'atom')}, not on this one ({plural(sym.n_atoms, 'atom')})"
             )
         return basis
     return parse_basis(basis).resolve(sym)

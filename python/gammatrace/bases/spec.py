@@ -10,7 +10,8 @@ matrix code (:mod:`gammatrace.basis_change`) both consume that resolved form.
 ``"atoms"``               one scalar per atom (the permutation representation)
 ``"cartesian"``           x, y, z displacements of every atom (Γ_3N)
 ``"orbitals"``            atomic orbitals by angular momentum, per element (``"Fe=spd,H=s"``)
-``"pi"``                  one p orbital per atom perpendicular to the plane (planar structures)
+``"pi"``                  one p orbital per π centre, perpendicular to the π system there
+                          (``"pi:C,N"`` names the elements; rule in :mod:`.resolve`)
 ``"bonds"``               bond stretches (scalars on unordered atom pairs)
 ``"bond_vectors"``        vectors along bonds (+1 kept, −1 reversed)
 ``"vectors"``             the user's own 3-vectors at every atom, ``(n_atoms, m, 3)``
@@ -29,10 +30,9 @@ from typing import Any, Union
 
 import numpy as np
 
-from .. import _core
 from ..errors import BasisError
 from ..io.elements import SYMBOLS, atomic_number
-from .resolve import ResolvedBasis, resolve
+from .resolve import DEFAULT_BOND_SCALE, ResolvedBasis, resolve
 
 __all__ = [
     "ANY_ELEMENT",
@@ -45,8 +45,6 @@ __all__ = [
 
 #: Spectroscopic letters of angular momentum l = 0, 1, 2 ...
 ORBITAL_LETTERS = "spdfghi"
-#: Bond criterion d_ij <= scale * (r_i + r_j) with Cordero covalent radii.
-DEFAULT_BOND_SCALE = 1.2
 #: Every kind of basis, in the order of the module docstring.
 KINDS = ("atoms", "cartesian", "orbitals", "pi", "bonds", "bond_vectors", "vectors")
 #: The orbital key standing for every element not named.
@@ -80,6 +78,9 @@ class Basis:
         Bond criterion factor (bond bases without explicit pairs).
     vectors : numpy.ndarray or None
         For ``"vectors"``: ``float64 (n_atoms, m, 3)`` (read-only).
+    elements : tuple
+        For π: the atomic numbers allowed to carry a p orbital, sorted; ``()`` for the
+        default (every element but hydrogen), ``("*",)`` for every element.
 
     Examples
     --------
@@ -89,6 +90,8 @@ class Basis:
     'orbitals:H=s,Fe=spd'
     >>> parse_basis("bonds:scale=1.3") == Basis.bonds(scale=1.3)
     True
+    >>> str(Basis.pi(["N", "C"]))
+    'pi:C,N'
     """
 
     kind: str
@@ -96,6 +99,7 @@ class Basis:
     pairs: np.ndarray | None = None
     bond_scale: float = DEFAULT_BOND_SCALE
     vectors: np.ndarray | None = None
+    elements: tuple = ()
 
     def __post_init__(self) -> None:
         if self.kind not in KINDS:
@@ -121,6 +125,10 @@ class Basis:
             object.__setattr__(self, "vectors", _check_vectors(self.vectors))
         elif self.vectors is not None:
             raise BasisError(f"{self.kind}: takes no vectors")
+        if self.kind == "pi":
+            object.__setattr__(self, "elements", _normalise_elements(self.elements))
+        elif self.elements:
+            raise BasisError(f"{self.kind}: takes no element list")
 
     # ------------------------------------------------------------------ constructors
     @classmethod
@@ -134,9 +142,23 @@ class Basis:
         return cls("cartesian")
 
     @classmethod
-    def pi(cls) -> Basis:
-        """One p orbital per atom perpendicular to the plane of a planar structure."""
-        return cls("pi")
+    def pi(cls, elements: Any = ()) -> Basis:
+        """One p orbital per π centre, perpendicular to the π system there.
+
+        Parameters
+        ----------
+        elements : str or iterable, optional
+            The elements that may carry it: symbols or atomic numbers (``["C", "N"]``,
+            ``"C,N"``), or ``"*"`` for every element. By default every element but
+            hydrogen. Which of those atoms are π centres: every one in a planar structure,
+            the atoms of local π systems otherwise (:mod:`gammatrace.bases.resolve`).
+
+        Raises
+        ------
+        BasisError
+            For an unknown element.
+        """
+        return cls("pi", elements=elements)
 
     @classmethod
     def orbitals(cls, shells: ShellSpec) -> Basis:
@@ -190,7 +212,7 @@ class Basis:
         return dict(self.shell_spec) if self.kind == "orbitals" else None
 
     def resolve(
-        self, structure: Any, *, center: Any = None, tol: float = _core.DEFAULT_TOLERANCE
+        self, structure: Any, *, center: Any = None, tol: float | None = None
     ) -> ResolvedBasis:
         """This basis on one structure; see :func:`gammatrace.bases.resolve.resolve`."""
         return resolve(self, structure, center=center, tol=tol)
@@ -199,7 +221,7 @@ class Basis:
         pairs = None if self.pairs is None else (self.pairs.shape, self.pairs.tobytes())
         vectors = None if self.vectors is None else (self.vectors.shape, self.vectors.tobytes())
         scale = self.bond_scale if self.kind in _BOND_KINDS and self.pairs is None else None
-        return (self.kind, self.shell_spec, scale, pairs, vectors)
+        return (self.kind, self.shell_spec, scale, pairs, vectors, self.elements)
 
     def __eq__(self, other: object) -> bool:
         if not isinstance(other, Basis):
@@ -224,6 +246,8 @@ class Basis:
                 return f"{self.kind}:scale={self.bond_scale!r}"
         if self.kind == "vectors":
             return f"vectors:<{self.vectors.shape[1]} per atom given>"
+        if self.kind == "pi" and self.elements:
+            return "pi:" + ",".join(SYMBOLS[z] if z != ANY_ELEMENT else z for z in self.elements)
         return self.kind
 
 
@@ -244,7 +268,22 @@ def _normalise_shells(shells: Any) -> tuple:
     return tuple(sorted(out.items(), key=lambda kv: (kv[0] == ANY_ELEMENT, str(kv[0]).zfill(3))))
 
 
-def _element_key(key: Any) -> Any:
+def _normalise_elements(elements: Any) -> tuple:
+    """``"N, C"`` or ``["N", 6]`` -> ``(6, 7)``; ``"*"`` -> ``("*",)``; ``()`` stays."""
+    if isinstance(elements, str):
+        elements = [e for e in elements.split(",") if e.strip()] if elements.strip() else []
+    items = list(elements)
+    keys = [_element_key(e, "pi") for e in items]
+    if ANY_ELEMENT in keys:
+        if len(keys) > 1:
+            raise BasisError("pi: '*' already means every element; name no other")
+        return (ANY_ELEMENT,)
+    if len(set(keys)) != len(keys):
+        raise BasisError("pi: an element is named twice")
+    return tuple(sorted(keys))
+
+
+def _element_key(key: Any, kind: str = "orbitals") -> Any:
     if isinstance(key, str) and key.strip() == ANY_ELEMENT:
         return ANY_ELEMENT
     if isinstance(key, str) and key.strip().isdigit():
@@ -252,14 +291,14 @@ def _element_key(key: Any) -> Any:
     if isinstance(key, (int, np.integer)) and not isinstance(key, bool):
         z = int(key)
         if not 0 < z < len(SYMBOLS):
-            raise BasisError(f"orbitals: atomic number {z} is not an element")
+            raise BasisError(f"{kind}: atomic number {z} is not an element")
         return z
     if isinstance(key, str):
         try:
             return atomic_number(key.strip())
         except KeyError:
-            raise BasisError(f"orbitals: unknown element '{key}'") from None
-    raise BasisError(f"orbitals: expected an element symbol or number, got {key!r}")
+            raise BasisError(f"{kind}: unknown element '{key}'") from None
+    raise BasisError(f"{kind}: expected an element symbol or number, got {key!r}")
 
 
 def _angular_momenta(key: Any, spec: Any) -> tuple:
@@ -329,7 +368,7 @@ def parse_basis(spec: Any) -> Basis:
     """A :class:`Basis` from a spec: a Basis, a resolved basis, a mapping of orbital shells,
     or a string with options (the ``--basis NAME:options`` form of the command line).
 
-    Examples: ``"cartesian"``, ``"pi"``, ``"bonds"``, ``"bonds:scale=1.3"``,
+    Examples: ``"cartesian"``, ``"pi"``, ``"pi:C,N"``, ``"bonds"``, ``"bonds:scale=1.3"``,
     ``"bond_vectors"``, ``"orbitals:Fe=spd,H=s"``, ``"orbitals:*=spd"``.
 
     Raises
@@ -375,6 +414,10 @@ def parse_basis(spec: Any) -> Basis:
             except ValueError:
                 raise BasisError(f"{kind}: scale '{val}' is not a number") from None
         return Basis(kind, bond_scale=scale)
+    if kind == "pi":
+        if ":" in opts or "=" in opts:
+            raise BasisError(f"pi: unknown option '{opts}'; name elements, e.g. 'pi:C,N'")
+        return Basis.pi(opts)
     if opts:
         raise BasisError(f"{kind}: takes no options, got '{opts}'")
     if kind == "vectors":

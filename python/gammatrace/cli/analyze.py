@@ -101,7 +101,8 @@ def register(sub) -> None:
         "--basis",
         action="append",
         metavar="SPEC",
-        help="extra basis: pi, bonds, bond_vectors, orbitals:Fe=spd,H=s "
+        help="extra basis: pi (p orbitals of the π system; pi:C,N names the elements), "
+        "bonds, bond_vectors, orbitals:Fe=spd,H=s "
         "(repeatable; atoms and cartesian are always included)",
     )
     a.add_argument("--orbits", action="store_true", help="list symmetry-distinct atoms")

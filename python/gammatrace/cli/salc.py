@@ -8,6 +8,7 @@ import sys
 
 from ..bases import parse_basis
 from ..spectroscopy import format_irreps
+from ..text import plural
 from ._shared import add_format, add_tolerance, first_structure
 
 __all__ = ["register", "run"]
@@ -36,7 +37,7 @@ def run(args: argparse.Namespace) -> int:
     else:
         print(
             f"{args.path}: {res.point_group}, basis {args.basis}, dimension "
-            f"{sab.matrix.shape[0]}, {sab.matrix.nnz} nonzeros in X"
+            f"{sab.matrix.shape[0]}, {plural(sab.matrix.nnz, 'nonzero')} in X"
         )
         print(f"  Γ = {format_irreps(counts)}")
         if args.out:

@@ -6,6 +6,7 @@ import argparse
 import sys
 
 from ..batch.screen import screen
+from ..text import plural
 from ._shared import add_tolerance
 
 __all__ = ["register", "run"]
@@ -25,7 +26,7 @@ def run(args: argparse.Namespace) -> int:
     groups = summary["groups"]
     n = summary["n"]
     lines = [
-        f"screened {n} structures"
+        f"screened {plural(n, 'structure')}"
         + (f" ({summary['skipped']} already done)" if summary["skipped"] else "")
     ]
     for g, members in sorted(groups.items(), key=lambda kv: (-len(kv[1]), kv[0])):

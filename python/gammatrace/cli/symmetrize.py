@@ -8,6 +8,7 @@ import sys
 
 from ..descent.ladder import distortion_ladder
 from ..io import Structure, write_xyz
+from ..text import format_length
 from ._shared import add_format, add_tolerance, first_structure
 
 __all__ = ["register", "run"]
@@ -55,8 +56,9 @@ def run(args: argparse.Namespace) -> int:
     else:
         print(
             f"{args.path}: symmetrized to {res.point_group}: RMS displacement "
-            f"{sym.rms_displacement:.2e} Å, largest {sym.max_displacement:.2e} Å "
-            f"(atom {sym.most_moved_atom}); remaining deviation {sym.max_deviation:.1e} Å"
+            f"{format_length(sym.rms_displacement)} Å, largest "
+            f"{format_length(sym.max_displacement)} Å (atom {sym.most_moved_atom}); remaining "
+            f"deviation {format_length(sym.max_deviation)} Å"
         )
         for t, g in higher:
             print(f"  within {t:g} Å this is {g}")

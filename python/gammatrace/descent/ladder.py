@@ -19,6 +19,7 @@ from ..errors import GammatraceError, TableError
 from ..io import as_structure
 from ..spectroscopy import format_irreps
 from ..tables import correlate
+from ..text import format_length, plural
 
 __all__ = [
     "DEFAULT_LADDER_TOLERANCES",
@@ -150,7 +151,7 @@ class DistortionLadder:
 
     def to_text(self) -> str:
         """The ladder as a table, then each descent with its correlation."""
-        lines = [f"{self.source}: {self.n_atoms} atoms"]
+        lines = [f"{self.source}: {plural(self.n_atoms, 'atom')}"]
         rows = [("tolerance/Å", "group", "order", "largest deviation/Å")]
         for st in self.steps:
             if st.point_group is None:
@@ -170,7 +171,7 @@ class DistortionLadder:
         for d in self.descents:
             dev = self.deviation_from(d.higher)
             lines.append(
-                f"  {d.higher} -> {d.lower}: {d.higher} holds within {dev:.3g} Å"
+                f"  {d.higher} -> {d.lower}: {d.higher} holds within {format_length(dev)} Å"
                 if dev is not None
                 else f"  {d.higher} -> {d.lower}"
             )
@@ -239,9 +240,8 @@ def _descent(steps: list, hi: int, lo: int) -> Descent:
     for emb in known:
         if emb["correlation"] == corr:
             return Descent(hg, lg, hi, lo, corr, emb["description"], "")
-    return Descent(
-        hg, lg, hi, lo, corr, None, f"matches none of the {len(known)} embeddings of correlate"
-    )
+    note = f"matches none of the {plural(len(known), 'embedding')} of correlate"
+    return Descent(hg, lg, hi, lo, corr, None, note)
 
 
 def distortion_ladder(structure: Any, tolerances: Any = None) -> DistortionLadder:

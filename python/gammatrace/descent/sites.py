@@ -34,6 +34,7 @@ from ..spectroscopy import external_characters, format_irreps, vibrations
 from ..tables import get_table
 from ..tables._ops import multiplication_table
 from ..tables.subgroups import _describe, _frames, identify_group
+from ..text import plural
 
 __all__ = [
     "InducedRepresentation",
@@ -153,7 +154,10 @@ class SiteAnalysis:
 
     def to_text(self) -> str:
         """A readable table: one line per site, then each site group's orientation."""
-        lines = [f"{self.point_group}: {self.n_atoms} atoms in {len(self.sites)} orbits"]
+        lines = [
+            f"{self.point_group}: {plural(self.n_atoms, 'atom')} in "
+            f"{plural(len(self.sites), 'orbit')}"
+        ]
         rows = [("orbit", "size", "element", "r/Å", "site group", "first atom")]
         for k, s in enumerate(self.sites):
             rows.append(

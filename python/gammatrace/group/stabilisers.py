@@ -10,6 +10,7 @@ import numpy as np
 
 from ..errors import SymmetryError
 from ..tables._ops import multiplication_table
+from ..text import plural
 
 __all__ = ["atom_images"]
 
@@ -49,7 +50,7 @@ def atom_images(sym, atoms: np.ndarray) -> np.ndarray:
         frontier = new
     if not known.all():
         raise SymmetryError(
-            f"{sym.point_group}: the verified operations generate only {known.sum()} of "
-            f"{h} operations"
+            f"{sym.point_group}: the verified operations generate only {known.sum()} of the "
+            f"{plural(h, 'operation')}"
         )
     return img

@@ -23,6 +23,7 @@ from ..io.elements import SYMBOLS
 from ..io.structure import Structure
 from ..tables import get_table
 from ..tables._ops import describe
+from ..text import plural
 
 __all__ = ["DEFAULT_TOL", "VERIFY_ALL_LIMIT", "SymmetryData", "as_symmetry"]
 
@@ -290,7 +291,10 @@ class SymmetryData:
         return _frozen(counts.astype(np.float64))
 
     def __repr__(self) -> str:
-        return f"<SymmetryData {self.point_group}: {self.order} operations, {self.n_atoms} atoms>"
+        return (
+            f"<SymmetryData {self.point_group}: {plural(self.order, 'operation')}, "
+            f"{plural(self.n_atoms, 'atom')}>"
+        )
 
 
 def as_symmetry(obj: Any) -> SymmetryData:
