@@ -293,7 +293,8 @@ class Analysis:
 
     def label_modes(self, hessian: Any = None, **kwargs: Any):
         """Label normal modes from a Cartesian Hessian or mode vectors; see
-        :func:`gammatrace.modes.label_modes` (masses default to standard atomic masses)."""
+        :func:`gammatrace.modes.label_modes`; masses default to :attr:`masses` (the
+        structure's own, isotopes included, else standard atomic masses)."""
         from .modes import label_modes
 
         kwargs.setdefault("masses", self.masses)

@@ -45,6 +45,7 @@ from scipy.optimize import linear_sum_assignment
 from .bases.matrices import SymmetryData, symmetry_adapted_basis
 from .errors import InputError, SymmetryBreakingWarning, SymmetryError
 from .io.hessian import HessianFile, read_hessian, validate_hessian
+from .text import plural
 
 __all__ = [
     "DEFAULT_UNIT",
@@ -942,7 +943,7 @@ def label_modes(
         vectors = vectors[None, :]
     if vectors.ndim != 2 or vectors.shape[1] != n3:
         raise InputError(
-            f"modes: expected shape (n_modes, {n3}) for {sym.n_atoms} atoms, "
+            f"modes: expected shape (n_modes, {n3}) for {plural(sym.n_atoms, 'atom')}, "
             f"received {np.shape(modes)}"
         )
     if not np.all(np.isfinite(vectors)):

@@ -6,6 +6,7 @@ import os
 from typing import Any, Union
 
 from ..errors import InputError, ReadError
+from ..text import plural
 from .adapters import from_ase, from_rdkit
 from .structure import FrameError, Structure, coerce_numbers, coerce_positions
 from .xyz import read_xyz
@@ -46,12 +47,14 @@ def as_structure(
         if frame is None:
             if len(frames) != 1:
                 raise InputError(
-                    f"{os.fspath(obj)} holds {len(frames)} frames: pass frame=K, or use "
+                    f"{os.fspath(obj)} holds {plural(len(frames), 'frame')}: pass frame=K, or use "
                     "analyze_many() for all of them"
                 )
             frame = 0
         if not -len(frames) <= frame < len(frames):
-            raise InputError(f"frame={frame}: {os.fspath(obj)} holds {len(frames)} frames")
+            raise InputError(
+                f"frame={frame}: {os.fspath(obj)} holds {plural(len(frames), 'frame')}"
+            )
         item = frames[frame]
         if isinstance(item, FrameError):
             raise ReadError(item.message)

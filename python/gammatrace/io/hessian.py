@@ -28,6 +28,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import InputError, ReadError
+from ..text import plural
 
 __all__ = ["ASYMMETRY_TOLERANCE", "HessianFile", "read_hessian", "validate_hessian"]
 
@@ -110,12 +111,12 @@ def validate_hessian(
     arr = np.asarray(matrix, dtype=np.float64)
     if arr.ndim != 2 or arr.shape[0] != arr.shape[1] or arr.shape[0] % 3 or arr.size == 0:
         want = "(3N, 3N)" if n_atoms is None else f"({3 * n_atoms}, {3 * n_atoms})"
-        extra = "" if n_atoms is None else f" for {n_atoms} atoms"
+        extra = "" if n_atoms is None else f" for {plural(n_atoms, 'atom')}"
         raise InputError(f"{source}: expected shape {want}{extra}, received {arr.shape}")
     if n_atoms is not None and arr.shape[0] != 3 * n_atoms:
         raise InputError(
-            f"{source}: expected shape ({3 * n_atoms}, {3 * n_atoms}) for {n_atoms} atoms, "
-            f"received {arr.shape}"
+            f"{source}: expected shape ({3 * n_atoms}, {3 * n_atoms}) for "
+            f"{plural(n_atoms, 'atom')}, received {arr.shape}"
         )
     bad = ~np.isfinite(arr)
     if bad.any():
@@ -299,7 +300,8 @@ def _read_ase(path: Path, source: str) -> HessianFile:
     k = 3 * n
     if hess.size != k * k:
         raise ReadError(
-            f"{source}: Hessian of shape {hess.shape} for {n} atoms (expected ({n}, 3, {n}, 3))"
+            f"{source}: Hessian of shape {hess.shape} for {plural(n, 'atom')} "
+            f"(expected ({n}, 3, {n}, 3))"
         )
     return HessianFile(
         hess.reshape(k, k),
