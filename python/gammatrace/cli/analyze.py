@@ -10,7 +10,7 @@ from ..analysis import analyze_many
 from ..bases import parse_basis
 from ..errors import GammatraceError
 from ..io import FrameError
-from ..pictures import draw_symmetry
+from ..pictures import draw_stereogram, draw_symmetry
 from ._shared import add_format, add_tolerance, dump, fail, write
 
 __all__ = ["register", "run"]
@@ -42,9 +42,10 @@ def run(args: argparse.Namespace) -> int:
             if args.draw:
                 os.makedirs(args.draw, exist_ok=True)
                 stem = os.path.splitext(os.path.basename(result.structure.source))[0] or "stdin"
-                draw_symmetry(
-                    result, os.path.join(args.draw, f"{stem}_{result.structure.index}.png")
-                )
+                name = os.path.join(args.draw, f"{stem}_{result.structure.index}")
+                draw_symmetry(result, name + ".png")
+                if result.symmetry.group_order is not None:  # finite groups have a stereogram
+                    draw_stereogram(result, name + "_stereogram.png")
             if args.format == "json":
                 write(dump(result.to_dict(bases, orbits=args.orbits)) + "\n")
             else:
@@ -84,6 +85,8 @@ def register(sub) -> None:
         "--draw",
         default=None,
         metavar="DIR",
-        help="write a PNG of each structure with its symmetry elements into DIR",
+        help="write PNGs into DIR: each structure with one symmetry element per class "
+        "(NAME_INDEX.png) and, for finite groups, the stereographic projection of its "
+        "elements and of a general position (NAME_INDEX_stereogram.png)",
     )
     a.set_defaults(func=run)
