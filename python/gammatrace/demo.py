@@ -131,12 +131,14 @@ def run_demo(out: str | None = None) -> int:
     try:
         from .pictures import draw_symmetry, plot_group_counts
 
-        png = draw_symmetry(analyze(c60()), os.path.join(folder, "c60_symmetry.png"))
+        png = os.path.join(folder, "c60_symmetry.png")
+        draw_symmetry(analyze(c60()), png)
         counts: dict[str, int] = {}
         for res in analyze_many([scan]):
             if not isinstance(res, FrameError):
                 counts[res.point_group] = counts.get(res.point_group, 0) + 1
-        chart = plot_group_counts(counts, os.path.join(folder, "scan_point_groups.png"))
+        chart = os.path.join(folder, "scan_point_groups.png")
+        plot_group_counts(counts, chart)
         print(f"\nPictures: {png}\n          {chart}")
     except InputError as exc:  # pictures need the optional matplotlib
         print(f"\n(pictures skipped: {exc})")

@@ -12,7 +12,7 @@ from ..errors import GammatraceError
 from ..group.chirality import SEARCH_FACTOR
 from ..group.measure import EXTENDED_BOUND
 from ..io import FrameError
-from ..pictures import draw_symmetry
+from ..pictures import draw_stereogram, draw_symmetry
 from ..tables import get_table
 from ._shared import add_format, add_tolerance, dump, fail, watched, write
 
@@ -47,9 +47,10 @@ def run(args: argparse.Namespace) -> int:
             if args.draw:
                 os.makedirs(args.draw, exist_ok=True)
                 stem = os.path.splitext(os.path.basename(result.structure.source))[0] or "stdin"
-                draw_symmetry(
-                    result, os.path.join(args.draw, f"{stem}_{result.structure.index}.png")
-                )
+                name = os.path.join(args.draw, f"{stem}_{result.structure.index}")
+                draw_symmetry(result, name + ".png")
+                if result.symmetry.group_order is not None:  # finite groups have a stereogram
+                    draw_stereogram(result, name + "_stereogram.png")
             if args.format == "json":
                 row = result.to_dict(bases, orbits=args.orbits, near=args.near, measure=named)
                 write(dump(row) + "\n")
@@ -125,6 +126,8 @@ def register(sub) -> None:
         "--draw",
         default=None,
         metavar="DIR",
-        help="write a PNG of each structure with its symmetry elements into DIR",
+        help="write PNGs into DIR: each structure with one symmetry element per class "
+        "(NAME_INDEX.png) and, for finite groups, the stereographic projection of its "
+        "elements and of a general position (NAME_INDEX_stereogram.png)",
     )
     a.set_defaults(func=run)

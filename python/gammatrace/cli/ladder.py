@@ -4,10 +4,12 @@ largest deviation, and the correlation between successive groups."""
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 
 from ..descent import distortion_ladder
 from ..errors import GammatraceError
+from ..pictures import draw_ladder
 from ._shared import add_format, dump, error_record, fail, skip_unread, structures, watched, write
 
 __all__ = ["register", "run"]
@@ -48,6 +50,14 @@ def run(args: argparse.Namespace) -> int:
                 write(dump(error_record(source, index, exc)) + "\n")
             fail(exc, args.traceback, f"{source} [frame {index}]: ")
             continue
+        if args.draw:
+            try:
+                os.makedirs(args.draw, exist_ok=True)
+                stem = os.path.splitext(os.path.basename(source))[0] or "stdin"
+                draw_ladder(ladder, os.path.join(args.draw, f"{stem}_{index}_ladder.png"))
+            except (GammatraceError, OSError) as exc:
+                status = 1
+                fail(exc, args.traceback, f"{source} [frame {index}]: ")
         if args.format == "json":
             out = {"source": source, "index": index}
             out.update(ladder.to_dict())
@@ -70,4 +80,11 @@ def register(sub) -> None:
         help="comma-separated tolerances in Å (default: 13 from 1e-4 to 0.5, geometric)",
     )
     add_format(lad)
+    lad.add_argument(
+        "--draw",
+        default=None,
+        metavar="DIR",
+        help="write a PNG of each ladder (group order against tolerance) into DIR "
+        "(NAME_INDEX_ladder.png)",
+    )
     lad.set_defaults(func=run)
