@@ -349,3 +349,17 @@ def test_degeneracy_tolerance_is_deprecated_and_has_no_effect():
     with pytest.warns(DeprecationWarning, match="degeneracy_tolerance has no effect"):
         old = res.label_modes(hess, degeneracy_tolerance=1e-12)
     assert old.counts() == plain.counts() and old.irreps == plain.irreps
+
+
+def test_modes_command_draws_the_stick_spectrum(tmp_path):
+    # SF6 (Nakamoto, octahedral XY6): the picture is written next to the summary
+    from gammatrace.cli import main
+    from gammatrace.io import Structure, write_xyz
+
+    pos, num, energy = sf6()
+    xyz, npy, out = tmp_path / "sf6.xyz", tmp_path / "h.npy", tmp_path / "pics"
+    write_xyz([Structure(num, pos)], xyz)
+    np.save(npy, fd_hessian(energy, pos))
+    assert main(["modes", str(xyz), "--hessian", str(npy), "--draw", str(out)]) == 0
+    png = out / "sf6_modes.png"
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and png.stat().st_size > 5000

@@ -5,6 +5,7 @@ for the file formats)."""
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 import warnings
 
@@ -12,6 +13,7 @@ import numpy as np
 
 from ..errors import InputError, SymmetryBreakingWarning
 from ..modes import DEFAULT_UNIT, HESSIAN_UNITS, SYMMETRY_TOLERANCE, hessian_unit, read_hessian
+from ..pictures import draw_mode_spectrum
 from ..spectroscopy import format_irreps
 from ._shared import add_format, add_tolerance, dump, first_structure, write
 
@@ -197,6 +199,17 @@ def run(args: argparse.Namespace) -> int:
         if args.format == "json"
         else _text(args, res, labels, unit)
     )
+    if args.draw and labels.frequencies is not None:
+        os.makedirs(args.draw, exist_ok=True)
+        stem = os.path.splitext(os.path.basename(res.structure.source))[0] or "stdin"
+        vib = [k for k in range(len(labels.irreps)) if labels.kinds[k] == "vibration"]
+        draw_mode_spectrum(
+            [float(labels.frequencies[k]) for k in vib],
+            [labels.irreps[k] for k in vib],
+            table=res.table,
+            path=os.path.join(args.draw, f"{stem}_modes.png"),
+            title=f"{res.point_group}: {format_irreps(labels.counts())}",
+        )
     return 0
 
 
@@ -248,5 +261,11 @@ def register(sub) -> None:
             "warn when the symmetry-breaking part of the Hessian, ‖H − P(H)‖/‖H‖ with P the "
             f"group average, exceeds REL (default {SYMMETRY_TOLERANCE:g})"
         ),
+    )
+    m.add_argument(
+        "--draw",
+        default=None,
+        metavar="DIR",
+        help="write a stick spectrum coloured by irrep, IR/Raman activity marked, into DIR",
     )
     m.set_defaults(func=run)
