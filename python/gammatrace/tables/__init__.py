@@ -19,7 +19,7 @@ from .complex import ComplexClass, ComplexForm
 from .linear import LINEAR_SUBGROUP_N
 from .names import MAX_N, GroupName, parse_group_name
 from .registry import get_table
-from .subgroups import SubgroupEmbedding, correlate, subgroups
+from .subgroups import SubgroupEmbedding, correlate, embedding_namings, subgroups
 from .table import CharacterTable
 
 __all__ = [
@@ -33,6 +33,7 @@ __all__ = [
     "Irrep",
     "SubgroupEmbedding",
     "correlate",
+    "embedding_namings",
     "get_table",
     "parse_group_name",
     "subgroups",
