@@ -387,6 +387,26 @@ def test_d6h_to_d3h_ladder_picks_the_embedding_of_the_actual_operations():
     )
 
 
+def test_ladder_finds_the_embedding_when_the_structure_names_c2_the_other_way():
+    # A cube stretched along z keeps D4h. Its own frame takes C2' through the face diagonals
+    # of the cube (the edges' midpoints carry no atoms), so its correlation from Oh is the
+    # printed one (Cotton, Oh correlation table, D4h column: A2g -> B1g; from memory) with
+    # B1 and B2 exchanged; the ladder names the one embedding and that other naming.
+    cube = np.array([[x, y, 1.05 * z] for x in (-1, 1) for y in (-1, 1) for z in (-1, 1)])
+    s = Structure(np.array([6] * 8), np.ascontiguousarray(cube, dtype=float), "<cube>")
+    ladder = distortion_ladder(s, [1e-4, 0.2])
+    assert [st.point_group for st in ladder.steps] == ["D4h", "Oh"]
+    (d,) = ladder.descents
+    (entry,) = correlate("Oh", "D4h")["embeddings"]
+    (other,) = entry["other_namings"]
+    assert d.embedding == entry["description"] and d.note == other["note"]
+    assert d.correlation["A2g"] == {"B2g": 1} and d.correlation["Eg"] == {"A1g": 1, "B2g": 1}
+    loose, tight = ladder.steps[1].analysis, ladder.steps[0].analysis
+    assert restrict(loose.representation("cartesian").irreps, d.correlation) == (
+        tight.representation("cartesian").irreps
+    )
+
+
 def test_ladder_keeps_going_past_a_failed_step():
     # Two atoms 0.3 Å apart overlap at tolerance 0.5 Å (an error), not at 0.01.
     s = Structure(np.array([1, 1]), np.array([[0.0, 0, 0], [0.3, 0, 0]]), "<H2>")

@@ -2,6 +2,7 @@
 
 import doctest
 import importlib
+import json
 
 import numpy as np
 import pytest
@@ -12,6 +13,11 @@ from gammatrace.tables.subgroups import SubgroupEmbedding, correlate, identify_g
 
 COTTON_CORR = "F. A. Cotton, Chemical Applications of Group Theory, 3rd ed., correlation tables"
 WDC = "E. B. Wilson, J. C. Decius, P. C. Cross, Molecular Vibrations, Appendix X"
+
+
+def _relabelled(corr, relabel):
+    """A correlation with its subgroup labels read through ``relabel``."""
+    return {k: {relabel.get(kk, kk): v for kk, v in sub.items()} for k, sub in corr.items()}
 
 
 def _u(d):
@@ -295,9 +301,112 @@ def test_d6h_to_d2h_lists_each_axis_choice():
         "E2u": {"Au": 1, "B1u": 1},
     }
     embeddings = correlate("D6h", "D2h")["embeddings"]
+    # the three D2h of D6h are conjugate (by C6): one entry, the other axis choices as notes
+    assert len(embeddings) == 1
     assert embeddings[0]["correlation"] == expected
-    corrs = [repr(e["correlation"]) for e in embeddings]
+    corrs = [repr(expected)] + [
+        repr(_relabelled(expected, other["relabel"])) for other in embeddings[0]["other_namings"]
+    ]
     assert len(set(corrs)) == len(corrs) == 6  # which C2 is z, which is x: all distinct
+
+
+def test_oh_to_d4h_is_one_entry_with_the_other_naming_as_a_note(capsys):
+    # Source: Cotton, correlation table for Oh, column D4h (C2' of D4h along the C4 axes of
+    # Oh): A1g -> A1g, A2g -> B1g, Eg -> A1g + B1g, T1g -> A2g + Eg, T2g -> B2g + Eg, and u
+    # likewise  # from memory. The three D4h of Oh are conjugate (common practice).
+    result = correlate("Oh", "D4h")
+    (entry,) = result["embeddings"]
+    expected = dict(next(e for g, h, e in PUBLISHED if (g, h) == ("Oh", "D4h")))
+    assert entry["correlation"] == expected
+    assert expected["A2g"] == {"B1g": 1} and expected["T2u"] == {"B2u": 1, "Eu": 1}
+    (other,) = entry["other_namings"]
+    # C2' and C2'' named the other way round exchange B1 and B2 (Cotton, D4h table: B1 is
+    # +1 on C2', B2 on C2''; from memory)
+    assert other["relabel"] == {"B1g": "B2g", "B2g": "B1g", "B1u": "B2u", "B2u": "B1u"}
+    assert "2C2' from 6C2" in other["note"] and "B1g ↔ B2g" in other["note"]
+    # the command line prints one header and the naming as a note
+    from gammatrace.cli import main
+
+    assert main(["correlate", "Oh", "D4h"]) == 0
+    out = capsys.readouterr().out
+    assert out.count("D4h with z along") == 1 and out.count("(note: ") == 1
+    assert main(["correlate", "Oh", "D4h", "--format", "json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert len(data["embeddings"]) == 1 and data["embeddings"][0]["other_namings"] == [other]
+
+
+def test_d6h_to_c2v_keeps_the_inequivalent_subgroups():
+    # The C2 of a C2v in D6h lies along the C6 axis, along a C2' or along a C2'' axis: three
+    # classes of D6h, so three subgroups that no operation of D6h maps onto each other
+    # (common practice). Correlations derived by hand from the D6h and C2v tables of
+    # Cotton, Appendix IIA (from memory), σv(xz) taken from σv of D6h where it can be.
+    result = correlate("D6h", "C2v")
+    entries = result["embeddings"]
+    assert len(entries) == 3
+    assert "3C2'" not in entries[0]["description"]
+    assert "C2 from 3C2'" in entries[1]["description"]
+    assert "C2 from 3C2''" in entries[2]["description"]
+    assert entries[0]["correlation"] == {
+        "A1g": {"A1": 1},
+        "A2g": {"A2": 1},
+        "B1g": {"B2": 1},
+        "B2g": {"B1": 1},
+        "E1g": {"B1": 1, "B2": 1},
+        "E2g": {"A1": 1, "A2": 1},
+        "A1u": {"A2": 1},
+        "A2u": {"A1": 1},
+        "B1u": {"B1": 1},
+        "B2u": {"B2": 1},
+        "E1u": {"B1": 1, "B2": 1},
+        "E2u": {"A1": 1, "A2": 1},
+    }
+    # through C2': A2g is +1 on E and σh, −1 on C2' and σv -> B2; B1u is +1 on C2' and σv
+    # (−1 on σh) -> A1; through C2'': B2g is +1 on C2'' and σd -> A2... read by hand
+    assert entries[1]["correlation"]["A2g"] == {"B2": 1}
+    assert entries[1]["correlation"]["B1u"] == {"A1": 1}
+    assert entries[2]["correlation"]["B2u"] == {"A1": 1}
+    assert entries[2]["correlation"]["B2g"] == {"A2": 1}
+    # which of its two mirrors is σv(xz) is a naming: one note each, B1 <-> B2
+    for e in entries:
+        assert [o["relabel"] for o in e["other_namings"]] == [{"B1": "B2", "B2": "B1"}]
+
+
+def _groups_up_to(order):
+    names = {"Cs", "Ci", "T", "Td", "Th", "O", "Oh"}
+    for n in range(2, order + 1):
+        names |= {f"C{n}", f"C{n}v", f"C{n}h", f"D{n}", f"D{n}h", f"D{n}d"}
+        if n % 2 == 0 and n >= 4:
+            names.add(f"S{n}")
+    return sorted(g for g in names if len(get_table(g).operations) <= order)
+
+
+def test_correlate_gives_one_entry_per_subgroup_class_up_to_order_48():
+    """Every group of order ≤ 48 against each of its subgroups: no two entries alike."""
+    checked = 0
+    for group in [*_groups_up_to(48), "C∞v", "D∞h"]:
+        subs = subgroups(group)
+        for name in sorted({s.name for s in subs}):
+            sub = get_table(name)
+            dims = {ir.label: ir.dim for ir in sub.irreps}
+            entries = correlate(group, name)["embeddings"]
+            keys = [(repr(e["correlation"]), e["description"]) for e in entries]
+            assert len(set(keys)) == len(keys), (group, name)
+            assert len({d for _, d in keys}) == len(keys), (group, name)
+            if not get_table(group).is_linear:
+                # one entry per conjugacy class of such subgroups in the group
+                assert len(entries) == sum(1 for s in subs if s.name == name), (group, name)
+            for e in entries:
+                seen = {repr(e["correlation"])}
+                for other in e["other_namings"]:
+                    relabel = other["relabel"]
+                    # a permutation of the subgroup's labels that keeps dimensions
+                    assert relabel and sorted(relabel) == sorted(relabel.values())
+                    assert all(dims[a] == dims[b] for a, b in relabel.items())
+                    renamed = repr(_relabelled(e["correlation"], relabel))
+                    assert renamed not in seen, (group, name)
+                    seen.add(renamed)
+            checked += 1
+    assert checked > 1000
 
 
 @pytest.mark.parametrize("group", ["D6h", "Oh", "Td", "C4v", "D3d", "S6", "C∞v"])

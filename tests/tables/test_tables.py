@@ -472,7 +472,7 @@ def test_functions_agree_with_vector_and_rotation_characters(name):
 
 def test_to_dict_matches_interface_example():
     d = get_table("C3v").to_dict()
-    # Source: shared/INTERFACE.md, `table` example
+    # Source: shared/INTERFACE.md, `table` example (and its second-round `pair` key)
     assert d["group"] == "C3v" and d["order"] == 6
     assert d["classes"][1] == {"label": "2C3", "size": 2, "proper": True, "angle": 120.0}
     assert d["classes"][2] == {"label": "3σv", "size": 3, "proper": False, "angle": 0.0}
@@ -481,6 +481,7 @@ def test_to_dict_matches_interface_example():
         "dim": 1,
         "characters": [1, 1, 1],
         "functions": ["z", "x2+y2", "z2"],
+        "pair": False,
     }
     assert d["irreps"][2]["functions"][:2] == ["(x,y)", "(Rx,Ry)"]
     json.dumps(get_table("Ih").to_dict())  # serialisable

@@ -26,6 +26,8 @@ def run(args: argparse.Namespace) -> int:
             for irrep, parts in emb["correlation"].items():
                 rhs = " + ".join(f"{n if n != 1 else ''}{k}" for k, n in parts.items())
                 write(f"    {irrep:>6s} -> {rhs}\n")
+            for other in emb["other_namings"]:
+                write(f"    (note: {other['note']})\n")
     return 0
 
 

@@ -1,4 +1,4 @@
-"""``gammatrace table GROUP``: the character table of any point group."""
+"""``gammatrace table GROUP [--complex]``: the character table of any point group."""
 
 from __future__ import annotations
 
@@ -17,10 +17,11 @@ def run(args: argparse.Namespace) -> int:
     except GammatraceError as exc:
         fail(exc, args.traceback)
         return 1
+    shown = table.complex_form() if args.complex else table
     if args.format == "json":
-        write(dump(table.to_dict()) + "\n")
+        write(dump(shown.to_dict()) + "\n")
     else:
-        write(table.to_text() + "\n")
+        write(shown.to_text() + "\n")
     return 0
 
 
@@ -28,5 +29,11 @@ def register(sub) -> None:
     """Add the command to the ``gammatrace`` subcommands."""
     t = sub.add_parser("table", help="the character table of a point group")
     t.add_argument("group", metavar="GROUP", help="e.g. C2v, D6h, Td, Ih, C7v, D12d, D∞h")
+    t.add_argument(
+        "--complex",
+        action="store_true",
+        help="write complex-conjugate pairs apart: one column per class (g and g⁻¹ apart), "
+        "one-dimensional irreps with complex characters (JSON: [re, im] pairs)",
+    )
     add_format(t)
     t.set_defaults(func=run)

@@ -18,7 +18,7 @@ from ..analysis import Analysis, _check_tol, analyze_structure
 from ..errors import GammatraceError, TableError
 from ..io import as_structure
 from ..spectroscopy import format_irreps
-from ..tables import correlate
+from ..tables import correlate, embedding_namings
 from ..text import format_length, plural
 
 __all__ = [
@@ -92,7 +92,10 @@ class Descent:
         The description of the embedding of :func:`gammatrace.tables.correlate` with the
         same correlation.
     note : str
-        Why the correlation or the embedding is missing, else empty.
+        Why the correlation or the embedding is missing; or, when the structure names the
+        lower group's classes otherwise than the embedding's first naming (C2' and C2''
+        the other way round, …), that other naming (``other_namings`` of correlate); else
+        empty.
     """
 
     higher: str
@@ -238,8 +241,9 @@ def _descent(steps: list, hi: int, lo: int) -> Descent:
     if known is None:
         return Descent(hg, lg, hi, lo, corr, None, note_known)
     for emb in known:
-        if emb["correlation"] == corr:
-            return Descent(hg, lg, hi, lo, corr, emb["description"], "")
+        for named, how in embedding_namings(emb):  # the structure may name C2'/C2'' apart
+            if named == corr:
+                return Descent(hg, lg, hi, lo, corr, emb["description"], how)
     note = f"matches none of the {plural(len(known), 'embedding')} of correlate"
     return Descent(hg, lg, hi, lo, corr, None, note)
 

@@ -44,12 +44,16 @@ class Irrep(NamedTuple):
         One character per class, in the order of ``CharacterTable.classes``.
     functions : tuple of str
         Linear, rotational and quadratic functions transforming as this irrep.
+    pair : bool
+        True when the irrep stands for a pair of complex-conjugate one-dimensional irreps
+        (norm κ = 2 in the reduction formula); False by default.
     """
 
     label: str
     dim: int
     characters: tuple[float, ...]
     functions: tuple[str, ...]
+    pair: bool = False
 
 
 @dataclass

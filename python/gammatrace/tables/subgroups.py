@@ -8,11 +8,17 @@ that F·S·Fᵀ is exactly the subgroup's canonical operation set. Where the ori
 rules of DEVELOPERS.md leave a choice that atom counts would settle (which C2 is z in D2h,
 σv or σd in C2nv, C2' or C2'' in D2nh, …), every valid frame is found.
 
-``correlate(G, H)`` restricts G's characters to each embedding of H, assigns the
-operations to H's classes with ``H.locate_classes`` in H's own standard frame and reduces
-them; frames of one subgroup that give the same correlation are merged (the description
-says so), frames that change it are listed separately. Embeddings come first when they
-keep G's z axis (and then G's x axis), as printed correlation tables do.
+``correlate(G, H)`` gives one entry per conjugacy class of subgroups H in G: it restricts
+G's characters to the subgroup, assigns the operations to H's classes with
+``H.locate_classes`` in H's own standard frame and reduces them. One subgroup may have
+several standard frames (which C2 pair is C2' in D4h, which mirror is σv(xz) in C2v, which
+axis is z in D2h): they differ by an automorphism of H, which permutes H's classes and so
+relabels its irreps, never by what the subgroup is. The entry gives the correlation in the
+first frame (keeping G's z, then x axis, as printed correlation tables orient the subgroup)
+and lists each other naming that changes the labels as a note with its relabelling
+(``other_namings``). Subgroups that are not conjugate in G stay separate entries (D3h in
+D6h through C2' or through C2''). Entries come first when they keep G's z axis, then when
+more of their axes lie along G's axes.
 
 Linear groups: C∞v and D∞h are represented by C_Mv and D_Mh (M even for D∞h, so that i is
 present) with M the smallest suitable multiple of the subgroup's axis order that is ≥ 13,
@@ -36,14 +42,21 @@ from typing import NamedTuple
 import numpy as np
 
 from .. import _core
-from ..errors import TableError
+from ..errors import ReductionError, TableError
 from ._ops import canonical_group, contains_all, describe, fraction_of_turn, multiplication_table
 from .linear import linear_class_label
 from .names import parse_group_name
 from .registry import get_table
 from .spherical import L_LETTERS, spherical_characters
 
-__all__ = ["MAX_ORDER", "SubgroupEmbedding", "correlate", "identify_group", "subgroups"]
+__all__ = [
+    "MAX_ORDER",
+    "SubgroupEmbedding",
+    "correlate",
+    "embedding_namings",
+    "identify_group",
+    "subgroups",
+]
 
 #: Largest group order whose subgroups are enumerated.
 MAX_ORDER = 240
@@ -222,8 +235,19 @@ def _frames(name: str, ops: np.ndarray, sub_table):
     for f in frames:
         if not any(np.abs(f - u).max() < 1e-9 for u in unique):
             unique.append(f)
-    unique.sort(key=lambda f: (-round(f[2, 2], 6), -round(f[0, 0], 6), -round(f[1, 1], 6)))
+    unique.sort(key=_frame_key)
     return unique
+
+
+def _entry_key(f: np.ndarray) -> tuple:
+    """Sort key of a subgroup by its first frame: z kept, then axes along parent axes."""
+    along = int((np.abs(f).max(axis=1) > 1 - 1e-9).sum())
+    return (-round(f[2, 2], 6), -along)
+
+
+def _frame_key(f: np.ndarray) -> tuple:
+    """Sort key of a frame: keeping the parent's z, then x, then y axis comes first."""
+    return (-round(f[2, 2], 6), -round(f[0, 0], 6), -round(f[1, 1], 6))
 
 
 # --- public functions --------------------------------------------------------------------
@@ -406,8 +430,11 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
     -------
     dict
         The INTERFACE.md ``correlate`` object: ``group``, ``subgroup`` and
-        ``embeddings`` (each with ``description`` and ``correlation``, a mapping from
-        every irrep of the group to the subgroup irreps it contains).
+        ``embeddings``, one per conjugacy class of such subgroups in the group, each with
+        ``description``, ``correlation`` (every irrep of the group -> the subgroup irreps
+        it contains) and ``other_namings``: for each other standard frame of the same
+        subgroup that changes the labels, ``{"note", "relabel"}``, ``relabel`` mapping
+        subgroup labels to the labels they take in that naming (fixed ones left out).
 
     Raises
     ------
@@ -442,23 +469,153 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
         raise TableError(
             f"{sub.name} is not a subgroup of {parent.name}; its subgroups are {', '.join(names)}"
         )
+    # as printed tables list them: subgroups keeping the parent's z axis first, then those
+    # whose axes lie along more of the parent's axes (stable: enumeration order otherwise)
+    candidates.sort(key=lambda c: _entry_key(c[2][0]))
     embeddings, seen = [], set()
     for _, idx, frames in candidates:
-        by_corr = {}
-        for f in frames:
-            restricted = _restrict(finite, sub, idx, f)
-            corr = {
-                lab: sub.reduce(restricted[r], what=f"{lab} of {parent.name}") for lab, r in rows
-            }
-            key = repr(corr)
-            by_corr.setdefault(key, (corr, f, []))[2].append(f)
-        for key, (corr, f, fs) in by_corr.items():
-            if parent.is_linear and key in seen:
-                continue  # conjugate in the infinite group (a rotation about z)
-            seen.add(key)
-            desc = _describe(parent.name, finite, sub.name, sub, idx, f, _n_choices(fs) > 1)
-            embeddings.append({"description": desc, "correlation": corr})
+        corrs = [_correlation(finite, sub, idx, f, rows, parent.name) for f in frames]
+        keys = [repr(c) for c in corrs]
+        if parent.is_linear and keys[0] in seen:
+            continue  # conjugate in the infinite group (a rotation about z)
+        seen.update(keys)
+        same = [f for f, k in zip(frames, keys) if k == keys[0]]
+        desc = _describe(parent.name, finite, sub.name, sub, idx, frames[0], _n_choices(same) > 1)
+        namings, done = [], {keys[0]}
+        for f, k, corr in zip(frames, keys, corrs):
+            if k in done:
+                continue
+            done.add(k)
+            namings.append(
+                _other_naming(parent.name, finite, sub, idx, frames[0], f, corrs[0], corr)
+            )
+        embeddings.append({"description": desc, "correlation": corrs[0], "other_namings": namings})
     return {"group": parent.name, "subgroup": sub.name, "embeddings": embeddings}
+
+
+def _correlation(finite, sub, idx, frame, rows, parent_name: str) -> dict:
+    """Each parent irrep -> the subgroup irreps it contains, the subgroup in ``frame``."""
+    restricted = _restrict(finite, sub, idx, frame)
+    try:
+        counts = sub.reduce_many(restricted[[r for _, r in rows]])
+    except ReductionError as exc:  # a restriction is a representation: never expected
+        raise RuntimeError(f"internal: {parent_name} restricted to {sub.name}: {exc}") from None
+    labels = sub.labels
+    return {
+        lab: {labels[j]: int(n) for j, n in enumerate(row) if n}
+        for (lab, _), row in zip(rows, counts)
+    }
+
+
+def _sources(parent_tab, sub_tab, idx, frame, parent_name: str) -> dict:
+    """Subgroup class label -> the parent class labels its operations come from."""
+    moved = frame @ parent_tab.operations[idx] @ frame.T
+    sub_cls = sub_tab.locate_classes(moved)
+    par_cls = parent_tab.operation_class[idx]
+    return {
+        info.label: tuple(
+            dict.fromkeys(
+                _parent_label(parent_tab, parent_name, j)
+                for j in sorted(set(par_cls[sub_cls == c].tolist()))
+            )
+        )
+        for c, info in enumerate(sub_tab.classes)
+    }
+
+
+def _class_permutation(sub_tab, idx, parent_tab, first, other) -> np.ndarray:
+    """σ with σ[c] = the class, in the frame ``other``, of the operations of class c in the
+    frame ``first`` (an automorphism of the subgroup permuting its classes)."""
+    ops = parent_tab.operations[idx]
+    a = sub_tab.locate_classes(first @ ops @ first.T)
+    b = sub_tab.locate_classes(other @ ops @ other.T)
+    sigma = np.full(len(sub_tab.classes), -1, dtype=np.int64)
+    for c in range(len(sub_tab.classes)):
+        image = np.unique(b[a == c])
+        if len(image) != 1:
+            raise RuntimeError("internal: two frames of one subgroup do not map class to class")
+        sigma[c] = image[0]
+    if sorted(sigma.tolist()) != list(range(len(sigma))):
+        raise RuntimeError("internal: two frames of one subgroup do not permute its classes")
+    return sigma
+
+
+def _cycles(perm: dict) -> str:
+    """'B1g ↔ B2g, B1u ↔ B2u' or 'B1g → B2g → B3g → B1g' for a relabelling."""
+    out, done = [], set()
+    for start in perm:
+        if start in done:
+            continue
+        cycle = [start]
+        while perm[cycle[-1]] != start:
+            cycle.append(perm[cycle[-1]])
+        done.update(cycle)
+        if len(cycle) == 2:
+            out.append(f"{cycle[0]} ↔ {cycle[1]}")
+        else:
+            out.append(" → ".join([*cycle, start]))
+    return ", ".join(out)
+
+
+def _other_naming(parent_name, finite, sub, idx, first, other, corr, other_corr) -> dict:
+    """Another standard frame of the same subgroup: which labels it changes.
+
+    The two frames differ by an automorphism of the subgroup (the naming of C2'/C2'',
+    σv/σd, the axes of D2h, …), which permutes its classes by σ and so its irreps by π with
+    χ_π(i)(σ(c)) = χ_i(c); the correlation in the other frame is the first one with every
+    subgroup label i read as π(i). Returns ``{"note", "relabel"}`` (π without fixed labels).
+    """
+    sigma = _class_permutation(sub, idx, finite, first, other)
+    chars = sub.character_matrix
+    moved = np.empty_like(chars)
+    moved[:, sigma] = chars  # moved[i] = χ_i ∘ σ⁻¹
+    relabel = {}
+    for i, row in enumerate(moved):
+        hit = np.flatnonzero(np.abs(chars - row).max(axis=1) < 1e-8)
+        if len(hit) != 1:
+            raise RuntimeError("internal: a class permutation does not permute the irreps")
+        if hit[0] != i:
+            relabel[sub.irreps[i].label] = sub.irreps[int(hit[0])].label
+    renamed = {lab: {relabel.get(k, k): v for k, v in parts.items()} for lab, parts in corr.items()}
+    renamed = {
+        lab: {k: parts[k] for k in sub.labels if k in parts} for lab, parts in renamed.items()
+    }
+    if renamed != other_corr:
+        raise RuntimeError("internal: another frame's correlation is not a relabelling")
+    a = _sources(finite, sub, idx, first, parent_name)
+    b = _sources(finite, sub, idx, other, parent_name)
+    changed = [f"{lab} from {', '.join(b[lab])}" for lab in b if b[lab] != a[lab]]
+    if changed:
+        how = f"naming its classes {'; '.join(changed)}"
+    else:
+        how = f"another choice of its axes ({_z_words(finite, other, parent_name)})"
+    note = f"{how} instead relabels the {sub.name} irreps: {_cycles(relabel)}"
+    return {"note": note, "relabel": relabel}
+
+
+def embedding_namings(embedding: dict) -> list[tuple[dict, str]]:
+    """Every naming of one ``correlate`` entry: (correlation, note), its own naming first.
+
+    The first item is the entry's ``correlation`` with an empty note; then one per item of
+    ``other_namings``: the correlation with the subgroup labels read through its
+    ``relabel``, and its ``note``. For matching a correlation found by other means (the
+    operations of a structure, named in the structure's own frame) against the entry.
+
+    Examples
+    --------
+    >>> entry = correlate("Oh", "D4h")["embeddings"][0]
+    >>> [named["A2g"] for named, _ in embedding_namings(entry)]
+    [{'B1g': 1}, {'B2g': 1}]
+    """
+    out = [(embedding["correlation"], "")]
+    for other in embedding.get("other_namings", []):
+        relabel = other["relabel"]
+        named = {
+            label: {relabel.get(k, k): v for k, v in parts.items()}
+            for label, parts in embedding["correlation"].items()
+        }
+        out.append((named, other["note"]))
+    return out
 
 
 def _correlate_spherical(parent, sub) -> dict:
@@ -477,7 +634,7 @@ def _correlate_spherical(parent, sub) -> dict:
     return {
         "group": parent.name,
         "subgroup": sub.name,
-        "embeddings": [{"description": desc, "correlation": corr}],
+        "embeddings": [{"description": desc, "correlation": corr, "other_namings": []}],
     }
 
 

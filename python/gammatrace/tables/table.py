@@ -26,6 +26,7 @@ import numpy as np
 from ..errors import ReductionError
 from ._ops import LINEAR_SUBGROUP_N, locate
 from ._types import ClassInfo, Irrep, TableSpec
+from .complex import ComplexForm, build_complex_form, member_labels
 from .functions import match_functions
 from .spherical import MAX_L
 
@@ -100,13 +101,14 @@ class CharacterTable:
             self.operations, self.operation_class, chars, self._factor, self._kappa
         )
         self.irreps: list[Irrep] = [
-            Irrep(label, round(row[0]), tuple(row.tolist()), funcs)
-            for label, row, funcs in zip(spec.irrep_labels, chars, functions)
+            Irrep(label, round(row[0]), tuple(row.tolist()), funcs, bool(k == 2))
+            for label, row, funcs, k in zip(spec.irrep_labels, chars, functions, self._kappa)
         ]
         self._labels = [ir.label for ir in self.irreps]
         reps = np.unique(self.operation_class, return_index=True)[1]
         self._rep_ops = self.operations[reps]
         self._square_class = self.operation_class[np.asarray(spec.square)[reps]]
+        self._complex: ComplexForm | None = None
 
     # -- basic properties ------------------------------------------------------------
 
@@ -139,6 +141,59 @@ class CharacterTable:
     def norms(self) -> np.ndarray:
         """κ_i = Σ_c w_c χ_i(c)²: 1 for real irreps, 2 for combined complex pairs."""
         return self._kappa.copy()
+
+    @property
+    def pairs(self) -> list[str]:
+        """Labels of the irreps that stand for complex-conjugate pairs (κ = 2), table order."""
+        return [ir.label for ir in self.irreps if ir.pair]
+
+    def is_pair(self, label: str) -> bool:
+        """True when the irrep ``label`` stands for a pair of complex-conjugate
+        one-dimensional irreps: its norm κ is 2, so the reduction formula divides by 2h for
+        it, and the multiplicity it gives is how often each member of the pair occurs.
+
+        Raises
+        ------
+        KeyError
+            If the table has no such irrep.
+
+        Examples
+        --------
+        >>> from gammatrace.tables import get_table
+        >>> get_table("C3").is_pair("E"), get_table("C3v").is_pair("E")
+        (True, False)
+        """
+        return self.irreps[self.index(label)].pair
+
+    def complex_form(self) -> ComplexForm:
+        """The table with its complex-conjugate pairs written apart (cached).
+
+        One column per conjugacy class (g and g⁻¹ apart), each pair E as its members ``1E``
+        and ``2E`` with complex characters (``tables.complex``). A table without pairs
+        (including C∞v, D∞h and K_h) comes back as it is.
+
+        Examples
+        --------
+        >>> from gammatrace.tables import get_table
+        >>> c3 = get_table("C3").complex_form()
+        >>> [c.label for c in c3.classes], list(c3.labels)
+        (['E', 'C3', 'C3^2'], ['A', '1E', '2E'])
+        """
+        if self._complex is None:
+            finite = not (self.is_linear or self.is_spherical)
+            self._complex = build_complex_form(
+                self.name,
+                self.order,
+                self.operation_class,
+                self.classes,
+                self._labels,
+                self.character_matrix,
+                self._kappa if finite else np.ones_like(self._kappa),
+                [ir.functions for ir in self.irreps],
+                weights=self.class_weights if self.is_spherical else None,
+                plain_text=self.to_text(),
+            )
+        return self._complex
 
     @property
     def labels(self) -> list[str]:
@@ -375,6 +430,7 @@ class CharacterTable:
     def to_dict(self) -> dict:
         """The table as the INTERFACE.md ``table`` JSON object.
 
+        Each irrep carries ``pair``: True when it stands for a complex-conjugate pair (κ = 2).
         K_h adds ``weights``: the class weights w_c of its reduction formula.
         """
 
@@ -395,6 +451,7 @@ class CharacterTable:
                     "dim": ir.dim,
                     "characters": [num(x) for x in ir.characters],
                     "functions": list(ir.functions),
+                    "pair": ir.pair,
                 }
                 for ir in self.irreps
             ],
@@ -402,6 +459,18 @@ class CharacterTable:
         if self.is_spherical:
             out["weights"] = [float(w) for w in self.class_weights]
         return out
+
+    def _pair_note(self) -> str:
+        pairs = self.pairs
+        names = " and ".join([", ".join(pairs[:-1]), pairs[-1]] if len(pairs) > 1 else pairs)
+        each = "each stand" if len(pairs) > 1 else "stands"
+        members = ", ".join(" and ".join(member_labels(p)) for p in pairs)
+        return (
+            f"({names} {each} for a pair of complex-conjugate one-dimensional irreps "
+            f"({members} of --complex), combined as in printed tables: for "
+            f"{'them' if len(pairs) > 1 else 'it'} the reduction formula divides by 2h, "
+            "n = (1/2h) Σ g χ(R) χ_i(R), and n is how often each member of the pair occurs)"
+        )
 
     def to_text(self) -> str:
         """A readable, aligned text table (irrational characters to three decimals)."""
@@ -416,6 +485,8 @@ class CharacterTable:
             cells = [r[0].ljust(widths[0])] + [r[j].rjust(widths[j]) for j in range(1, len(widths))]
             lines.append("  ".join([*cells, r[-1]]).rstrip())
         lines.insert(1, "-" * len(lines[0]))
+        if self.pairs:
+            lines.append(self._pair_note())
         if self.is_linear:
             lines.append(
                 f"(C∞ and S∞ sampled at multiples of 360°/{LINEAR_SUBGROUP_N}; class sizes "
