@@ -18,6 +18,7 @@ import numpy as np
 
 from .. import _core
 from ..errors import BasisError, SymmetryError
+from ..group.symmetry import class_representatives
 from .resolve import ResolvedBasis
 from .spec import Basis
 
@@ -181,27 +182,25 @@ def _orbital_groups_unshifted(sym: SymmetryData, resolved: ResolvedBasis) -> np.
 
 
 def per_class(
-    per_op: np.ndarray, op_class: np.ndarray, labels: tuple, what: str, atol: float = 1e-6
+    per_op: np.ndarray,
+    op_class: np.ndarray,
+    labels: tuple,
+    what: str,
+    atol: float = 1e-6,
+    first: np.ndarray | None = None,
 ) -> np.ndarray:
     """Characters per class from characters per operation, checking constancy in each class.
+
+    ``first`` (the first operation of each class, :func:`class_representatives`) may be given
+    when known; the first operation of each class represents it.
 
     Raises
     ------
     SymmetryError
         When two operations of one class disagree; names the class and the operations.
     """
-    n = len(labels)
-    first = np.full(n, -1, dtype=np.int64)
-    # the first operation of each class represents it
-    order = np.argsort(op_class, kind="stable")
-    cls_sorted = op_class[order]
-    starts = np.searchsorted(cls_sorted, np.arange(n))
-    present = starts < len(cls_sorted)
-    present[present] = cls_sorted[starts[present]] == np.arange(n)[present]
-    first[present] = order[starts[present]]
-    if not present.all():
-        missing = [labels[i] for i in np.flatnonzero(~present)]
-        raise SymmetryError(f"{what}: no detected operation falls into class(es) {missing}")
+    if first is None:
+        first = class_representatives(op_class, labels, what)
     chars = per_op[first]
     dev = np.abs(per_op - chars[op_class])
     bad = dev > atol * np.maximum(1.0, np.abs(chars[op_class]))
@@ -236,8 +235,10 @@ def build_representation(sym: SymmetryData, resolved: ResolvedBasis) -> Represen
         )
     chars_op, unshifted_op = count_characters(sym, resolved)
     labels = tuple(c.label for c in sym.table.classes)
-    chars = per_class(chars_op, sym.op_class, labels, f"basis '{basis.name}'")
-    unshifted = per_class(unshifted_op, sym.op_class, labels, f"basis '{basis.name}'")
+    what = f"basis '{basis.name}'"
+    first = sym.class_representatives
+    chars = per_class(chars_op, sym.op_class, labels, what, first=first)
+    unshifted = per_class(unshifted_op, sym.op_class, labels, what, first=first)
     # Each unshifted bond vector or π centre adds +1 or -1: the items agree exactly when the
     # character per item is ±1. Otherwise the items of a class contribute alike when they are
     # all of one kind: always for a uniform basis; for orbitals of several kinds, when one

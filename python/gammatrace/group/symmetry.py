@@ -25,7 +25,13 @@ from ..tables import get_table
 from ..tables._ops import describe
 from ..text import plural
 
-__all__ = ["DEFAULT_TOL", "VERIFY_ALL_LIMIT", "SymmetryData", "as_symmetry"]
+__all__ = [
+    "DEFAULT_TOL",
+    "VERIFY_ALL_LIMIT",
+    "SymmetryData",
+    "as_symmetry",
+    "class_representatives",
+]
 
 #: Default distance tolerance in ångström (see DEVELOPERS.md, "Tolerance"); the core's value.
 DEFAULT_TOL: float = float(_core.DEFAULT_TOLERANCE)
@@ -42,6 +48,28 @@ def _shape_error(name, expected, received):
 def _frozen(a: np.ndarray) -> np.ndarray:
     a.setflags(write=False)
     return a
+
+
+def class_representatives(op_class: np.ndarray, labels: tuple, what: str) -> np.ndarray:
+    """The first operation of each class (``int64 (n_classes,)``).
+
+    Raises
+    ------
+    SymmetryError
+        When a class has no operation.
+    """
+    n = len(labels)
+    first = np.full(n, -1, dtype=np.int64)
+    order = np.argsort(op_class, kind="stable")
+    cls_sorted = op_class[order]
+    starts = np.searchsorted(cls_sorted, np.arange(n))
+    present = starts < len(cls_sorted)
+    present[present] = cls_sorted[starts[present]] == np.arange(n)[present]
+    first[present] = order[starts[present]]
+    if not present.all():
+        missing = [labels[i] for i in np.flatnonzero(~present)]
+        raise SymmetryError(f"{what}: no detected operation falls into class(es) {missing}")
+    return first
 
 
 class SymmetryData:
@@ -218,6 +246,17 @@ class SymmetryData:
     def group_order(self) -> int | None:
         """The group's order; None for the infinite groups (linear molecules, one atom)."""
         return self.table.order
+
+    @cached_property
+    def class_representatives(self) -> np.ndarray:
+        """``int64 (n_classes,)``: the first operation of each class (operations in canonical
+        order share the table's, computed once per table)."""
+        h = len(self.operations)
+        if h == len(self.table.operations) and np.array_equal(self.canonical_index, np.arange(h)):
+            return self.table.class_representatives
+        return class_representatives(
+            self.op_class, tuple(c.label for c in self.table.classes), self.point_group
+        )
 
     @property
     def classes(self) -> list:

@@ -21,6 +21,8 @@ refuses a representation the table does not resolve.
 
 from __future__ import annotations
 
+from functools import cached_property
+
 import numpy as np
 
 from ..errors import ReductionError
@@ -115,7 +117,14 @@ class CharacterTable:
     def __repr__(self) -> str:
         return f"CharacterTable({self.name!r}, {len(self.classes)} classes)"
 
-    @property
+    @cached_property
+    def class_representatives(self) -> np.ndarray:
+        """``int64 (n_classes,)``: the first canonical operation of each class."""
+        out = np.unique(self.operation_class, return_index=True)[1].astype(np.int64)
+        out.setflags(write=False)
+        return out
+
+    @cached_property
     def symmetry_number(self) -> int:
         """Rotational symmetry number σ: the number of proper operations.
 
@@ -200,27 +209,31 @@ class CharacterTable:
         """Irrep labels in table order."""
         return list(self._labels)
 
-    @property
+    @cached_property
     def vector_characters(self) -> np.ndarray:
         """Characters of Γ(x, y, z) per class: 1 + 2cosθ (proper), −1 + 2cosθ (improper)."""
-        return np.trace(self._rep_ops, axis1=1, axis2=2)
+        out = np.trace(self._rep_ops, axis1=1, axis2=2)
+        out.setflags(write=False)
+        return out
 
-    @property
+    @cached_property
     def rotation_characters(self) -> np.ndarray:
         """Characters of Γ(Rx, Ry, Rz) per class: det R times the vector character."""
-        return np.linalg.det(self._rep_ops) * self.vector_characters
+        out = np.linalg.det(self._rep_ops) * self.vector_characters
+        out.setflags(write=False)
+        return out
 
-    @property
-    def ir_active_irreps(self) -> set:
+    @cached_property
+    def ir_active_irreps(self) -> frozenset:
         """Labels of the irreps transforming as x, y or z."""
-        return set(self.reduce(self.vector_characters, what="Γ(x,y,z)"))
+        return frozenset(self.reduce(self.vector_characters, what="Γ(x,y,z)"))
 
-    @property
-    def raman_active_irreps(self) -> set:
+    @cached_property
+    def raman_active_irreps(self) -> frozenset:
         """Labels of the irreps transforming as a quadratic function (x2, xy, …)."""
         v = self.vector_characters
         quad = (v**2 + v[self._square_class]) / 2.0
-        return set(self.reduce(quad, what="Γ(quadratic functions)"))
+        return frozenset(self.reduce(quad, what="Γ(quadratic functions)"))
 
     def index(self, label: str) -> int:
         """Row index of the irrep ``label``.
