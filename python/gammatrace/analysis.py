@@ -23,7 +23,14 @@ from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
 from .bases.counting import Representation, build_representation
 from .errors import GammatraceError, InputError
 from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, orbits
-from .io import FrameError, Structure, as_structure, element_data, read_structures
+from .io import (
+    FrameError,
+    Structure,
+    apply_cell,
+    as_structure,
+    check_cell_choice,
+    read_structures,
+)
 from .spectroscopy import Vibrations, format_irreps, vibrations
 from .tables import LINEAR_SUBGROUP_N
 
@@ -158,10 +165,11 @@ class Analysis:
             for k in range(len(sym.operations))
         ]
 
-    @cached_property
+    @property
     def masses(self) -> np.ndarray:
-        """Standard atomic masses (u)."""
-        return element_data(self.structure.numbers)[0]
+        """Masses in u: those of the input (isotopes: ``D``/``T``, an extended-XYZ ``masses``
+        column, ``ase.Atoms`` masses, RDKit isotopes), else the standard atomic weights."""
+        return self.structure.atom_masses
 
     def bonds(self, scale: float = 1.2) -> np.ndarray:
         """Bonded atom pairs ``(n_bonds, 2)`` from covalent radii: d ≤ scale·(r_i + r_j)."""
@@ -241,7 +249,7 @@ class Analysis:
 
     def label_modes(self, hessian: Any = None, **kwargs: Any):
         """Label normal modes from a Cartesian Hessian or mode vectors; see
-        :func:`gammatrace.modes.label_modes` (masses default to standard atomic masses)."""
+        :func:`gammatrace.modes.label_modes` (masses default to :attr:`masses`)."""
         from .modes import label_modes
 
         kwargs.setdefault("masses", self.masses)
@@ -331,15 +339,22 @@ class Analysis:
 
 
 def analyze(
-    obj: Any, positions: Any = None, *, tol: float = DEFAULT_TOL, frame: int | None = None
+    obj: Any,
+    positions: Any = None,
+    *,
+    tol: float = DEFAULT_TOL,
+    frame: int | None = None,
+    cell: str | None = None,
 ) -> Analysis:
     """Find the point group of one structure and make its symmetry available.
 
     Parameters
     ----------
     obj
-        Element symbols or atomic numbers (with ``positions``), an XYZ path, a
-        :class:`~gammatrace.io.Structure`, an ``ase.Atoms`` or an RDKit ``Mol``.
+        Element symbols (``D``, ``T`` for hydrogen-2, -3) or atomic numbers (with
+        ``positions``), an XYZ path, a :class:`~gammatrace.io.Structure`, an ``ase.Atoms``
+        or an RDKit ``Mol``. Atoms of one element with different masses never map onto each
+        other.
     positions : array_like, optional
         ``(n_atoms, 3)`` in ångström; a C-contiguous float64 array is not copied.
     tol : float
@@ -347,6 +362,11 @@ def analyze(
         an image of its element within ``tol``.
     frame : int, optional
         Frame of a multi-frame file.
+    cell : {"refuse", "ignore", "unwrap"}, optional
+        What to do with a periodic input (an extended-XYZ frame with ``pbc``/``Lattice``, an
+        ``ase.Atoms`` with ``pbc``): refuse it (the default), analyse the coordinates as a
+        finite cluster as given, or make its molecules whole first
+        (:mod:`gammatrace.io.cell`). Inputs without a cell are not affected.
 
     Returns
     -------
@@ -356,6 +376,8 @@ def analyze(
     ------
     StructureError, ReadError, InputError
         Bad input (empty, NaN, unknown element, overlapping atoms, malformed file).
+    CellError
+        A periodic input with ``cell="refuse"``, or one that cannot be unwrapped.
     ToleranceError, SymmetryError
         When the operations found do not form a consistent group.
 
@@ -370,25 +392,34 @@ def analyze(
     {'A1': 2, 'B2': 1}
     """
     t = _check_tol(tol)
-    s = as_structure(obj, positions, frame=frame)
+    choice = check_cell_choice(cell)
+    s = apply_cell(as_structure(obj, positions, frame=frame), choice)
     return analyze_structure(s, t)
 
 
 def analyze_structure(s: Structure, tol: float) -> Analysis:
-    """Analyse a :class:`Structure` (no input coercion)."""
-    raw = _core.find_point_group(s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT)
+    """Analyse a :class:`Structure` (no input coercion; a periodic cell is not looked at)."""
+    raw = _core.find_point_group(
+        s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT, s.masses
+    )
     return Analysis(s, raw, tol)
 
 
 def analyze_many(
-    inputs: Iterable[Any], *, tol: float = DEFAULT_TOL, catch: bool = True
+    inputs: Iterable[Any],
+    *,
+    tol: float = DEFAULT_TOL,
+    catch: bool = True,
+    cell: str | None = None,
 ) -> Iterator[Analysis | FrameError]:
     """Analyse every structure of every input (paths, Structures, ase.Atoms...), in order.
 
     A structure that fails becomes a :class:`~gammatrace.io.FrameError` in its place (with
-    ``catch=True``); the others go on.
+    ``catch=True``); the others go on. ``cell`` as for :func:`analyze`: a periodic frame
+    refused is such a failure.
     """
     t = _check_tol(tol)
+    choice = check_cell_choice(cell)
     for item in inputs:
         if isinstance(item, (str, bytes)) or hasattr(item, "__fspath__"):
             try:
@@ -414,7 +445,7 @@ def analyze_many(
                 yield fr
                 continue
             try:
-                s = as_structure(fr)
+                s = apply_cell(as_structure(fr), choice)
                 yield analyze_structure(s, t)
             except GammatraceError as exc:
                 if not catch:

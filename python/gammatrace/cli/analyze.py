@@ -11,7 +11,7 @@ from ..bases import parse_basis
 from ..errors import GammatraceError
 from ..io import FrameError
 from ..pictures import draw_symmetry
-from ._shared import add_format, add_tolerance, dump, fail, write
+from ._shared import add_cell, add_format, add_tolerance, dump, fail, write
 
 __all__ = ["register", "run"]
 
@@ -27,7 +27,7 @@ def run(args: argparse.Namespace) -> int:
         fail(exc, args.traceback)
         return 2
     status = 0
-    for result in analyze_many(args.paths, tol=args.tol):
+    for result in analyze_many(args.paths, tol=args.tol, cell=args.cell):
         if isinstance(result, FrameError):
             status = 1
             if args.format == "json":
@@ -71,6 +71,7 @@ def register(sub) -> None:
     a.add_argument("paths", nargs="+", metavar="PATH", help="XYZ file(s), '-' for stdin")
     add_tolerance(a)
     add_format(a)
+    add_cell(a)
     a.add_argument(
         "--basis",
         action="append",

@@ -36,6 +36,7 @@ def run(args: argparse.Namespace) -> int:
                     s.numbers,
                     sym.positions,
                     comment=f"symmetrized to {res.point_group} by gammatrace",
+                    masses=s.masses,
                 )
             ],
             args.out,
