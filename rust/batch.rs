@@ -45,8 +45,13 @@ struct One {
     unshifted: Vec<u64>,
 }
 
-fn analyse_one(positions: &[[f64; 3]], numbers: &[i64], opts: &DetectOptions) -> Result<One> {
-    let sym = detect::find_point_group(positions, numbers, opts)?;
+fn analyse_one(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    masses: Option<&[f64]>,
+    opts: &DetectOptions,
+) -> Result<One> {
+    let sym = detect::find_point_group_with_masses(positions, numbers, masses, opts)?;
     let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
     let unshifted = count::count_unshifted(positions, sym.center, &mats, opts.tol);
     Ok(One {
@@ -70,13 +75,16 @@ fn panic_message(payload: &(dyn std::any::Any + Send)) -> String {
 
 /// Detect the point group of every structure and count unshifted atoms per operation.
 ///
-/// `positions` (Å) and `numbers` hold all structures concatenated; structure k is
-/// `offsets[k]..offsets[k+1]`. `n_threads = 0` uses all cores. Errors: `InvalidArgument`
-/// when the offsets do not describe the arrays (the whole call fails); per-structure problems
-/// land in `errors` and the rest go on.
+/// `positions` (Å), `numbers` and `masses` (u, optional: `None` = standard atomic weights
+/// for every atom) hold all structures concatenated; structure k is
+/// `offsets[k]..offsets[k+1]`. Atoms are matched by species, as in
+/// [`detect::find_point_group_with_masses`]. `n_threads = 0` uses all cores. Errors:
+/// `InvalidArgument` when the offsets or masses do not describe the arrays (the whole call
+/// fails); per-structure problems land in `errors` and the rest go on.
 pub fn summarize_batch(
     positions: &[[f64; 3]],
     numbers: &[i64],
+    masses: Option<&[f64]>,
     offsets: &[usize],
     opts: &DetectOptions,
     n_threads: usize,
@@ -86,6 +94,18 @@ pub fn summarize_batch(
             n_positions: positions.len(),
             n_numbers: numbers.len(),
         });
+    }
+    if let Some(m) = masses {
+        if m.len() != numbers.len() {
+            return Err(Error::InvalidArgument {
+                name: "masses".into(),
+                reason: format!(
+                    "{} masses for {} atoms: they must match",
+                    m.len(),
+                    numbers.len()
+                ),
+            });
+        }
     }
     if offsets.is_empty() {
         return Ok(BatchSummary {
@@ -125,7 +145,12 @@ pub fn summarize_batch(
             .map(|k| {
                 let (a, b) = (offsets[k], offsets[k + 1]);
                 let run = std::panic::AssertUnwindSafe(|| {
-                    analyse_one(&positions[a..b], &numbers[a..b], opts)
+                    analyse_one(
+                        &positions[a..b],
+                        &numbers[a..b],
+                        masses.map(|m| &m[a..b]),
+                        opts,
+                    )
                 });
                 match std::panic::catch_unwind(run) {
                     Ok(r) => r,
@@ -197,7 +222,8 @@ mod tests {
         pos.extend(p2);
         num.extend(n2);
         let offsets = [0, 3, 4, 7];
-        let res = summarize_batch(&pos, &num, &offsets, &DetectOptions::default(), 2).unwrap();
+        let res =
+            summarize_batch(&pos, &num, None, &offsets, &DetectOptions::default(), 2).unwrap();
         assert_eq!(
             res.point_group,
             vec!["C2v".to_string(), String::new(), "C2v".into()]
@@ -222,19 +248,69 @@ mod tests {
             num.extend(n.iter().copied());
             offsets.push(pos.len());
         }
-        let a = summarize_batch(&pos, &num, &offsets, &DetectOptions::default(), 1).unwrap();
-        let b = summarize_batch(&pos, &num, &offsets, &DetectOptions::default(), 2).unwrap();
+        let a = summarize_batch(&pos, &num, None, &offsets, &DetectOptions::default(), 1).unwrap();
+        let b = summarize_batch(&pos, &num, None, &offsets, &DetectOptions::default(), 2).unwrap();
         assert_eq!(a.point_group, b.point_group);
         assert_eq!(a.unshifted, b.unshifted);
         assert_eq!(a.op_offsets, b.op_offsets);
     }
 
+    /// CH2D2 and CH4 on one tetrahedral geometry (C at the centre, H at alternate cube
+    /// corners; common practice).
+    fn methane() -> (Vec<[f64; 3]>, Vec<i64>) {
+        let a = 0.6276;
+        (
+            vec![
+                [0.0, 0.0, 0.0],
+                [a, a, a],
+                [a, -a, -a],
+                [-a, a, -a],
+                [-a, -a, a],
+            ],
+            vec![6, 1, 1, 1, 1],
+        )
+    }
+
+    #[test]
+    fn masses_make_isotopes_different_species_in_a_batch() {
+        // CH2D2 is C2v, CH4 Td (Herzberg, Infrared and Raman Spectra, 1945; from memory).
+        let (p, n) = methane();
+        let pos: Vec<[f64; 3]> = p.iter().chain(&p).copied().collect();
+        let num: Vec<i64> = n.iter().chain(&n).copied().collect();
+        let d = crate::structure::DEUTERIUM_MASS;
+        let masses = [
+            12.011, 1.008, 1.008, 1.008, 1.008, 12.011, 1.008, 1.008, d, d,
+        ];
+        let res = summarize_batch(
+            &pos,
+            &num,
+            Some(&masses),
+            &[0, 5, 10],
+            &DetectOptions::default(),
+            2,
+        )
+        .unwrap();
+        assert_eq!(res.point_group, vec!["Td".to_string(), "C2v".into()]);
+        let plain =
+            summarize_batch(&pos, &num, None, &[0, 5, 10], &DetectOptions::default(), 1).unwrap();
+        assert_eq!(plain.point_group, vec!["Td".to_string(), "Td".into()]);
+        assert!(summarize_batch(
+            &pos,
+            &num,
+            Some(&masses[..9]),
+            &[0, 5, 10],
+            &DetectOptions::default(),
+            1
+        )
+        .is_err());
+    }
+
     #[test]
     fn offsets_are_checked() {
         let (p, n) = water();
-        assert!(summarize_batch(&p, &n, &[0, 5], &DetectOptions::default(), 1).is_err());
-        assert!(summarize_batch(&p, &n, &[2, 1], &DetectOptions::default(), 1).is_err());
-        let empty = summarize_batch(&p, &n, &[], &DetectOptions::default(), 1).unwrap();
+        assert!(summarize_batch(&p, &n, None, &[0, 5], &DetectOptions::default(), 1).is_err());
+        assert!(summarize_batch(&p, &n, None, &[2, 1], &DetectOptions::default(), 1).is_err());
+        let empty = summarize_batch(&p, &n, None, &[], &DetectOptions::default(), 1).unwrap();
         assert!(empty.point_group.is_empty());
     }
 }

@@ -7,7 +7,8 @@
 //! 2. One atom → K_h, reported through C_M × Ci (M = `linear_n`). Atoms all within tol/2 of one line through the centre (the axis of
 //!    least inertia) → C∞v or D∞h, reported through C_Mv / D_Md (M = `linear_n`).
 //! 3. Otherwise enumerate the whole group directly. Pick a reference atom `a` (among atoms at
-//!    ≥ half the largest radius, the one whose *window* — same element, radius within 2·tol —
+//!    ≥ half the largest radius, the one whose *window* — same species (element and mass,
+//!    `structure::Species`: isotopes are different species), radius within 2·tol —
 //!    is smallest) and a second atom `b` off the line of `a` (among atoms at ≥ half the largest
 //!    distance from that line, the one with the smallest window). Every symmetry operation
 //!    maps a → a' in window(a) and b → b' in window(b) with |a'b'| ≈ |ab|, and is fixed by
@@ -60,8 +61,8 @@ const SAMPLE_SIZE: usize = 1024;
 /// Options of `find_point_group`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DetectOptions {
-    /// Distance tolerance, Å: an operation holds when every atom has an image of its element
-    /// within it.
+    /// Distance tolerance, Å: an operation holds when every atom has an image of its species
+    /// (element and mass) within it.
     pub tol: f64,
     /// Odd M ≥ 3 of the finite subgroup C_Mv / D_Md reported for linear molecules.
     pub linear_n: usize,
@@ -121,7 +122,8 @@ impl Symmetry {
 /// The centred structure and what every stage needs.
 struct Ctx<'a> {
     x: Vec<Vec3>,
-    numbers: &'a [i64],
+    /// Species code of each atom (`structure::Species`): what the matching compares.
+    species: &'a [i64],
     grid: Grid,
     tol: f64,
     inertia: Mat3,
@@ -150,16 +152,37 @@ impl Ctx<'_> {
     }
 }
 
-/// Find the point group of a structure (positions in Å, atomic numbers).
+/// Find the point group of a structure (positions in Å, atomic numbers), every atom with
+/// the standard atomic weight of its element.
 ///
 /// # Errors
-/// Everything `structure::validate` reports; `BadTolerance`; `InvalidArgument` for an even or
-/// too small `linear_n`; `OverlappingAtoms` for two atoms within `tol`; `GroupClosure` or
-/// `NotASymmetry` when the structure sits at the edge of the tolerance so that no consistent
-/// group can be reported.
+/// As [`find_point_group_with_masses`].
 pub fn find_point_group(
     positions: &[[f64; 3]],
     numbers: &[i64],
+    opts: &DetectOptions,
+) -> Result<Symmetry> {
+    find_point_group_with_masses(positions, numbers, None, opts)
+}
+
+/// Find the point group of a structure (positions in Å, atomic numbers, optional masses in
+/// u, `None` = standard atomic weights).
+///
+/// Atoms are matched by species ([`structure::Species`]): an operation maps every atom onto
+/// an atom of the same element *and mass*, so isotopes never map onto each other. The
+/// masses also weigh the centre of mass and the inertia tensor (the tie rules of the
+/// standard frame).
+///
+/// # Errors
+/// Everything `structure::validate` reports; `BadMass` / `InvalidArgument` for masses that
+/// are not one positive number per atom; `BadTolerance`; `InvalidArgument` for an even or
+/// too small `linear_n`; `OverlappingAtoms` for two atoms within `tol`; `GroupClosure` or
+/// `NotASymmetry` when the structure sits at the edge of the tolerance so that no consistent
+/// group can be reported.
+pub fn find_point_group_with_masses(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    masses: Option<&[f64]>,
     opts: &DetectOptions,
 ) -> Result<Symmetry> {
     structure::validate(positions, numbers)?;
@@ -173,12 +196,13 @@ pub fn find_point_group(
             reason: format!("must be odd and at least 3, got {}", opts.linear_n),
         });
     }
-    let center = structure::center_of_mass(positions, numbers)?;
+    let species = structure::Species::new(numbers, masses)?;
+    let center = structure::weighted_center(positions, &species.masses);
     let x: Vec<Vec3> = positions
         .iter()
         .map(|p| [p[0] - center[0], p[1] - center[1], p[2] - center[2]])
         .collect();
-    let grid = Grid::build(&x, numbers, tol)?;
+    let grid = Grid::build(&x, &species.codes, tol)?;
     if let Some((first, second, distance)) = find_overlap(&grid) {
         return Err(Error::OverlappingAtoms {
             first,
@@ -187,10 +211,10 @@ pub fn find_point_group(
             tolerance: tol,
         });
     }
-    let inertia = structure::inertia_tensor(positions, numbers)?;
+    let inertia = structure::weighted_inertia(positions, &species.masses);
     let ctx = Ctx {
         x,
-        numbers,
+        species: &species.codes,
         grid,
         tol,
         inertia,
@@ -251,17 +275,22 @@ pub fn find_point_group(
 /// `positions - center`), for operations that detection did not verify itself (huge
 /// structures verify only the generators; the rest are mapped on demand).
 ///
+/// Atoms are matched by species (element and mass, `masses` as for
+/// [`find_point_group_with_masses`]).
+///
 /// # Errors
-/// `structure::validate`'s errors, `BadTolerance`, and `NotASymmetry` / `AmbiguousImage` when
-/// an operation does not map the atoms onto themselves within `tol`.
+/// `structure::validate`'s errors, bad masses, `BadTolerance`, and `NotASymmetry` /
+/// `AmbiguousImage` when an operation does not map the atoms onto themselves within `tol`.
 pub fn map_operations(
     positions: &[[f64; 3]],
     numbers: &[i64],
+    masses: Option<&[f64]>,
     center: [f64; 3],
     ops: &[Mat3],
     tol: f64,
 ) -> Result<(Vec<Vec<u32>>, Vec<f64>)> {
     structure::validate(positions, numbers)?;
+    let species = structure::Species::new(numbers, masses)?;
     if !(tol.is_finite() && tol > 0.0) {
         return Err(Error::BadTolerance { value: tol });
     }
@@ -269,11 +298,11 @@ pub fn map_operations(
         .iter()
         .map(|p| [p[0] - center[0], p[1] - center[1], p[2] - center[2]])
         .collect();
-    let grid = Grid::build(&x, numbers, tol)?;
+    let grid = Grid::build(&x, &species.codes, tol)?;
     let mut perms = Vec::with_capacity(ops.len());
     let mut devs = Vec::with_capacity(ops.len());
     for m in ops {
-        let (perm, dev) = map_atoms(&grid, &x, numbers, m, tol)?;
+        let (perm, dev) = map_atoms(&grid, &x, &species.codes, m, tol)?;
         perms.push(perm);
         devs.push(dev);
     }
@@ -374,7 +403,7 @@ fn finish(
             permutations.push((0..n as u32).collect());
             continue;
         }
-        let (perm, dev) = map_atoms(&ctx.grid, &ctx.x, ctx.numbers, &ops[k].matrix, ctx.tol)?;
+        let (perm, dev) = map_atoms(&ctx.grid, &ctx.x, ctx.species, &ops[k].matrix, ctx.tol)?;
         max_deviation = max_deviation.max(dev);
         permutations.push(perm);
     }
@@ -407,8 +436,8 @@ fn classes_from(class_of: &[usize]) -> Vec<Vec<usize>> {
     classes
 }
 
-/// Radius window of every atom: indices sorted by (element, radius) and, per atom, the
-/// sorted range of same-element atoms whose radius is within `w`.
+/// Radius window of every atom: indices sorted by (species, radius) and, per atom, the
+/// sorted range of same-species atoms whose radius is within `w`.
 struct Windows {
     order: Vec<u32>,
     range: Vec<(u32, u32)>,
@@ -419,18 +448,18 @@ fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
     let mut order: Vec<u32> = (0..n as u32).collect();
     order.sort_unstable_by(|&i, &j| {
         let (i, j) = (i as usize, j as usize);
-        ctx.numbers[i]
-            .cmp(&ctx.numbers[j])
+        ctx.species[i]
+            .cmp(&ctx.species[j])
             .then(r[i].total_cmp(&r[j]))
     });
     let mut range = vec![(0u32, 0u32); n];
     let (mut lo, mut hi) = (0usize, 0usize);
     for s in 0..n {
         let i = order[s] as usize;
-        let (z, ri) = (ctx.numbers[i], r[i]);
+        let (z, ri) = (ctx.species[i], r[i]);
         while lo < s {
             let j = order[lo] as usize;
-            if ctx.numbers[j] != z || r[j] < ri - w {
+            if ctx.species[j] != z || r[j] < ri - w {
                 lo += 1;
             } else {
                 break;
@@ -439,7 +468,7 @@ fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
         hi = hi.max(s);
         while hi + 1 < n {
             let j = order[hi + 1] as usize;
-            if ctx.numbers[j] == z && r[j] <= ri + w {
+            if ctx.species[j] == z && r[j] <= ri + w {
                 hi += 1;
             } else {
                 break;
@@ -619,7 +648,7 @@ fn test_candidate(
     let mut h = [[0.0; 3]; 3];
     for &i in probe {
         let q = mat_vec(r0, &ctx.x[i]);
-        let (j, _) = ctx.grid.query_within(&q, ctx.numbers[i], 3.0 * ctx.tol)?;
+        let (j, _) = ctx.grid.query_within(&q, ctx.species[i], 3.0 * ctx.tol)?;
         add_outer(&mut h, &ctx.x[i], &ctx.x[j]);
     }
     let r1 = fit_orthogonal(&h, proper);
@@ -627,7 +656,7 @@ fn test_candidate(
     let (mut ia, mut ib) = (usize::MAX, usize::MAX);
     for &i in accept {
         let q = mat_vec(&r1, &ctx.x[i]);
-        let (j, _) = ctx.grid.query_within(&q, ctx.numbers[i], tol_raw)?;
+        let (j, _) = ctx.grid.query_within(&q, ctx.species[i], tol_raw)?;
         add_outer(&mut h, &ctx.x[i], &ctx.x[j]);
         if i == a {
             ia = j;
@@ -665,7 +694,7 @@ fn close_and_order(ctx: &Ctx, raw: Vec<RawOp>, a: usize, b: usize) -> Result<Vec
     let image = |g: &RawOp, atom: usize| -> Option<usize> {
         let q = mat_vec(&g.m, &ctx.x[atom]);
         ctx.grid
-            .query_within(&q, ctx.numbers[atom], 2.0 * ctx.tol)
+            .query_within(&q, ctx.species[atom], 2.0 * ctx.tol)
             .map(|t| t.0)
     };
     let fail = |what: String| Error::GroupClosure {

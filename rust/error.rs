@@ -38,6 +38,13 @@ pub enum Error {
         /// The number received.
         number: i64,
     },
+    /// A mass that is not a positive finite number of u.
+    BadMass {
+        /// Zero-based atom index.
+        atom: usize,
+        /// The value received, u.
+        value: f64,
+    },
     /// An element symbol that is not in the periodic table.
     UnknownElement {
         /// The symbol as read.
@@ -137,6 +144,12 @@ impl fmt::Display for Error {
             Error::UnknownAtomicNumber { atom, number } => {
                 write!(f, "atom {atom} has atomic number {number}, outside 1..=118")
             }
+            Error::BadMass { atom, value } => {
+                write!(
+                    f,
+                    "atom {atom} has mass {value} u: a mass must be a positive number"
+                )
+            }
             Error::UnknownElement { symbol } => {
                 write!(f, "unknown element symbol '{symbol}'")
             }
@@ -159,8 +172,8 @@ impl fmt::Display for Error {
             ),
             Error::NotASymmetry { atom, distance } => write!(
                 f,
-                "operation is not a symmetry: atom {atom} has no image of its element \
-                 (nearest at {} Å)",
+                "operation is not a symmetry: atom {atom} has no image of its element and \
+                 mass (nearest at {} Å)",
                 length(*distance)
             ),
             Error::AmbiguousImage {

@@ -8,6 +8,11 @@
 //! Covalent radii: Cordero et al., "Covalent radii revisited", Dalton Trans. 2008, 2832
 //! (written from memory of its table 2; C is the sp3 value, Mn, Fe and Co the low-spin
 //! values). That table stops at Cm (Z = 96); for Z = 97..=118 we use 1.5 Å.
+//!
+//! Isotopes: the nuclide masses of ¹H, ²H (symbol D) and ³H (symbol T) are those of the
+//! Atomic Mass Evaluation AME2020 (Wang et al., Chinese Physics C 45, 030003, 2021; written
+//! from memory). Atoms are told apart by *species* (see [`Species`]): element and mass, so
+//! that atoms of one element with different masses never map onto each other.
 
 use crate::error::{Error, Result};
 use nalgebra::{Matrix3, SymmetricEigen};
@@ -142,6 +147,26 @@ const ELEMENTS: [(&str, f64, f64); 118] = [
     ("Og", 294.0, DEFAULT_COVALENT_RADIUS),
 ];
 
+/// Mass of ¹H (protium), u (AME2020).
+pub const PROTIUM_MASS: f64 = 1.007_825_032;
+/// Mass of ²H (deuterium, symbol D), u (AME2020).
+pub const DEUTERIUM_MASS: f64 = 2.014_101_778;
+/// Mass of ³H (tritium, symbol T), u (AME2020).
+pub const TRITIUM_MASS: f64 = 3.016_049_281;
+
+/// Masses of one element closer than this (u) are one species; a mass this close to the
+/// element's standard atomic weight is the standard mass (its atom keeps the element
+/// symbol). Isotopes of an element differ by about 1 u; tabulated weights of one element
+/// from different editions of the tables differ by less than 0.02 u.
+pub const MASS_TOLERANCE: f64 = 0.05;
+
+/// Species codes are `z + SPECIES_STRIDE * k`, k the rank of the atom's mass among the
+/// distinct masses of its element (lightest 0).
+pub const SPECIES_STRIDE: i64 = 1000;
+
+/// Symbols that name one nuclide rather than an element: (symbol, Z, mass in u).
+const NUCLIDES: [(&str, i64, f64); 2] = [("D", 1, DEUTERIUM_MASS), ("T", 1, TRITIUM_MASS)];
+
 fn entry(z: i64) -> Option<&'static (&'static str, f64, f64)> {
     if (1..=118).contains(&z) {
         ELEMENTS.get((z - 1) as usize)
@@ -166,6 +191,131 @@ pub fn atomic_number(symbol: &str) -> Result<i64> {
         _ => Err(Error::UnknownElement {
             symbol: symbol.to_string(),
         }),
+    }
+}
+
+/// Atomic number and, for a symbol that names one nuclide (`D` = ²H, `T` = ³H), its mass in
+/// u; `None` as mass for an element symbol. Case-insensitive like [`atomic_number`].
+///
+/// # Errors
+/// `Error::UnknownElement` for anything that is neither an element nor a nuclide symbol.
+pub fn nuclide(symbol: &str) -> Result<(i64, Option<f64>)> {
+    let s = symbol.trim();
+    if let Some((_, z, m)) = NUCLIDES.iter().find(|(n, _, _)| n.eq_ignore_ascii_case(s)) {
+        return Ok((*z, Some(*m)));
+    }
+    atomic_number(symbol).map(|z| (z, None))
+}
+
+/// The symbol of an atom of element `z` and mass `mass` u: the element symbol for the
+/// standard mass (within [`MASS_TOLERANCE`] of the standard atomic weight), `D` / `T` for
+/// ²H / ³H, otherwise the mass number (the nearest whole number) before the element symbol
+/// (`13C`). `None` for `z` outside 1..=118.
+pub fn species_symbol(z: i64, mass: f64) -> Option<String> {
+    let (sym, standard, _) = entry(z)?;
+    if (mass - standard).abs() <= MASS_TOLERANCE {
+        return Some((*sym).to_string());
+    }
+    if let Some((n, _, _)) = NUCLIDES
+        .iter()
+        .find(|(_, nz, m)| *nz == z && (mass - m).abs() <= MASS_TOLERANCE)
+    {
+        return Some((*n).to_string());
+    }
+    Some(format!("{}{sym}", mass.round() as i64))
+}
+
+/// How the detector tells atoms apart and weighs them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Species {
+    /// Per atom: equal codes ⇔ same element and same mass (within [`MASS_TOLERANCE`]).
+    /// Without masses the codes are the atomic numbers.
+    pub codes: Vec<i64>,
+    /// Per atom: the mass given, else the standard atomic weight, u.
+    pub masses: Vec<f64>,
+}
+
+impl Species {
+    /// Species of atoms with atomic numbers `numbers` (checked: 1..=118) and optional masses
+    /// (u; `None` = the standard atomic weights).
+    ///
+    /// Masses of one element are sorted and split wherever two successive ones differ by
+    /// more than [`MASS_TOLERANCE`]; the k-th group (lightest first) has code
+    /// `z + SPECIES_STRIDE * k`. So the codes do not depend on atom order, and atoms whose
+    /// masses all agree keep their atomic number as code.
+    ///
+    /// # Errors
+    /// `UnknownAtomicNumber`; `InvalidArgument` when `masses` has the wrong length;
+    /// `BadMass` for a mass that is not a positive finite number.
+    pub fn new(numbers: &[i64], masses: Option<&[f64]>) -> Result<Species> {
+        let standard = standard_masses(numbers)?;
+        let Some(given) = masses else {
+            return Ok(Species {
+                codes: numbers.to_vec(),
+                masses: standard,
+            });
+        };
+        if given.len() != numbers.len() {
+            return Err(Error::InvalidArgument {
+                name: "masses".into(),
+                reason: format!(
+                    "{} masses for {} atoms: they must match",
+                    given.len(),
+                    numbers.len()
+                ),
+            });
+        }
+        if let Some((atom, &value)) = given
+            .iter()
+            .enumerate()
+            .find(|(_, m)| !(m.is_finite() && **m > 0.0))
+        {
+            return Err(Error::BadMass { atom, value });
+        }
+        let mut order: Vec<usize> = (0..numbers.len()).collect();
+        order.sort_unstable_by(|&i, &j| {
+            numbers[i]
+                .cmp(&numbers[j])
+                .then(given[i].total_cmp(&given[j]))
+        });
+        let mut codes = vec![0i64; numbers.len()];
+        let mut rank = 0i64;
+        for (s, &i) in order.iter().enumerate() {
+            if s > 0 {
+                let p = order[s - 1];
+                if numbers[p] != numbers[i] {
+                    rank = 0;
+                } else if given[i] - given[p] > MASS_TOLERANCE {
+                    rank += 1;
+                }
+            }
+            codes[i] = numbers[i] + SPECIES_STRIDE * rank;
+        }
+        Ok(Species {
+            codes,
+            masses: given.to_vec(),
+        })
+    }
+
+    /// The symbol of every atom ([`species_symbol`]); `numbers` as given to [`Species::new`].
+    ///
+    /// # Errors
+    /// `UnknownAtomicNumber` (or `LengthMismatch` when `numbers` is not one per atom).
+    pub fn symbols(&self, numbers: &[i64]) -> Result<Vec<String>> {
+        if numbers.len() != self.masses.len() {
+            return Err(Error::LengthMismatch {
+                n_positions: self.masses.len(),
+                n_numbers: numbers.len(),
+            });
+        }
+        numbers
+            .iter()
+            .zip(&self.masses)
+            .enumerate()
+            .map(|(atom, (&z, &m))| {
+                species_symbol(z, m).ok_or(Error::UnknownAtomicNumber { atom, number: z })
+            })
+            .collect()
     }
 }
 
@@ -218,7 +368,11 @@ pub fn validate(positions: &[[f64; 3]], numbers: &[i64]) -> Result<()> {
     Ok(())
 }
 
-fn masses(numbers: &[i64]) -> Result<Vec<f64>> {
+/// Standard atomic weights of the atoms, u.
+///
+/// # Errors
+/// `UnknownAtomicNumber` for a number outside 1..=118.
+pub fn standard_masses(numbers: &[i64]) -> Result<Vec<f64>> {
     numbers
         .iter()
         .enumerate()
@@ -232,16 +386,20 @@ fn masses(numbers: &[i64]) -> Result<Vec<f64>> {
 /// Everything `validate` reports.
 pub fn center_of_mass(positions: &[[f64; 3]], numbers: &[i64]) -> Result<[f64; 3]> {
     validate(positions, numbers)?;
-    let m = masses(numbers)?;
+    Ok(weighted_center(positions, &standard_masses(numbers)?))
+}
+
+/// Centre of mass in Å for the given masses (u), one per position (not checked).
+pub fn weighted_center(positions: &[[f64; 3]], m: &[f64]) -> [f64; 3] {
     let mut total = 0.0;
     let mut c = [0.0; 3];
-    for (p, &w) in positions.iter().zip(&m) {
+    for (p, &w) in positions.iter().zip(m) {
         total += w;
         for k in 0..3 {
             c[k] += w * p[k];
         }
     }
-    Ok([c[0] / total, c[1] / total, c[2] / total])
+    [c[0] / total, c[1] / total, c[2] / total]
 }
 
 /// Inertia tensor about the centre of mass, u·Å², row-major 3×3.
@@ -251,10 +409,16 @@ pub fn center_of_mass(positions: &[[f64; 3]], numbers: &[i64]) -> Result<[f64; 3
 /// # Errors
 /// Everything `validate` reports.
 pub fn inertia_tensor(positions: &[[f64; 3]], numbers: &[i64]) -> Result<[[f64; 3]; 3]> {
-    let c = center_of_mass(positions, numbers)?;
-    let m = masses(numbers)?;
+    validate(positions, numbers)?;
+    Ok(weighted_inertia(positions, &standard_masses(numbers)?))
+}
+
+/// Inertia tensor (u·Å², row-major) about the centre of mass of the given masses (u), one
+/// per position (not checked).
+pub fn weighted_inertia(positions: &[[f64; 3]], m: &[f64]) -> [[f64; 3]; 3] {
+    let c = weighted_center(positions, m);
     let mut t = [[0.0; 3]; 3];
-    for (p, &w) in positions.iter().zip(&m) {
+    for (p, &w) in positions.iter().zip(m) {
         let r = [p[0] - c[0], p[1] - c[1], p[2] - c[2]];
         let r2 = r[0] * r[0] + r[1] * r[1] + r[2] * r[2];
         for i in 0..3 {
@@ -264,7 +428,7 @@ pub fn inertia_tensor(positions: &[[f64; 3]], numbers: &[i64]) -> Result<[[f64; 
             }
         }
     }
-    Ok(t)
+    t
 }
 
 /// Principal moments (ascending, u·Å²) and principal axes (rows, unit vectors, a right-handed
@@ -327,6 +491,7 @@ mod tests {
 
     #[test]
     fn test_unknown_symbols_are_errors() {
+        // D and T name nuclides, not elements: `nuclide` reads them, `atomic_number` does not.
         for s in ["", "X", "D", "T", "Xx", "Carbon", "12"] {
             assert_eq!(
                 atomic_number(s),
@@ -335,6 +500,77 @@ mod tests {
                 })
             );
         }
+        for s in ["", "X", "Xx", "Carbon", "12", "DD"] {
+            assert!(nuclide(s).is_err(), "{s}");
+        }
+    }
+
+    #[test]
+    fn test_nuclide_symbols_are_hydrogen_isotopes() {
+        // Source: AME2020 (Wang et al., Chin. Phys. C 45, 030003, 2021), from memory:
+        // m(²H) = 2.014101778 u, m(³H) = 3.016049281 u.
+        assert_eq!(nuclide("D").unwrap(), (1, Some(2.014_101_778)));
+        assert_eq!(nuclide(" t ").unwrap(), (1, Some(3.016_049_281)));
+        assert_eq!(nuclide("H").unwrap(), (1, None));
+        assert_eq!(nuclide("Cl").unwrap(), (17, None));
+    }
+
+    #[test]
+    fn test_species_symbols_name_isotopes_only_where_masses_differ() {
+        assert_eq!(species_symbol(1, 1.008).unwrap(), "H");
+        assert_eq!(species_symbol(1, PROTIUM_MASS).unwrap(), "H");
+        assert_eq!(species_symbol(1, 2.014).unwrap(), "D");
+        assert_eq!(species_symbol(1, TRITIUM_MASS).unwrap(), "T");
+        // ¹³C: 13.003355 u (AME2020, from memory).
+        assert_eq!(species_symbol(6, 13.003_355).unwrap(), "13C");
+        assert_eq!(species_symbol(6, 12.011).unwrap(), "C");
+        // ³⁷Cl: 36.965903 u (AME2020, from memory); the standard weight of Cl is 35.45.
+        assert_eq!(species_symbol(17, 36.965_903).unwrap(), "37Cl");
+        assert_eq!(species_symbol(0, 1.0), None);
+    }
+
+    #[test]
+    fn test_species_split_elements_by_mass_only() {
+        // CH2D2: C, H, H, D, D in scrambled order; the codes do not depend on the order.
+        let z = [1, 6, 1, 1, 1];
+        let m = [DEUTERIUM_MASS, 12.011, 1.008, DEUTERIUM_MASS, 1.008];
+        let sp = Species::new(&z, Some(&m)).unwrap();
+        assert_eq!(sp.codes, vec![1001, 6, 1, 1001, 1]);
+        assert_eq!(sp.masses, m.to_vec());
+        assert_eq!(sp.symbols(&z).unwrap(), vec!["D", "C", "H", "D", "H"]);
+        // Masses that agree within MASS_TOLERANCE are one species (1.008 vs ¹H).
+        let sp = Species::new(&[1, 1], Some(&[1.008, PROTIUM_MASS])).unwrap();
+        assert_eq!(sp.codes[0], sp.codes[1]);
+        // All D: one species, coded by the atomic number.
+        let sp = Species::new(&[1, 1], Some(&[DEUTERIUM_MASS; 2])).unwrap();
+        assert_eq!(sp.codes, vec![1, 1]);
+        // Without masses: the atomic numbers and the standard weights.
+        let sp = Species::new(&[8, 1], None).unwrap();
+        assert_eq!(sp.codes, vec![8, 1]);
+        assert_eq!(sp.masses, vec![15.999, 1.008]);
+    }
+
+    #[test]
+    fn test_species_reject_bad_masses() {
+        assert_eq!(
+            Species::new(&[1, 1], Some(&[1.0, -2.0])),
+            Err(Error::BadMass {
+                atom: 1,
+                value: -2.0
+            })
+        );
+        assert!(matches!(
+            Species::new(&[1, 1], Some(&[1.0, f64::NAN])),
+            Err(Error::BadMass { atom: 1, .. })
+        ));
+        assert!(matches!(
+            Species::new(&[1, 1], Some(&[1.0])),
+            Err(Error::InvalidArgument { .. })
+        ));
+        assert!(matches!(
+            Species::new(&[0], None),
+            Err(Error::UnknownAtomicNumber { atom: 0, number: 0 })
+        ));
     }
 
     #[test]

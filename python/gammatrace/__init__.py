@@ -22,6 +22,7 @@ from .bases.counting import Representation
 from .batch.run import analyze_batch
 from .errors import (
     BasisError,
+    CellError,
     GammatraceError,
     InputError,
     ReadError,
@@ -42,6 +43,7 @@ __all__ = [
     "Analysis",
     "Basis",
     "BasisError",
+    "CellError",
     "CharacterTable",
     "FrameError",
     "GammatraceError",

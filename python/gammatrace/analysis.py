@@ -25,7 +25,14 @@ from .errors import GammatraceError, InputError
 from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, improper_within, orbits
 from .group.chirality import SEARCH_FACTOR
 from .group.measure import NearGroup, NearSymmetry
-from .io import FrameError, Structure, as_structure, element_data, read_structures
+from .io import (
+    FrameError,
+    Structure,
+    apply_cell,
+    as_structure,
+    check_cell_choice,
+    read_structures,
+)
 from .spectroscopy import Vibrations, binary_bands, fermi_resonances, format_irreps, vibrations
 from .tables import LINEAR_SUBGROUP_N
 from .text import format_length, plural
@@ -192,10 +199,11 @@ class Analysis:
         0.5 Å); ``.group`` names the improper group that gives it."""
         return self.near.chirality()
 
-    @cached_property
+    @property
     def masses(self) -> np.ndarray:
-        """Standard atomic masses (u)."""
-        return element_data(self.structure.numbers)[0]
+        """Masses in u: those of the input (isotopes: ``D``/``T``, an extended-XYZ ``masses``
+        column, ``ase.Atoms`` masses, RDKit isotopes), else the standard atomic weights."""
+        return self.structure.atom_masses
 
     def bonds(self, scale: float = 1.2) -> np.ndarray:
         """Bonded atom pairs ``(n_bonds, 2)`` from covalent radii: d ≤ scale·(r_i + r_j)."""
@@ -413,15 +421,22 @@ class Analysis:
 
 
 def analyze(
-    obj: Any, positions: Any = None, *, tol: float = DEFAULT_TOL, frame: int | None = None
+    obj: Any,
+    positions: Any = None,
+    *,
+    tol: float = DEFAULT_TOL,
+    frame: int | None = None,
+    cell: str | None = None,
 ) -> Analysis:
     """Find the point group of one structure and make its symmetry available.
 
     Parameters
     ----------
     obj
-        Element symbols or atomic numbers (with ``positions``), an XYZ path, a
-        :class:`~gammatrace.io.Structure`, an ``ase.Atoms`` or an RDKit ``Mol``.
+        Element symbols (``D``, ``T`` for hydrogen-2, -3) or atomic numbers (with
+        ``positions``), an XYZ path, a :class:`~gammatrace.io.Structure`, an ``ase.Atoms``
+        or an RDKit ``Mol``. Atoms of one element with different masses never map onto each
+        other.
     positions : array_like, optional
         ``(n_atoms, 3)`` in ångström; a C-contiguous float64 array is not copied.
     tol : float
@@ -429,6 +444,11 @@ def analyze(
         an image of its element within ``tol``.
     frame : int, optional
         Frame of a multi-frame file.
+    cell : {"refuse", "ignore", "unwrap"}, optional
+        What to do with a periodic input (an extended-XYZ frame with ``pbc``/``Lattice``, an
+        ``ase.Atoms`` with ``pbc``): refuse it (the default), analyse the coordinates as a
+        finite cluster as given, or make its molecules whole first
+        (:mod:`gammatrace.io.cell`). Inputs without a cell are not affected.
 
     Returns
     -------
@@ -438,6 +458,8 @@ def analyze(
     ------
     StructureError, ReadError, InputError
         Bad input (empty, NaN, unknown element, overlapping atoms, malformed file).
+    CellError
+        A periodic input with ``cell="refuse"``, or one that cannot be unwrapped.
     ToleranceError, SymmetryError
         When the operations found do not form a consistent group.
 
@@ -452,25 +474,34 @@ def analyze(
     {'A1': 2, 'B2': 1}
     """
     t = _check_tol(tol)
-    s = as_structure(obj, positions, frame=frame)
+    choice = check_cell_choice(cell)
+    s = apply_cell(as_structure(obj, positions, frame=frame), choice)
     return analyze_structure(s, t)
 
 
 def analyze_structure(s: Structure, tol: float) -> Analysis:
-    """Analyse a :class:`Structure` (no input coercion)."""
-    raw = _core.find_point_group(s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT)
+    """Analyse a :class:`Structure` (no input coercion; a periodic cell is not looked at)."""
+    raw = _core.find_point_group(
+        s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT, s.masses
+    )
     return Analysis(s, raw, tol)
 
 
 def analyze_many(
-    inputs: Iterable[Any], *, tol: float = DEFAULT_TOL, catch: bool = True
+    inputs: Iterable[Any],
+    *,
+    tol: float = DEFAULT_TOL,
+    catch: bool = True,
+    cell: str | None = None,
 ) -> Iterator[Analysis | FrameError]:
     """Analyse every structure of every input (paths, Structures, ase.Atoms...), in order.
 
     A structure that fails becomes a :class:`~gammatrace.io.FrameError` in its place (with
-    ``catch=True``); the others go on.
+    ``catch=True``); the others go on. ``cell`` as for :func:`analyze`: a periodic frame
+    refused is such a failure.
     """
     t = _check_tol(tol)
+    choice = check_cell_choice(cell)
     for item in inputs:
         if isinstance(item, (str, bytes)) or hasattr(item, "__fspath__"):
             try:
@@ -496,7 +527,7 @@ def analyze_many(
                 yield fr
                 continue
             try:
-                s = as_structure(fr)
+                s = apply_cell(as_structure(fr), choice)
                 yield analyze_structure(s, t)
             except GammatraceError as exc:
                 if not catch:

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 __all__ = [
     "BasisError",
+    "CellError",
     "GammatraceError",
     "GammatraceWarning",
     "InputError",
@@ -33,6 +34,11 @@ class InputError(GammatraceError, ValueError):
 
 class StructureError(InputError):
     """A structure that cannot be analysed: empty, NaN, unknown element, overlapping atoms."""
+
+
+class CellError(StructureError):
+    """A periodic frame (a crystal cell) where a molecule or cluster is expected, or a cell
+    that cannot be unwrapped into whole molecules; the message names the frame."""
 
 
 class ReadError(InputError):

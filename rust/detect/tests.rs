@@ -951,3 +951,81 @@ fn timing_large_icosahedral_cluster() {
         Err(e) => println!("find_point_group failed after {t_all:?}: {e}"),
     }
 }
+
+/// Masses of the atoms of `atoms`, standard except the listed atoms, which are ²H.
+fn with_deuterium(atoms: &Atoms, deuterated: &[usize]) -> Vec<f64> {
+    let mut m = structure::Species::new(&atoms.1, None).unwrap().masses;
+    for &i in deuterated {
+        m[i] = structure::DEUTERIUM_MASS;
+    }
+    m
+}
+
+#[test]
+fn test_isotopologues_are_told_apart_by_mass() {
+    // Point groups of the isotopologues: Herzberg, "Infrared and Raman Spectra of Polyatomic
+    // Molecules" (1945), from memory: CH2D2 C2v, CH3D C3v, C6H5D C2v, C6D6 D6h, HDO Cs.
+    let a = 0.6276; // C–H 1.087 Å along the cube diagonals (common practice)
+    let ch4: Atoms = (
+        vec![
+            [0.0, 0.0, 0.0],
+            [a, a, a],
+            [a, -a, -a],
+            [-a, a, -a],
+            [-a, -a, a],
+        ],
+        vec![6, 1, 1, 1, 1],
+    );
+    let opts = DetectOptions::default();
+    let name = |atoms: &Atoms, d: &[usize]| {
+        let m = with_deuterium(atoms, d);
+        find_point_group_with_masses(&atoms.0, &atoms.1, Some(&m), &opts)
+            .unwrap()
+            .point_group
+    };
+    assert_eq!(name(&ch4, &[]), "Td");
+    assert_eq!(name(&ch4, &[3, 4]), "C2v");
+    assert_eq!(name(&ch4, &[4]), "C3v");
+    assert_eq!(name(&ch4, &[1, 2, 3, 4]), "Td");
+    let c6h6 = benzene();
+    assert_eq!(name(&c6h6, &[6]), "C2v");
+    assert_eq!(name(&c6h6, &(6..12).collect::<Vec<_>>()), "D6h");
+    let w = water();
+    assert_eq!(name(&w, &[1]), "Cs");
+    assert_eq!(name(&w, &[1, 2]), "C2v");
+
+    // The masses weigh the centre: CH3D's centre of mass lies on the C–D bond, towards D.
+    let m = with_deuterium(&ch4, &[4]);
+    let sym = find_point_group_with_masses(&ch4.0, &ch4.1, Some(&m), &opts).unwrap();
+    let total: f64 = m.iter().sum();
+    let expect = a * (structure::DEUTERIUM_MASS - m[1]) / total;
+    for k in 0..3 {
+        let sign = [-1.0, -1.0, 1.0][k];
+        assert!(
+            (sym.center[k] - sign * expect).abs() < 1e-12,
+            "{:?}",
+            sym.center
+        );
+    }
+    // Every permutation keeps each atom's species.
+    for perm in &sym.permutations {
+        for (i, &j) in perm.iter().enumerate() {
+            assert_eq!(m[i], m[j as usize]);
+        }
+    }
+    // map_operations refuses an operation that swaps H and D, and accepts it without masses.
+    let s4 = ch4_s4_about_z();
+    assert!(map_operations(&ch4.0, &ch4.1, Some(&m), [0.0; 3], &[s4], 0.01).is_err());
+    assert!(map_operations(&ch4.0, &ch4.1, None, [0.0; 3], &[s4], 0.01).is_ok());
+    // Bad masses are reported, not panicked.
+    let bad = [12.0, 1.0, 1.0, 1.0, 0.0];
+    assert!(matches!(
+        find_point_group_with_masses(&ch4.0, &ch4.1, Some(&bad), &opts),
+        Err(Error::BadMass { atom: 4, .. })
+    ));
+}
+
+/// S4 about z of the methane above: (x, y, z) → (y, −x, −z).
+fn ch4_s4_about_z() -> Mat3 {
+    [[0.0, 1.0, 0.0], [-1.0, 0.0, 0.0], [0.0, 0.0, -1.0]]
+}

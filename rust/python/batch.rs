@@ -9,9 +9,11 @@ use pyo3::exceptions::PyValueError;
 use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList};
 
-/// Detect many structures at once (ragged: concatenated positions + offsets), in parallel.
+/// Detect many structures at once (ragged: concatenated positions + offsets), in parallel;
+/// `masses` (concatenated like the numbers, u) make isotopes different species.
 #[pyfunction]
-#[pyo3(signature = (positions, numbers, offsets, tol, linear_n, n_threads))]
+#[pyo3(signature = (positions, numbers, offsets, tol, linear_n, n_threads, masses=None))]
+#[allow(clippy::too_many_arguments)]
 pub(super) fn find_point_groups_batch<'py>(
     py: Python<'py>,
     positions: PyReadonlyArray2<'py, f64>,
@@ -20,9 +22,11 @@ pub(super) fn find_point_groups_batch<'py>(
     tol: f64,
     linear_n: usize,
     n_threads: usize,
+    masses: Option<PyReadonlyArray1<'py, f64>>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let pos = coords(&positions, "positions")?;
     let num = slice1(&numbers, "numbers")?;
+    let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
     let off_raw = slice1(&offsets, "offsets")?;
     let mut off = Vec::with_capacity(off_raw.len());
     for &o in off_raw {
@@ -39,7 +43,7 @@ pub(super) fn find_point_groups_batch<'py>(
         ..Default::default()
     };
     let res = py
-        .detach(|| batch::summarize_batch(pos, num, &off, &opts, n_threads))
+        .detach(|| batch::summarize_batch(pos, num, mass, &off, &opts, n_threads))
         .map_err(CoreError)?;
     let out = PyDict::new(py);
     out.set_item("point_group", PyList::new(py, &res.point_group)?)?;

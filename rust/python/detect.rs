@@ -75,9 +75,10 @@ impl GroupData {
     }
 }
 
-/// Point-group detection: a `Detection` (see _core.pyi).
+/// Point-group detection: a `Detection` (see _core.pyi). `masses` (u, one per atom) make
+/// atoms of one element with different masses different species; None = standard weights.
 #[pyfunction]
-#[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit))]
+#[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit, masses=None))]
 pub(super) fn find_point_group(
     py: Python<'_>,
     positions: PyReadonlyArray2<'_, f64>,
@@ -85,16 +86,18 @@ pub(super) fn find_point_group(
     tol: f64,
     linear_n: usize,
     verify_all_limit: usize,
+    masses: Option<PyReadonlyArray1<'_, f64>>,
 ) -> PyResult<Detection> {
     let pos = coords(&positions, "positions")?;
     let num = slice1(&numbers, "numbers")?;
+    let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
     let opts = detect::DetectOptions {
         tol,
         linear_n,
         verify_all_limit,
     };
     let sym = py
-        .detach(|| guarded(|| detect::find_point_group(pos, num, &opts)))
+        .detach(|| guarded(|| detect::find_point_group_with_masses(pos, num, mass, &opts)))
         .map_err(CoreError)?;
     let n = pos.len();
     let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
@@ -168,8 +171,10 @@ pub(super) fn locate_operations<'py>(
 
 pub(super) type MappedOperations<'py> = (Bound<'py, PyArray2<i64>>, Bound<'py, PyArray1<f64>>);
 
-/// Permutations (k, n) and largest image distances (k,) of the given operations.
+/// Permutations (k, n) and largest image distances (k,) of the given operations (atoms
+/// matched by element and, with `masses`, by mass).
 #[pyfunction]
+#[pyo3(signature = (positions, numbers, center, operations, tol, masses=None))]
 pub(super) fn map_operations<'py>(
     py: Python<'py>,
     positions: PyReadonlyArray2<'py, f64>,
@@ -177,12 +182,14 @@ pub(super) fn map_operations<'py>(
     center: [f64; 3],
     operations: PyReadonlyArray3<'py, f64>,
     tol: f64,
+    masses: Option<PyReadonlyArray1<'py, f64>>,
 ) -> PyResult<MappedOperations<'py>> {
     let pos = coords(&positions, "positions")?;
     let num = slice1(&numbers, "numbers")?;
+    let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
     let ops = matrices(&operations, "operations")?;
     let (perms, devs) = py
-        .detach(|| guarded(|| detect::map_operations(pos, num, center, ops, tol)))
+        .detach(|| guarded(|| detect::map_operations(pos, num, mass, center, ops, tol)))
         .map_err(CoreError)?;
     Ok((
         index_rows(py, &perms, pos.len())?,

@@ -23,6 +23,7 @@ pub(super) fn frames_to_dict<'py>(
         Array2::from_shape_vec((n, 3), flat).map_err(|e| PyValueError::new_err(e.to_string()))?;
     out.set_item("positions", pos.into_pyarray(py))?;
     out.set_item("numbers", Array1::from(frames.numbers).into_pyarray(py))?;
+    out.set_item("masses", Array1::from(frames.masses).into_pyarray(py))?;
     let offsets: Vec<i64> = frames.offsets.iter().map(|&o| o as i64).collect();
     out.set_item("offsets", Array1::from(offsets).into_pyarray(py))?;
     out.set_item("comments", PyList::new(py, &frames.comments)?)?;
@@ -36,8 +37,8 @@ pub(super) fn frames_to_dict<'py>(
     Ok(out)
 }
 
-pub(super) fn element_number(symbol: &str) -> Option<i64> {
-    structure::atomic_number(symbol).ok()
+pub(super) fn element_number(symbol: &str) -> Option<(i64, Option<f64>)> {
+    structure::nuclide(symbol).ok()
 }
 
 /// Read a (multi-frame, extended) XYZ file; bad frames carry an error, the rest are read.

@@ -6,13 +6,15 @@
 //! (2) releases the GIL and calls exactly one core function, (3) moves the result into
 //! numpy and maps the error. Files by job: `arrays` (conversion helpers), `detect`
 //! (detection and group arithmetic), `count` (characters), `io` (readers and the element
-//! table), `batch` (many structures at once).
+//! table), `species` (nuclide symbols and isotopes as species), `batch` (many structures at
+//! once).
 
 mod arrays;
 mod batch;
 mod count;
 mod detect;
 mod io;
+mod species;
 
 use crate::error::Error;
 use pyo3::exceptions::PyException;
@@ -26,6 +28,7 @@ pub(super) fn exception_class(err: &Error) -> &'static str {
         | Error::NonFiniteCoordinate { .. }
         | Error::CoordinateTooLarge { .. }
         | Error::UnknownAtomicNumber { .. }
+        | Error::BadMass { .. }
         | Error::UnknownElement { .. }
         | Error::OverlappingAtoms { .. } => "StructureError",
         Error::BadTolerance { .. } | Error::InvalidArgument { .. } => "InputError",
@@ -105,6 +108,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(io::read_xyz_bytes, m)?)?;
     m.add_function(wrap_pyfunction!(io::atomic_numbers, m)?)?;
     m.add_function(wrap_pyfunction!(io::element_data, m)?)?;
+    m.add_function(wrap_pyfunction!(species::nuclides, m)?)?;
+    m.add_function(wrap_pyfunction!(species::species, m)?)?;
     m.add_function(wrap_pyfunction!(batch::find_point_groups_batch, m)?)?;
     m.add_function(wrap_pyfunction!(detect::canonical_group, m)?)?;
     m.add_function(wrap_pyfunction!(detect::locate_operations, m)?)?;
@@ -115,5 +120,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("LINEAR_SUBGROUP_N", crate::detect::LINEAR_SUBGROUP_N)?;
     m.add("VERIFY_ALL_LIMIT", crate::detect::DEFAULT_VERIFY_ALL_LIMIT)?;
     m.add("PI_ALIGNMENT", crate::count::PI_ALIGNMENT)?;
+    m.add("MASS_TOLERANCE", crate::structure::MASS_TOLERANCE)?;
     Ok(())
 }

@@ -21,6 +21,9 @@ pub(super) struct Segment {
 pub(super) struct UnitOut {
     pub(super) positions: Vec<[f64; 3]>,
     pub(super) numbers: Vec<i64>,
+    /// Empty until an atom of the unit has a mass of its own; from then on parallel to
+    /// `positions` (NaN = the standard atomic weight).
+    pub(super) masses: Vec<f64>,
     /// Per segment: (frame, atoms pushed, first error).
     pub(super) results: Vec<(usize, usize, Option<Error>)>,
 }
@@ -57,11 +60,23 @@ pub(super) fn parse_header(data: &[u8], span: &Span, frame: usize, source: &str)
     }
 }
 
-/// Symbol -> number with a tiny cache (molecules repeat few elements).
+impl UnitOut {
+    /// One atom: position, atomic number and mass (NaN = the standard atomic weight).
+    fn push(&mut self, xyz: [f64; 3], z: i64, mass: f64) {
+        if !mass.is_nan() || !self.masses.is_empty() {
+            self.masses.resize(self.positions.len(), f64::NAN);
+            self.masses.push(mass);
+        }
+        self.positions.push(xyz);
+        self.numbers.push(z);
+    }
+}
+
+/// Symbol -> (number, nuclide mass or NaN) with a tiny cache (molecules repeat few elements).
 pub(super) struct Elements<'a> {
-    pub(super) to_number: &'a ToNumber,
-    /// (symbol packed into a u64, number); symbols of 1..=8 bytes only.
-    pub(super) cache: Vec<(u64, i64)>,
+    to_number: &'a ToNumber,
+    /// (symbol packed into a u64, number, mass or NaN); symbols of 1..=8 bytes only.
+    cache: Vec<(u64, i64, f64)>,
 }
 
 /// A symbol of 1..=8 bytes packed into a u64 (zero-padded), for a cheap cache compare.
@@ -75,12 +90,20 @@ pub(super) fn pack(sym: &[u8]) -> Option<u64> {
     Some(u64::from_le_bytes(b))
 }
 
-impl Elements<'_> {
-    pub(super) fn number(&mut self, sym: &[u8]) -> std::result::Result<i64, String> {
+impl<'a> Elements<'a> {
+    pub(super) fn new(to_number: &'a ToNumber) -> Self {
+        Elements {
+            to_number,
+            cache: Vec::new(),
+        }
+    }
+
+    /// Atomic number and nuclide mass (NaN for an element symbol or an atomic number).
+    pub(super) fn number(&mut self, sym: &[u8]) -> std::result::Result<(i64, f64), String> {
         let key = pack(sym);
         if let Some(key) = key {
-            if let Some((_, z)) = self.cache.iter().find(|(s, _)| *s == key) {
-                return Ok(*z);
+            if let Some((_, z, m)) = self.cache.iter().find(|(s, _, _)| *s == key) {
+                return Ok((*z, *m));
             }
         }
         let z = if sym.iter().all(u8::is_ascii_digit) {
@@ -91,16 +114,16 @@ impl Elements<'_> {
             if !(1..=118).contains(&z) {
                 return Err(format!("atomic number '{}' is outside 1..118", show(sym)));
             }
-            z
+            (z, f64::NAN)
         } else {
             let s = std::str::from_utf8(sym).ok();
             match s.and_then(|s| (self.to_number)(s)) {
-                Some(z) => z,
+                Some((z, m)) => (z, m.unwrap_or(f64::NAN)),
                 None => return Err(format!("unknown element symbol '{}'", show(sym))),
             }
         };
         if let (Some(key), true) = (key, self.cache.len() < 16) {
-            self.cache.push((key, z));
+            self.cache.push((key, z.0, z.1));
         }
         Ok(z)
     }
@@ -127,6 +150,7 @@ pub(super) fn parse_segment(
         // One pass over the line: keep the element and position columns, count columns
         // up to `needed`, then jump to the next line past any extra columns.
         let mut sym: &[u8] = &[];
+        let mut mass: &[u8] = &[];
         let mut coord: [&[u8]; 3] = [&[]; 3];
         let mut n = 0usize;
         let mut i = pos;
@@ -142,6 +166,8 @@ pub(super) fn parse_segment(
                 sym = t;
             } else if n >= layout.pos && n < layout.pos + 3 {
                 coord[n - layout.pos] = t;
+            } else if Some(n) == layout.masses {
+                mass = t;
             }
             n += 1;
         }
@@ -189,13 +215,22 @@ pub(super) fn parse_segment(
                 }
             }
         }
-        match elements.number(sym) {
-            Ok(z) => {
-                out.positions.push(xyz);
-                out.numbers.push(z);
-            }
+        let (z, mut m) = match elements.number(sym) {
+            Ok(found) => found,
             Err(reason) => return Some(err(k, reason)),
+        };
+        if layout.masses.is_some() {
+            m = match parse_f64(mass) {
+                Some(v) if v.is_finite() && v > 0.0 => v,
+                _ => {
+                    return Some(err(
+                        k,
+                        format!("mass '{}' is not a positive number of u", show(mass)),
+                    ))
+                }
+            };
         }
+        out.push(xyz, z, m);
     }
     None
 }

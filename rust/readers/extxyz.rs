@@ -80,11 +80,12 @@ pub(super) fn parse_info(comment: &str) -> Option<Vec<(String, String)>> {
     any_pair.then_some(out)
 }
 
-/// Which columns of an atom line hold the element and the position.
+/// Which columns of an atom line hold the element, the position and (optionally) the mass.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(super) struct Layout {
     pub(super) species: usize,
     pub(super) pos: usize,
+    pub(super) masses: Option<usize>,
     /// Columns an atom line must have.
     pub(super) needed: usize,
     pub(super) extended: bool,
@@ -93,6 +94,7 @@ pub(super) struct Layout {
 pub(super) const STANDARD: Layout = Layout {
     species: 0,
     pos: 1,
+    masses: None,
     needed: 4,
     extended: false,
 };
@@ -101,7 +103,7 @@ pub(super) const STANDARD: Layout = Layout {
 pub(super) fn layout_from_properties(value: &str) -> std::result::Result<Layout, String> {
     let bad = || format!("Properties '{value}' is not a list of name:type:count triples");
     let mut col = 0usize;
-    let (mut species, mut z, mut pos) = (None, None, None);
+    let (mut species, mut z, mut pos, mut masses) = (None, None, None, None);
     let mut parts = value.split(':');
     while let Some(name) = parts.next() {
         let (Some(kind), Some(count)) = (parts.next(), parts.next()) else {
@@ -112,6 +114,7 @@ pub(super) fn layout_from_properties(value: &str) -> std::result::Result<Layout,
             ("species", 1) if kind.eq_ignore_ascii_case("S") => species = Some(col),
             ("Z", 1) if kind.eq_ignore_ascii_case("I") => z = Some(col),
             ("pos", 3) if kind.eq_ignore_ascii_case("R") => pos = Some(col),
+            ("masses", 1) if kind.eq_ignore_ascii_case("R") => masses = Some(col),
             _ => {}
         }
         col = col.checked_add(count).ok_or_else(bad)?;
@@ -123,7 +126,11 @@ pub(super) fn layout_from_properties(value: &str) -> std::result::Result<Layout,
     Ok(Layout {
         species,
         pos,
-        needed: col.max(species + 1).max(pos + 3),
+        masses,
+        needed: col
+            .max(species + 1)
+            .max(pos + 3)
+            .max(masses.map_or(0, |m| m + 1)),
         extended: true,
     })
 }

@@ -5,6 +5,8 @@
 //! pairs (values may be quoted "…" or braced {…}); `Properties=species:S:1:pos:R:3:…` says
 //! which columns hold the element and the position, and is honoured. The element column may
 //! also hold an atomic number ("6"); a `Z:I:1` property stands in for a missing `species`.
+//! Isotopes: the symbols `D` and `T` (hydrogen-2 and -3, through the caller's symbol lookup)
+//! and a `masses:R:1` column (u; it wins over the symbol) give atoms their own masses.
 //!
 //! How it is fast: one serial pass finds the frames by jumping over atom lines with a
 //! vectorised newline search (memchr; no tokenising); then the atom lines are parsed in parallel
@@ -42,8 +44,9 @@ pub use file::read_xyz_path;
 /// Atom lines per parallel work unit.
 pub const CHUNK_LINES: usize = 16_384;
 
-/// Element lookup injected by the caller: symbol -> atomic number.
-pub type ToNumber = dyn Fn(&str) -> Option<i64> + Sync;
+/// Element lookup injected by the caller: symbol -> (atomic number, the mass in u when the
+/// symbol names one nuclide such as `D`, else `None`).
+pub type ToNumber = dyn Fn(&str) -> Option<(i64, Option<f64>)> + Sync;
 
 /// All frames of an XYZ file, flattened.
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -52,6 +55,10 @@ pub struct XyzFrames {
     pub positions: Vec<[f64; 3]>,
     /// Atomic numbers, parallel to `positions`.
     pub numbers: Vec<i64>,
+    /// Masses in u parallel to `positions`, NaN where the file gives none (the standard
+    /// atomic weight applies); empty when no atom of the file has a mass of its own (a
+    /// `masses` column or a nuclide symbol such as `D`).
+    pub masses: Vec<f64>,
     /// n_frames + 1 offsets into `positions`: frame f is `offsets[f]..offsets[f + 1]`.
     /// A bad frame has zero atoms.
     pub offsets: Vec<usize>,
@@ -121,10 +128,7 @@ pub fn read_xyz_bytes(data: &[u8], source: &str, to_number: &ToNumber) -> XyzFra
         let n_lines: usize = segs.iter().map(|s| s.n_lines).sum();
         out.positions.reserve(n_lines);
         out.numbers.reserve(n_lines);
-        let mut elements = Elements {
-            to_number,
-            cache: Vec::new(),
-        };
+        let mut elements = Elements::new(to_number);
         for seg in segs {
             let (n_atoms, layout) = match (&scanned[seg.frame], &headers[seg.frame]) {
                 (Scanned::Good(span), Some(Header { layout: Ok(l), .. })) => (span.n_atoms, *l),
@@ -180,12 +184,21 @@ pub fn read_xyz_bytes(data: &[u8], source: &str, to_number: &ToNumber) -> XyzFra
     let total: usize = counts.iter().sum();
     let mut positions = Vec::with_capacity(total);
     let mut numbers = Vec::with_capacity(total);
+    let any_mass = outs.iter().any(|o| !o.masses.is_empty());
+    let mut masses = Vec::with_capacity(if any_mass { total } else { 0 });
     for out in &outs {
         let mut at = 0usize;
         for &(f, len, _) in &out.results {
             if errors[f].is_none() {
                 positions.extend_from_slice(&out.positions[at..at + len]);
                 numbers.extend_from_slice(&out.numbers[at..at + len]);
+                if any_mass {
+                    if out.masses.is_empty() {
+                        masses.resize(masses.len() + len, f64::NAN);
+                    } else {
+                        masses.extend_from_slice(&out.masses[at..at + len]);
+                    }
+                }
             }
             at += len;
         }
@@ -198,6 +211,7 @@ pub fn read_xyz_bytes(data: &[u8], source: &str, to_number: &ToNumber) -> XyzFra
     XyzFrames {
         positions,
         numbers,
+        masses,
         offsets,
         comments,
         info,

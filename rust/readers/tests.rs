@@ -5,7 +5,7 @@ use super::*;
 use crate::error::Error;
 
 /// A small periodic table for the tests (symbols and numbers: IUPAC, common practice).
-fn table(s: &str) -> Option<i64> {
+fn element(s: &str) -> Option<i64> {
     match s {
         "H" => Some(1),
         "C" => Some(6),
@@ -15,6 +15,15 @@ fn table(s: &str) -> Option<i64> {
         "Cl" => Some(17),
         "Fe" => Some(26),
         _ => None,
+    }
+}
+
+/// The lookup the reader is given: elements, and D = ²H (2.014 u here: the reader passes on
+/// whatever mass the lookup gives).
+fn table(s: &str) -> Option<(i64, Option<f64>)> {
+    match s {
+        "D" => Some((1, Some(2.014))),
+        _ => element(s).map(|z| (z, None)),
     }
 }
 
@@ -78,7 +87,7 @@ fn round_trip_is_exact_for_many_frames() {
             // `{}` writes the shortest text that reads back to the same f64.
             text.push_str(&format!("{} {} {:e} {}\n", syms[k], p[0], p[1], p[2]));
             want_pos.push(p);
-            want_num.push(table(syms[k]).unwrap());
+            want_num.push(element(syms[k]).unwrap());
         }
         want_off.push(want_pos.len());
     }
@@ -513,4 +522,48 @@ fn fortran_exponents_read_as_e_exponents_and_nothing_else_does() {
     ] {
         assert_eq!(parse_f64(bad.as_bytes()), None, "{bad}");
     }
+}
+
+#[test]
+fn nuclide_symbols_and_a_masses_column_give_atoms_their_masses() {
+    // Plain frames: no masses at all (nothing allocated).
+    let f = read(WATER);
+    assert!(f.masses.is_empty());
+    // D through the lookup; the H atoms keep NaN (standard weight).
+    let f = read("3\nHDO\nO 0 0 0.1\nD 0 0.76 -0.47\nH 0 -0.76 -0.47\n");
+    assert_eq!(f.errors, vec![None]);
+    assert_eq!(f.numbers, vec![8, 1, 1]);
+    assert_eq!(f.masses.len(), 3);
+    assert!(f.masses[0].is_nan() && f.masses[2].is_nan());
+    assert_eq!(f.masses[1], 2.014);
+    // A masses column wins over the symbol; frames without masses get NaN in a file where
+    // another frame has some; the masses stay aligned with the atoms across frames.
+    let text = "1\nplain\nH 0 0 0\n\
+                2\nProperties=species:S:1:pos:R:3:masses:R:1 pbc=\"F F F\"\n\
+                H 0 0 0 3.016\nD 0 0 1 1.008\n";
+    let f = read(text);
+    assert_eq!(f.errors, vec![None, None]);
+    assert_eq!(f.offsets, vec![0, 1, 3]);
+    assert!(f.masses[0].is_nan());
+    assert_eq!(&f.masses[1..], &[3.016, 1.008]);
+    // The mass column may come before the position.
+    let f = read("1\nProperties=masses:R:1:species:S:1:pos:R:3\n2.014 H 1 2 3\n");
+    assert_eq!(f.errors, vec![None]);
+    assert_eq!(
+        (f.masses.clone(), f.positions[0]),
+        (vec![2.014], [1.0, 2.0, 3.0])
+    );
+    // A mass that is not a positive number is a bad frame, named by its line.
+    for bad in ["-1", "0", "abc", "nan"] {
+        let f = read(&format!(
+            "1\nProperties=species:S:1:pos:R:3:masses:R:1\nH 0 0 0 {bad}\n"
+        ));
+        let (_, line, why) = reason(&f, 0);
+        assert_eq!(line, 3);
+        assert!(why.contains(&format!("mass '{bad}'")), "{why}");
+    }
+    // Missing mass column: too few columns.
+    let f = read("1\nProperties=species:S:1:pos:R:3:masses:R:1\nH 0 0 0\n");
+    let (_, _, why) = reason(&f, 0);
+    assert_eq!(why, "expected 5 columns (from Properties), found 4");
 }

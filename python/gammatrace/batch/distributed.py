@@ -23,6 +23,7 @@ from typing import Any
 
 from ..errors import InputError
 from ..group import DEFAULT_TOL
+from ..io import check_cell_choice
 from .run import _concat, convert, iter_batch, ragged_from_file
 
 __all__ = ["analyze_distributed", "plan_partitions"]
@@ -52,9 +53,11 @@ def plan_partitions(
     return parts
 
 
-def _analyze_partition(path: str, start: int, stop: int | None, tol: float, n_threads: int):
+def _analyze_partition(
+    path: str, start: int, stop: int | None, tol: float, n_threads: int, cell: str | None = None
+):
     """Worker side: read the partition's frames and analyse them (returns a dict of columns)."""
-    data = ragged_from_file(path)
+    data = ragged_from_file(path, cell)
     stop = len(data) if stop is None else stop
     return _concat(list(iter_batch(data.slice(start, stop), tol=tol, n_threads=n_threads)))
 
@@ -67,6 +70,7 @@ def analyze_distributed(
     frames_per_partition: int | None = None,
     n_threads: int = 0,
     output: str = "pandas",
+    cell: str | None = None,
 ):
     """Analyse XYZ files on a Dask cluster; returns the same table as a local batch.
 
@@ -83,10 +87,13 @@ def analyze_distributed(
     n_threads : int
         Threads each worker's core may use (0 = all of the worker's cores).
     output : {"pandas", "dict", "arrow"}
+    cell : {"refuse", "ignore", "unwrap"}, optional
+        Periodic frames, as for :func:`gammatrace.batch.analyze_batch`.
     """
+    check_cell_choice(cell)
     parts = plan_partitions(paths, frames_per_partition)
     futures = [
-        client.submit(_analyze_partition, path, a, b, float(tol), int(n_threads), pure=False)
+        client.submit(_analyze_partition, path, a, b, float(tol), int(n_threads), cell, pure=False)
         for path, a, b in parts
     ]
     results = client.gather(futures)

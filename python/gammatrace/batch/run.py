@@ -24,7 +24,16 @@ from .._progress import progress as _progress
 from ..analysis import _check_tol
 from ..errors import GammatraceError, InputError
 from ..group import DEFAULT_TOL
-from ..io import FrameError, as_structure, read_xyz_raw
+from ..io import (
+    STANDARD_MASSES,
+    FrameError,
+    Structure,
+    apply_cell,
+    as_structure,
+    check_cell_choice,
+    read_xyz_raw,
+)
+from ..io.cell import periodic_info
 from ..spectroscopy import activity_masks, format_irreps, reduce_vibrations
 from ..tables import LINEAR_SUBGROUP_N, get_table
 
@@ -66,7 +75,10 @@ class Ragged:
     ----------
     positions : ``float64 (total_atoms, 3)``; numbers : ``int64 (total_atoms,)``;
     offsets : ``int64 (n_structures + 1,)``; sources : list of str; indices : ``int64``;
-    errors : list of (type, message) or None, for frames that failed to read.
+    errors : list of (type, message) or None, for frames that failed to read (or were
+    refused: a periodic frame under ``cell="refuse"``);
+    masses : ``float64 (total_atoms,)`` or None (every atom with its standard atomic weight);
+    atoms of one element with different masses are different species.
     """
 
     positions: np.ndarray
@@ -75,6 +87,7 @@ class Ragged:
     sources: list
     indices: np.ndarray
     errors: list
+    masses: np.ndarray | None = None
 
     def __len__(self) -> int:
         return len(self.offsets) - 1
@@ -89,34 +102,48 @@ class Ragged:
             self.sources[a:b],
             self.indices[a:b],
             self.errors[a:b],
+            None if self.masses is None else self.masses[o[0] : o[-1]],
         )
 
 
-def ragged_from_structures(structures: Iterable[Any]) -> Ragged:
+def ragged_from_structures(structures: Iterable[Any], cell: str | None = None) -> Ragged:
     """Pack Structures (or anything :func:`~gammatrace.io.as_structure` takes) into a Ragged.
 
     Row ``index`` is the position in ``structures`` (0, 1, 2, …), whatever frame of which file a
-    Structure came from; ``source`` keeps where it came from.
+    Structure came from; ``source`` keeps where it came from. ``cell``: what to do with periodic
+    structures (:func:`gammatrace.io.apply_cell`); a refused one keeps its place with its error.
     """
+    choice = check_cell_choice(cell)
     pos, num, offs, srcs, idx, errs = [], [], [0], [], [], []
+    mass: list = []
     for k, item in enumerate(structures):
+        s_mass = None
         if isinstance(item, FrameError):
             s_pos, s_num, err = np.zeros((0, 3)), np.zeros(0, np.int64), (item.type, item.message)
             src = item.source
         else:
+            src = "<input>"
             try:
                 s = as_structure(item)
-                s_pos, s_num, err, src = s.positions, s.numbers, None, s.source
+                src = s.source
+                s = apply_cell(s, choice)
+                s_pos, s_num, s_mass, err = s.positions, s.numbers, s.masses, None
             except GammatraceError as exc:
                 s_pos, s_num = np.zeros((0, 3)), np.zeros(0, np.int64)
-                err, src = (type(exc).__name__, str(exc)), "<input>"
+                err = (type(exc).__name__, str(exc))
         index = k
         pos.append(s_pos)
         num.append(s_num)
+        mass.append(s_mass)
         offs.append(offs[-1] + len(s_num))
         srcs.append(src)
         idx.append(index)
         errs.append(err)
+    masses = None
+    if any(m is not None for m in mass):
+        masses = np.concatenate(
+            [STANDARD_MASSES[n] if m is None else m for n, m in zip(num, mass)]
+        ).astype(np.float64)
     return Ragged(
         np.ascontiguousarray(np.concatenate(pos) if pos else np.zeros((0, 3)), dtype=np.float64),
         np.ascontiguousarray(np.concatenate(num) if num else np.zeros(0), dtype=np.int64),
@@ -124,20 +151,72 @@ def ragged_from_structures(structures: Iterable[Any]) -> Ragged:
         srcs,
         np.asarray(idx, dtype=np.int64),
         errs,
+        masses,
     )
 
 
-def ragged_from_file(path: str | os.PathLike) -> Ragged:
-    """Read a multi-frame XYZ file into ragged arrays (Rust reader, no per-frame objects)."""
+def ragged_from_file(path: str | os.PathLike, cell: str | None = None) -> Ragged:
+    """Read a multi-frame XYZ file into ragged arrays (Rust reader, no per-frame objects).
+
+    Masses (``D``/``T`` symbols, a ``masses`` column) are kept; periodic frames are handled
+    by ``cell`` as in :func:`gammatrace.io.apply_cell` — a refused frame (or one that cannot
+    be unwrapped) becomes an error in its place, with no atoms.
+    """
+    choice = check_cell_choice(cell)
+    source = os.fspath(path)
     raw = read_xyz_raw(path)
     n = len(raw["offsets"]) - 1
+    offsets = np.asarray(raw["offsets"], dtype=np.int64)
+    positions, numbers = raw["positions"], raw["numbers"]
+    masses = None
+    if len(raw["masses"]):
+        m = raw["masses"]
+        masses = np.where(np.isnan(m), STANDARD_MASSES[numbers], m)
+    errors = list(raw["errors"])
+    dropped = np.zeros(n, dtype=bool)
+    copied = False
+    for k, info in enumerate(raw["info"]):
+        # only frames with a cell key are looked at (plain XYZ frames have no info)
+        if errors[k] is not None or not any(key.lower() in ("pbc", "lattice") for key, _ in info):
+            continue
+        a, b = int(offsets[k]), int(offsets[k + 1])
+        where = f"{source} [frame {k}]"
+        try:
+            lattice, pbc = periodic_info(dict(info), where)
+            s = Structure(
+                numbers[a:b],
+                positions[a:b],
+                source,
+                k,
+                masses=None if masses is None else masses[a:b],
+                cell=lattice,
+                pbc=pbc,
+            )
+            unwrapped = apply_cell(s, choice)
+        except GammatraceError as exc:
+            errors[k] = (type(exc).__name__, str(exc))
+            dropped[k] = True
+            continue
+        if unwrapped is not s:
+            if not copied:
+                positions, copied = positions.copy(), True
+            positions[a:b] = unwrapped.positions
+    if dropped.any():
+        # refused frames keep their row (with the error) but no atoms
+        counts = np.diff(offsets)
+        keep = np.repeat(~dropped, counts)
+        positions = np.ascontiguousarray(positions[keep])
+        numbers = np.ascontiguousarray(numbers[keep])
+        masses = None if masses is None else np.ascontiguousarray(masses[keep])
+        offsets = np.concatenate([[0], np.cumsum(np.where(dropped, 0, counts))]).astype(np.int64)
     return Ragged(
-        raw["positions"],
-        raw["numbers"],
-        np.asarray(raw["offsets"], dtype=np.int64),
-        [os.fspath(path)] * n,
+        positions,
+        numbers,
+        offsets,
+        [source] * n,
         np.arange(n, dtype=np.int64),
-        list(raw["errors"]),
+        errors,
+        masses,
     )
 
 
@@ -231,6 +310,7 @@ def _run_chunk(chunk: Ragged, tol: float, n_threads: int) -> dict:
         tol,
         LINEAR_SUBGROUP_N,
         n_threads,
+        None if chunk.masses is None else np.ascontiguousarray(chunk.masses),
     )
     groups = np.asarray(raw["point_group"], dtype=object)
     cols["max_deviation"] = np.asarray(raw["max_deviation"], dtype=np.float64)
@@ -294,6 +374,7 @@ def analyze_batch(
     chunk_size: int = DEFAULT_CHUNK,
     progress: bool = False,
     output: str = "pandas",
+    cell: str | None = None,
 ):
     """Analyse many structures in parallel and return one row per structure.
 
@@ -301,7 +382,7 @@ def analyze_batch(
     ----------
     structures
         A :class:`Ragged`, a path to a multi-frame XYZ file, or an iterable of Structures,
-        ``ase.Atoms`` or ``(symbols, positions)`` pairs.
+        ``ase.Atoms`` or ``(symbols, positions)`` pairs. Masses (isotopes) are honoured.
     tol : float
         Distance tolerance in ångström.
     n_threads : int
@@ -312,13 +393,17 @@ def analyze_batch(
         Show a progress bar on standard error (when it is a terminal and tqdm is installed).
     output : {"pandas", "dict", "arrow"}
         The table type returned.
+    cell : {"refuse", "ignore", "unwrap"}, optional
+        Periodic frames: refused (the default: an error row, the batch goes on), analysed as
+        given, or unwrapped into whole molecules first (:mod:`gammatrace.io.cell`). Not
+        applied to a :class:`Ragged`, which is analysed as it is.
 
     Returns
     -------
     pandas.DataFrame, dict of numpy arrays, or pyarrow.Table
         Columns as in :data:`COLUMNS`; failed structures have ``error_type``/``error`` set.
     """
-    data = _as_ragged(structures)
+    data = _as_ragged(structures, cell)
     cols = _concat(
         list(
             iter_batch(data, tol=tol, n_threads=n_threads, chunk_size=chunk_size, progress=progress)
@@ -327,11 +412,12 @@ def analyze_batch(
     return convert(cols, output)
 
 
-def _as_ragged(structures: Any) -> Ragged:
+def _as_ragged(structures: Any, cell: str | None = None) -> Ragged:
+    check_cell_choice(cell)
     if isinstance(structures, Ragged):
         return structures
     if isinstance(structures, (str, os.PathLike)):
-        return ragged_from_file(structures)
+        return ragged_from_file(structures, cell)
 
     def items():
         for s in structures:
@@ -340,7 +426,7 @@ def _as_ragged(structures: Any) -> Ragged:
             else:
                 yield s
 
-    return ragged_from_structures(items())
+    return ragged_from_structures(items(), cell)
 
 
 def convert(cols: dict, output: str = "pandas"):

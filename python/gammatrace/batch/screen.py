@@ -22,6 +22,7 @@ import orjson
 from .._progress import progress as _progress
 from ..errors import InputError
 from ..group import DEFAULT_TOL
+from ..io import check_cell_choice
 from .run import (
     COLUMNS,
     DEFAULT_CHUNK,
@@ -173,14 +174,19 @@ def screen(
     chunk_size: int = DEFAULT_CHUNK,
     progress: bool = True,
     resume: bool = False,
+    cell: str | None = None,
 ) -> dict:
     """Screen XYZ files: analyse every frame, stream rows to ``out``, return a summary.
+
+    ``cell``: what to do with periodic frames (``"refuse"``, the default, makes each an error
+    row; ``"ignore"``, ``"unwrap"``: see :mod:`gammatrace.io.cell`).
 
     Returns
     -------
     dict
         ``{"groups": {point_group: ["file:frame", ...]}, "failures": [...], "n": int}``
     """
+    check_cell_choice(cell)
     out_fmt = _format_of(out, fmt) if out else None
     done = _done_counts(out, out_fmt) if (out and resume) else Counter()
     writer = _Writer(out, out_fmt, append=resume) if out else None
@@ -188,7 +194,7 @@ def screen(
     try:
         datas: list[Ragged] = []
         for p in paths:
-            d = ragged_from_file(p)
+            d = ragged_from_file(p, cell)
             skip = min(done.get(os.fspath(p), 0), len(d))
             datas.append(d.slice(skip, len(d)))
         total = sum(len(d) for d in datas)

@@ -18,9 +18,10 @@ from .._progress import progress
 from ..analysis import Analysis, analyze
 from ..errors import GammatraceError
 from ..group import DEFAULT_TOL
-from ..io import FrameError, read_structures
+from ..io import CELL_CHOICES, FrameError, read_structures
 
 __all__ = [
+    "add_cell",
     "add_format",
     "add_tolerance",
     "dump",
@@ -41,6 +42,20 @@ def add_tolerance(parser: argparse.ArgumentParser) -> None:
         type=float,
         default=DEFAULT_TOL,
         help=f"distance tolerance in Å (default {DEFAULT_TOL})",
+    )
+
+
+def add_cell(parser: argparse.ArgumentParser) -> None:
+    """``--cell refuse|ignore|unwrap``: what to do with periodic frames."""
+    parser.add_argument(
+        "--cell",
+        choices=CELL_CHOICES,
+        default=CELL_CHOICES[0],
+        help="periodic frames (extended XYZ with pbc/Lattice): refuse them (default: an error "
+        "naming the frame; a crystal has a space group, not a point group), ignore the cell "
+        "(analyse the coordinates as a finite cluster as given), or unwrap (make molecules "
+        "whole across the cell with the minimum-image rule and covalent-radius bonds, then "
+        "analyse the whole unwrapped set)",
     )
 
 

@@ -14,7 +14,7 @@ from ..group.measure import EXTENDED_BOUND
 from ..io import FrameError
 from ..pictures import draw_stereogram, draw_symmetry
 from ..tables import get_table
-from ._shared import add_format, add_tolerance, dump, fail, watched, write
+from ._shared import add_cell, add_format, add_tolerance, dump, fail, watched, write
 
 __all__ = ["register", "run"]
 
@@ -32,7 +32,7 @@ def run(args: argparse.Namespace) -> int:
         fail(exc, args.traceback)
         return 2
     status = 0
-    for result in watched(analyze_many(args.paths, tol=args.tol)):
+    for result in watched(analyze_many(args.paths, tol=args.tol, cell=args.cell)):
         if isinstance(result, FrameError):
             status = 1
             if args.format == "json":
@@ -98,6 +98,7 @@ def register(sub) -> None:
     a.add_argument("paths", nargs="+", metavar="PATH", help="XYZ file(s), '-' for stdin")
     add_tolerance(a)
     add_format(a)
+    add_cell(a)
     a.add_argument(
         "--basis",
         action="append",

@@ -7,7 +7,7 @@ import sys
 
 from ..batch.screen import screen
 from ..text import plural
-from ._shared import add_tolerance
+from ._shared import add_cell, add_tolerance
 
 __all__ = ["register", "run"]
 
@@ -22,6 +22,7 @@ def run(args: argparse.Namespace) -> int:
         chunk_size=args.chunk,
         progress=not args.no_progress,
         resume=args.resume,
+        cell=args.cell,
     )
     groups = summary["groups"]
     n = summary["n"]
@@ -60,6 +61,7 @@ def register(sub) -> None:
         help="override the format implied by --out's extension",
     )
     add_tolerance(sc)
+    add_cell(sc)
     sc.add_argument("--threads", type=int, default=0, help="core threads (0 = all cores)")
     sc.add_argument("--chunk", type=int, default=8192, help="structures per chunk")
     sc.add_argument(

@@ -37,6 +37,7 @@ def run(args: argparse.Namespace) -> int:
                     s.numbers,
                     sym.positions,
                     comment=f"symmetrized to {res.point_group} by gammatrace",
+                    masses=s.masses,
                 )
             ],
             args.out,

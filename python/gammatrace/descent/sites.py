@@ -63,7 +63,8 @@ class Site:
     representative : int
         The first atom of the orbit; the stabiliser and frame refer to it.
     element : str
-        Element symbol.
+        Element symbol; an isotope whose mass differs from the standard weight by its own
+        symbol (``D``, ``T``, ``13C``).
     distance : float
         Distance of the representative from the centre of mass (Å).
     site_group : str
@@ -242,7 +243,7 @@ def site_analysis(sym: SymmetryData) -> SiteAnalysis:
     sym = as_symmetry(sym)
     s = sym.structure
     n = sym.n_atoms
-    symbols = s.symbols
+    symbols = s.species_symbols  # isotopes by their own symbol (D, 13C)
     gen = np.ascontiguousarray(sym.generator_permutations)
     ids = np.asarray(_core.orbits(n, gen), dtype=np.int64)
     _, first = np.unique(ids, return_index=True)

@@ -36,13 +36,19 @@ def tolerance_ladder(tol: float, bound: float) -> list[float]:
     return [min(tol * 10.0 ** (j / _STEPS), bound) for j in range(n + 1)]
 
 
-def _best_improper(positions, species, center, ops, proper, tol) -> float | None:
+def _best_improper(structure, center, ops, proper, tol) -> float | None:
     """Largest image distance of the best improper operation among ``ops`` (held at tol)."""
     improper = np.flatnonzero(~np.asarray(proper, dtype=bool))
     if len(improper) == 0:
         return None
+    s = structure
     _, devs = _core.map_operations(
-        positions, species, tuple(center), np.ascontiguousarray(ops[improper]), tol
+        s.positions,
+        s.numbers,
+        tuple(center),
+        np.ascontiguousarray(ops[improper]),
+        tol,
+        s.masses,
     )
     return float(np.min(devs))
 
@@ -64,12 +70,12 @@ def improper_within(sym: SymmetryData) -> float | None:
     """
     s = sym.structure
     if not sym.chiral:
-        return _best_improper(
-            s.positions, s.numbers, sym.center, sym.operations, sym.proper, sym.tol
-        )
+        return _best_improper(s, sym.center, sym.operations, sym.proper, sym.tol)
     for t in tolerance_ladder(sym.tol, SEARCH_FACTOR * sym.tol)[1:]:
-        raw = _core.find_point_group(s.positions, s.numbers, t, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT)
+        raw = _core.find_point_group(
+            s.positions, s.numbers, t, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT, s.masses
+        )
         if raw.proper.all():
             continue
-        return _best_improper(s.positions, s.numbers, raw.center, raw.operations, raw.proper, t)
+        return _best_improper(s, raw.center, raw.operations, raw.proper, t)
     return None

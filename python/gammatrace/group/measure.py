@@ -304,7 +304,7 @@ class NearSymmetry:
             s = self.sym.structure
             try:
                 raw = _core.find_point_group(
-                    s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT
+                    s.positions, s.numbers, tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT, s.masses
                 )
                 self._found[tol] = SymmetryData.from_detection(s, raw, tol)
             except GammatraceError:
@@ -440,7 +440,7 @@ class NearSymmetry:
         s = found.structure
         try:
             perms, _ = _core.map_operations(
-                s.positions, s.numbers, tuple(found.center), ops, found.tol
+                s.positions, s.numbers, tuple(found.center), ops, found.tol, s.masses
             )
         except GammatraceError:
             return None

@@ -311,6 +311,7 @@ class SymmetryData:
             tuple(self.center),
             np.ascontiguousarray(self.operations[missing]),
             self.tol,
+            self.structure.masses,
         )
         out[missing] = more
         return _frozen(out)

@@ -8,7 +8,7 @@ from typing import Any, Union
 from ..errors import InputError, ReadError
 from ..text import plural
 from .adapters import from_ase, from_rdkit
-from .structure import FrameError, Structure, coerce_numbers, coerce_positions
+from .structure import FrameError, Structure, coerce_elements, coerce_positions
 from .xyz import read_xyz
 
 __all__ = ["StructureLike", "as_structure"]
@@ -24,7 +24,8 @@ def as_structure(
     Parameters
     ----------
     obj
-        One of: a :class:`Structure`; element symbols or atomic numbers (with ``positions``);
+        One of: a :class:`Structure`; element symbols (``D`` and ``T`` for hydrogen-2 and -3)
+        or atomic numbers (with ``positions``);
         a path to an XYZ file; an ``ase.Atoms``; an RDKit ``Mol`` with a conformer.
     positions : array_like, optional
         ``(n_atoms, 3)`` coordinates in ångström, when ``obj`` lists the elements. A
@@ -41,7 +42,8 @@ def as_structure(
         return obj
     if positions is not None:
         pos = coerce_positions(positions)
-        return Structure(coerce_numbers(obj, pos.shape[0]), pos)
+        nums, masses = coerce_elements(obj, pos.shape[0])
+        return Structure(nums, pos, masses=masses)
     if isinstance(obj, (str, os.PathLike)):
         frames = read_xyz(obj)
         if frame is None:

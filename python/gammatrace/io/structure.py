@@ -2,7 +2,8 @@
 :class:`FrameError` for a frame that could not be read (kept in place, never dropped).
 
 A :class:`Structure` holds atomic numbers (``int64 (n_atoms,)``), Cartesian positions in
-ångström (``float64 (n_atoms, 3)``), and where it came from (``source``, ``index`` of the frame).
+ångström (``float64 (n_atoms, 3)``), optional per-atom masses (isotopes), an optional periodic
+cell, and where it came from (``source``, ``index`` of the frame).
 """
 
 from __future__ import annotations
@@ -13,9 +14,9 @@ from typing import Any
 import numpy as np
 
 from ..errors import InputError, StructureError
-from .elements import atomic_numbers, element_data
+from .elements import STANDARD_MASSES, element_data, nuclides, species
 
-__all__ = ["FrameError", "Structure", "coerce_numbers", "coerce_positions"]
+__all__ = ["FrameError", "Structure", "coerce_elements", "coerce_positions"]
 
 
 @dataclass(frozen=True)
@@ -36,6 +37,15 @@ class Structure:
         The XYZ comment line, if any.
     info : dict
         ``key=value`` properties of an extended-XYZ comment line.
+    masses : numpy.ndarray or None
+        Per-atom masses in u, ``float64 (n_atoms,)`` (isotopes: ``D``/``T`` symbols, an
+        extended-XYZ ``masses`` column, masses set on an ``ase.Atoms``, RDKit isotopes);
+        None when every atom has the standard atomic weight of its element.
+    cell : numpy.ndarray or None
+        Lattice vectors as rows, Å, ``float64 (3, 3)``, when the input declares a cell.
+    pbc : tuple of bool
+        Periodic directions along the three lattice vectors; any True makes the structure
+        periodic (see :mod:`gammatrace.io.cell`).
     """
 
     numbers: np.ndarray
@@ -44,6 +54,25 @@ class Structure:
     index: int = 0
     comment: str = ""
     info: dict = field(default_factory=dict)
+    masses: np.ndarray | None = None
+    cell: np.ndarray | None = None
+    pbc: tuple = (False, False, False)
+
+    def __post_init__(self) -> None:
+        if self.masses is not None:
+            m = np.ascontiguousarray(self.masses, dtype=np.float64)
+            if m.shape != (self.numbers.shape[0],):
+                raise InputError(
+                    f"masses: expected shape ({self.numbers.shape[0]},), got {m.shape}"
+                )
+            object.__setattr__(self, "masses", m)
+        if self.cell is not None:
+            c = np.ascontiguousarray(self.cell, dtype=np.float64)
+            if c.shape != (3, 3):
+                raise InputError(f"cell: expected shape (3, 3), got {c.shape}")
+            object.__setattr__(self, "cell", c)
+        pbc = tuple(bool(p) for p in np.broadcast_to(np.asarray(self.pbc, dtype=bool), (3,)))
+        object.__setattr__(self, "pbc", pbc)
 
     @property
     def n_atoms(self) -> int:
@@ -54,6 +83,32 @@ class Structure:
     def symbols(self) -> list[str]:
         """Element symbols."""
         return element_data(self.numbers)[2]
+
+    @property
+    def atom_masses(self) -> np.ndarray:
+        """Masses in u: those given (:attr:`masses`), else the standard atomic weights
+        (IUPAC 2021)."""
+        if self.masses is not None:
+            return self.masses
+        return STANDARD_MASSES[self.numbers]
+
+    @property
+    def species(self) -> np.ndarray:
+        """``int64 (n_atoms,)``: equal for atoms of one element and one mass (within
+        ``MASS_TOLERANCE``), the codes detection matches atoms by; the atomic numbers when
+        no masses are given."""
+        return species(self.numbers, self.masses)[0]
+
+    @property
+    def species_symbols(self) -> list[str]:
+        """Symbols that tell isotopes apart: the element symbol for the standard mass, ``D``
+        and ``T`` for ²H and ³H, otherwise the mass number before the element (``13C``)."""
+        return species(self.numbers, self.masses)[1]
+
+    @property
+    def periodic(self) -> bool:
+        """True when the input declares a periodic direction (see :mod:`gammatrace.io.cell`)."""
+        return any(self.pbc)
 
 
 @dataclass(frozen=True)
@@ -84,8 +139,11 @@ class FrameError:
         }
 
 
-def coerce_numbers(elements: Any, n_expected: int | None) -> np.ndarray:
+def coerce_elements(elements: Any, n_expected: int | None) -> tuple[np.ndarray, np.ndarray | None]:
+    """Atomic numbers and masses (None unless a nuclide symbol such as ``D`` is given) of
+    element symbols or atomic numbers."""
     arr = np.asarray(elements)
+    masses = None
     if arr.ndim != 1:
         raise InputError(f"symbols/numbers: expected a 1-D sequence, got shape {arr.shape}")
     if arr.dtype.kind in "iu":
@@ -94,7 +152,7 @@ def coerce_numbers(elements: Any, n_expected: int | None) -> np.ndarray:
             raise StructureError(f"atom {k} has atomic number {arr[k]}, outside 1..=118")
         nums = np.ascontiguousarray(arr, dtype=np.int64)
     elif arr.dtype.kind in "UOS":
-        nums = atomic_numbers([str(s) for s in arr.tolist()])
+        nums, masses = nuclides([str(s) for s in arr.tolist()])
     elif arr.size == 0:
         nums = np.zeros(0, dtype=np.int64)
     else:
@@ -106,7 +164,7 @@ def coerce_numbers(elements: Any, n_expected: int | None) -> np.ndarray:
         raise StructureError(
             f"{nums.shape[0]} elements but {n_expected} coordinate rows: they must match"
         )
-    return nums
+    return nums, masses
 
 
 def coerce_positions(positions: Any) -> np.ndarray:
