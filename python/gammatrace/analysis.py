@@ -22,7 +22,15 @@ from . import _core
 from .bases import ResolvedBasis, check_matrix_kind, find_bonds, parse_basis
 from .bases.counting import Representation, build_representation
 from .errors import GammatraceError, InputError
-from .group import DEFAULT_TOL, VERIFY_ALL_LIMIT, Orbit, SymmetryData, improper_within, orbits
+from .group import (
+    DEFAULT_TOL,
+    VERIFY_ALL_LIMIT,
+    Orbit,
+    SymmetryData,
+    environments,
+    improper_within,
+    orbits,
+)
 from .group.chirality import SEARCH_FACTOR
 from .group.measure import NearGroup, NearSymmetry
 from .io import (
@@ -321,6 +329,21 @@ class Analysis:
         """Sets of symmetry-equivalent atoms with their site groups (:func:`group.orbits`)."""
         return orbits(self.symmetry)
 
+    @cached_property
+    def environment_sets(self) -> dict[str, list]:
+        """Species symbol -> the sets of symmetry-equivalent atoms (zero-based indices), e.g.
+        naphthalene's ``{"C": [[0, 3, 4, 7], [1, 2, 5, 6], [8, 9]], "H": [...]}``. Counts
+        symmetry-equivalent atoms of this static structure; conformational averaging in
+        solution can merge more (a methyl group's three H, the two H of a flipping CH2)."""
+        return environments(self.symmetry, self.orbits)
+
+    @property
+    def environments(self) -> dict[str, int]:
+        """Species symbol -> number of symmetry-distinct atoms of it (isotopes apart: ``D``),
+        the number of environments the symmetry implies (e.g. NMR signals of the static
+        structure; see :attr:`environment_sets`)."""
+        return {sym: len(sets) for sym, sets in self.environment_sets.items()}
+
     # ---------------------------------------------------------------- output
     def to_dict(
         self,
@@ -365,6 +388,7 @@ class Analysis:
         out["chiral"] = self.chiral
         iw = self.improper_within
         out["improper_within"] = None if iw is None else float(iw)
+        out["environments"] = self.environments
         if orbits:
             out["orbits"] = [o.to_dict() for o in self.orbits]
         if near or measure:
@@ -400,7 +424,20 @@ class Analysis:
             f"  distinct fundamentals {vib.n_fundamentals}: {vib.n_ir} IR, {vib.n_raman} Raman"
             + ("; mutual exclusion (centrosymmetric)" if vib.mutual_exclusion else "")
         )
+        lines.append("  " + self._environments_text())
         return "\n".join(lines)
+
+    def _environments_text(self, max_listed: int = 60) -> str:
+        """``environments: C 3 (1,4,5,8 | 2,3,6,7 | 9,10), H 2 (…)`` (atoms numbered from 1;
+        the atoms are listed for structures of at most ``max_listed`` atoms)."""
+        parts = []
+        for symbol, sets in self.environment_sets.items():
+            text = f"{symbol} {len(sets)}"
+            if self.n_atoms <= max_listed:
+                text += " (" + " | ".join(",".join(str(a + 1) for a in s) for s in sets) + ")"
+            parts.append(text)
+        note = " (atoms numbered from 1)" if self.n_atoms <= max_listed else ""
+        return "environments: " + ", ".join(parts) + note
 
     def _chirality_text(self) -> str:
         """``not chiral``, or ``chiral at 0.01 Å; achiral within 0.03 Å`` (the margin)."""

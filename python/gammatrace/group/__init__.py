@@ -15,7 +15,7 @@ from __future__ import annotations
 
 from .chirality import improper_within
 from .measure import NearGroup, NearSymmetry, continuous_measure
-from .orbits import Orbit, orbits, site_group_names
+from .orbits import Orbit, environments, orbits, site_group_names
 from .symmetry import DEFAULT_TOL, VERIFY_ALL_LIMIT, SymmetryData, as_symmetry
 
 __all__ = [
@@ -27,6 +27,7 @@ __all__ = [
     "SymmetryData",
     "as_symmetry",
     "continuous_measure",
+    "environments",
     "improper_within",
     "orbits",
     "site_group_names",

@@ -11,7 +11,7 @@ from ..tables.subgroups import identify_group
 from .stabilisers import atom_images
 from .symmetry import SymmetryData
 
-__all__ = ["Orbit", "orbits", "site_group_names"]
+__all__ = ["Orbit", "environments", "orbits", "site_group_names"]
 
 
 @dataclass(frozen=True)
@@ -83,4 +83,19 @@ def site_group_names(sym: SymmetryData, representatives: np.ndarray) -> list:
             else:
                 cache[key] = identify_group(ops[stab])
         out.append(cache[key])
+    return out
+
+
+def environments(sym: SymmetryData, orbit_list: list[Orbit] | None = None) -> dict[str, list]:
+    """Symmetry-distinct environments per species: symbol -> the sets of equivalent atoms.
+
+    The symbol tells isotopes apart (``D`` next to ``H``; :attr:`Structure.species_symbols`).
+    Sets are those of the static structure (its orbits): conformational averaging in solution
+    (a rotating methyl group, ring flips) can make more atoms equivalent on the NMR time
+    scale than the symmetry of one geometry does.
+    """
+    symbols = sym.structure.species_symbols
+    out: dict[str, list] = {}
+    for orbit in orbits(sym) if orbit_list is None else orbit_list:
+        out.setdefault(symbols[orbit.atoms[0]], []).append(list(orbit.atoms))
     return out
