@@ -18,7 +18,7 @@ from .._progress import progress
 from ..analysis import Analysis, analyze
 from ..errors import GammatraceError
 from ..group import DEFAULT_TOL
-from ..io import CELL_CHOICES, FrameError, read_structures
+from ..io import CELL_CHOICES, FrameError, apply_cell, read_structures
 
 __all__ = [
     "add_cell",
@@ -93,8 +93,10 @@ def error_record(source: str, index: int, exc: BaseException) -> dict:
     }
 
 
-def structures(paths: Sequence[str]):
-    """(source, index, Structure or FrameError) for every frame of every path."""
+def structures(paths: Sequence[str], cell: str | None = None):
+    """(source, index, Structure or FrameError) for every frame of every path; a periodic
+    frame goes through the ``cell`` choice (:func:`gammatrace.io.apply_cell`), and one that
+    is refused becomes a FrameError in its place."""
     for path in paths:
         try:
             frames = read_structures(path)
@@ -102,6 +104,11 @@ def structures(paths: Sequence[str]):
             yield str(path), 0, FrameError(str(path), 0, type(exc).__name__, str(exc))
             continue
         for fr in frames:
+            if not isinstance(fr, FrameError):
+                try:
+                    fr = apply_cell(fr, cell)
+                except GammatraceError as exc:
+                    fr = FrameError(fr.source, fr.index, type(exc).__name__, str(exc))
             yield fr.source, fr.index, fr
 
 
@@ -118,9 +125,9 @@ def skip_unread(item: Any, fmt: str) -> bool:
     return True
 
 
-def first_structure(path: str, tol: float) -> Analysis:
+def first_structure(path: str, tol: float, cell: str | None = None) -> Analysis:
     """The analysis of the first frame of ``path`` (the one-structure commands)."""
-    return analyze(path, tol=tol, frame=0)
+    return analyze(path, tol=tol, frame=0, cell=cell)
 
 
 def watched(items: Iterable[Any], unit: str = "frame") -> Iterator[Any]:

@@ -10,7 +10,17 @@ import sys
 from ..descent import distortion_ladder
 from ..errors import GammatraceError
 from ..pictures import draw_ladder
-from ._shared import add_format, dump, error_record, fail, skip_unread, structures, watched, write
+from ._shared import (
+    add_cell,
+    add_format,
+    dump,
+    error_record,
+    fail,
+    skip_unread,
+    structures,
+    watched,
+    write,
+)
 
 __all__ = ["register", "run"]
 
@@ -38,7 +48,7 @@ def run(args: argparse.Namespace) -> int:
         print(f"gammatrace: {exc}", file=sys.stderr)
         return 2
     status = 0
-    for source, index, item in watched(structures(args.paths)):
+    for source, index, item in watched(structures(args.paths, args.cell)):
         if skip_unread(item, args.format):
             status = 1
             continue
@@ -80,6 +90,7 @@ def register(sub) -> None:
         help="comma-separated tolerances in Å (default: 13 from 1e-4 to 0.5, geometric)",
     )
     add_format(lad)
+    add_cell(lad)
     lad.add_argument(
         "--draw",
         default=None,

@@ -15,7 +15,7 @@ from ..errors import InputError, SymmetryBreakingWarning
 from ..modes import DEFAULT_UNIT, HESSIAN_UNITS, SYMMETRY_TOLERANCE, hessian_unit, read_hessian
 from ..pictures import draw_mode_spectrum
 from ..spectroscopy import format_irreps
-from ._shared import add_format, add_tolerance, dump, first_structure, write
+from ._shared import add_cell, add_format, add_tolerance, dump, first_structure, write
 
 __all__ = ["register", "run"]
 
@@ -170,7 +170,7 @@ def _text(args, res, labels, unit) -> str:
 
 def run(args: argparse.Namespace) -> int:
     given = None if args.unit is None else hessian_unit(args.unit)
-    res = first_structure(args.path, args.tol)
+    res = first_structure(args.path, args.tol, args.cell)
     hf = read_hessian(args.hessian, n_atoms=res.n_atoms)
     if given is None:
         unit = hf.unit or DEFAULT_UNIT
@@ -226,6 +226,7 @@ def register(sub) -> None:
     )
     m.add_argument("path", metavar="PATH", help="XYZ file (first frame)")
     add_tolerance(m)
+    add_cell(m)
     add_format(m)
     m.add_argument(
         "--hessian",

@@ -9,7 +9,7 @@ import sys
 from ..bases import parse_basis
 from ..spectroscopy import format_irreps
 from ..text import plural
-from ._shared import add_format, add_tolerance, first_structure
+from ._shared import add_cell, add_format, add_tolerance, first_structure
 
 __all__ = ["register", "run"]
 
@@ -17,7 +17,7 @@ __all__ = ["register", "run"]
 def run(args: argparse.Namespace) -> int:
     from ..bases.matrices import save_npz
 
-    res = first_structure(args.path, args.tol)
+    res = first_structure(args.path, args.tol, args.cell)
     sab = res.symmetry_adapted_basis(parse_basis(args.basis))
     if args.out:
         save_npz(args.out, sab.matrix, sab.labels)
@@ -50,6 +50,7 @@ def register(sub) -> None:
     s = sub.add_parser("salc", help="symmetry-adapted basis (sparse X) of a basis")
     s.add_argument("path", metavar="PATH", help="XYZ file (first frame)")
     add_tolerance(s)
+    add_cell(s)
     add_format(s)
     s.add_argument(
         "--basis",

@@ -10,6 +10,7 @@ from ..analysis import analyze_structure
 from ..descent import check_induced, site_analysis
 from ..errors import GammatraceError
 from ._shared import (
+    add_cell,
     add_format,
     add_tolerance,
     dump,
@@ -26,7 +27,7 @@ __all__ = ["register", "run"]
 
 def run(args: argparse.Namespace) -> int:
     status = 0
-    for source, index, item in watched(structures(args.paths)):
+    for source, index, item in watched(structures(args.paths, args.cell)):
         if skip_unread(item, args.format):
             status = 1
             continue
@@ -60,6 +61,7 @@ def register(sub) -> None:
     s = sub.add_parser("sites", help="symmetry-distinct atoms and their site groups")
     s.add_argument("paths", nargs="+", metavar="PATH", help="XYZ file(s), '-' for stdin")
     add_tolerance(s)
+    add_cell(s)
     add_format(s)
     s.add_argument(
         "--induced",

@@ -9,13 +9,13 @@ import sys
 from ..descent.ladder import distortion_ladder
 from ..io import Structure, write_xyz
 from ..text import format_length
-from ._shared import add_format, add_tolerance, first_structure
+from ._shared import add_cell, add_format, add_tolerance, first_structure
 
 __all__ = ["register", "run"]
 
 
 def run(args: argparse.Namespace) -> int:
-    res = first_structure(args.path, args.tol)
+    res = first_structure(args.path, args.tol, args.cell)
     sym = res.symmetrize()
     loose = sorted({t for t in (2 * args.tol, 0.05, 0.1, 0.2, 0.5) if t > args.tol})
     ladder = distortion_ladder(res.structure, tolerances=loose)
@@ -73,6 +73,7 @@ def register(sub) -> None:
     y = sub.add_parser("symmetrize", help="project onto the exact point group")
     y.add_argument("path", metavar="PATH", help="XYZ file (first frame)")
     add_tolerance(y)
+    add_cell(y)
     add_format(y)
     y.add_argument("--out", default=None, help="write the symmetrized structure (XYZ)")
     y.set_defaults(func=run)
