@@ -17,16 +17,16 @@ MAX_ATOMS_ANALYSED = 2000  # keep each fuzz input cheap: bigger frames are read,
 def check_reader(data: bytes, source: str = "<fuzz>") -> dict:
     """Read ``data`` with the Rust reader and check the ragged result is self-consistent."""
     raw = _core.read_xyz_bytes(data, source)
-    offsets = np.asarray(raw["offsets"])
-    errors = raw["errors"]
+    offsets = np.asarray(raw.offsets)
+    errors = raw.errors
     n_frames = len(errors)
     assert len(offsets) == n_frames + 1 and offsets[0] == 0
     assert np.all(np.diff(offsets) >= 0)
-    assert raw["positions"].shape == (offsets[-1], 3)
-    assert raw["numbers"].shape == (offsets[-1],)
-    assert len(raw["comments"]) == n_frames and len(raw["info"]) == n_frames
-    assert np.isfinite(raw["positions"]).all()
-    assert ((raw["numbers"] >= 1) & (raw["numbers"] <= 118)).all()
+    assert raw.positions.shape == (offsets[-1], 3)
+    assert raw.numbers.shape == (offsets[-1],)
+    assert len(raw.comments) == n_frames and len(raw.info) == n_frames
+    assert np.isfinite(raw.positions).all()
+    assert ((raw.numbers >= 1) & (raw.numbers <= 118)).all()
     for k, err in enumerate(errors):
         if err is None:
             continue
@@ -64,8 +64,8 @@ def check_analysis(numbers: np.ndarray, positions: np.ndarray, tol: float = gt.D
 def check_xyz_input(data: bytes) -> None:
     """The XYZ target: read, then analyse every good frame that is small enough."""
     raw = check_reader(data)
-    offsets = raw["offsets"]
-    for k, err in enumerate(raw["errors"]):
+    offsets = raw.offsets
+    for k, err in enumerate(raw.errors):
         a, b = int(offsets[k]), int(offsets[k + 1])
         if err is None and 0 < b - a <= MAX_ATOMS_ANALYSED:
-            check_analysis(raw["numbers"][a:b], raw["positions"][a:b])
+            check_analysis(raw.numbers[a:b], raw.positions[a:b])

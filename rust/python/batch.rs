@@ -4,10 +4,27 @@ use super::arrays::{coords, slice1};
 use super::{error_pair, CoreError};
 use crate::{batch, detect};
 use numpy::ndarray::{Array1, Array3};
-use numpy::{IntoPyArray, PyReadonlyArray1, PyReadonlyArray2};
+use numpy::{IntoPyArray, PyArray1, PyArray3, PyReadonlyArray1, PyReadonlyArray2};
 use pyo3::exceptions::PyValueError;
 use pyo3::prelude::*;
-use pyo3::types::{PyDict, PyList};
+use pyo3::types::PyList;
+
+/// What a batch found, one entry per structure (operations ragged by `op_offsets`; see
+/// _core.pyi): the core's vectors handed to numpy, no copy.
+#[pyclass(frozen, get_all, module = "gammatrace._core")]
+pub(super) struct BatchResult {
+    point_group: Py<PyList>,
+    order: Py<PyArray1<i64>>,
+    max_deviation: Py<PyArray1<f64>>,
+    n_proper: Py<PyArray1<i64>>,
+    frame: Py<PyArray3<f64>>,
+    operations: Py<PyArray3<f64>>,
+    op_offsets: Py<PyArray1<i64>>,
+    proper: Py<PyArray1<bool>>,
+    angle: Py<PyArray1<f64>>,
+    unshifted: Py<PyArray1<u64>>,
+    errors: Py<PyList>,
+}
 
 /// Detect many structures at once (ragged: concatenated positions + offsets), in parallel;
 /// `masses` (concatenated like the numbers, u) make isotopes different species.
@@ -23,7 +40,7 @@ pub(super) fn find_point_groups_batch<'py>(
     linear_n: usize,
     n_threads: usize,
     masses: Option<PyReadonlyArray1<'py, f64>>,
-) -> PyResult<Bound<'py, PyDict>> {
+) -> PyResult<BatchResult> {
     let pos = coords(&positions, "positions")?;
     let num = slice1(&numbers, "numbers")?;
     let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
@@ -45,33 +62,30 @@ pub(super) fn find_point_groups_batch<'py>(
     let res = py
         .detach(|| batch::summarize_batch(pos, num, mass, &off, &opts, n_threads))
         .map_err(CoreError)?;
-    let out = PyDict::new(py);
-    out.set_item("point_group", PyList::new(py, &res.point_group)?)?;
-    out.set_item("order", Array1::from(res.order).into_pyarray(py))?;
-    out.set_item(
-        "max_deviation",
-        Array1::from(res.max_deviation).into_pyarray(py),
-    )?;
-    out.set_item("n_proper", Array1::from(res.n_proper).into_pyarray(py))?;
     let n_struct = res.frames.len();
     let flat: Vec<f64> = res.frames.iter().flatten().flatten().copied().collect();
     let frames = Array3::from_shape_vec((n_struct, 3, 3), flat)
         .map_err(|e| PyValueError::new_err(e.to_string()))?;
-    out.set_item("frame", frames.into_pyarray(py))?;
     let op_flat: Vec<f64> = res.operations.iter().flatten().flatten().copied().collect();
     let ops = Array3::from_shape_vec((res.operations.len(), 3, 3), op_flat)
         .map_err(|e| PyValueError::new_err(e.to_string()))?;
-    out.set_item("operations", ops.into_pyarray(py))?;
     let op_off: Vec<i64> = res.op_offsets.iter().map(|&o| o as i64).collect();
-    out.set_item("op_offsets", Array1::from(op_off).into_pyarray(py))?;
-    out.set_item("proper", Array1::from(res.proper).into_pyarray(py))?;
-    out.set_item("angle", Array1::from(res.angle).into_pyarray(py))?;
-    out.set_item("unshifted", Array1::from(res.unshifted).into_pyarray(py))?;
     let errors: Vec<Option<(&'static str, String)>> = res
         .errors
         .iter()
         .map(|e| e.as_ref().map(error_pair))
         .collect();
-    out.set_item("errors", PyList::new(py, &errors)?)?;
-    Ok(out)
+    Ok(BatchResult {
+        point_group: PyList::new(py, &res.point_group)?.unbind(),
+        order: Array1::from(res.order).into_pyarray(py).unbind(),
+        max_deviation: Array1::from(res.max_deviation).into_pyarray(py).unbind(),
+        n_proper: Array1::from(res.n_proper).into_pyarray(py).unbind(),
+        frame: frames.into_pyarray(py).unbind(),
+        operations: ops.into_pyarray(py).unbind(),
+        op_offsets: Array1::from(op_off).into_pyarray(py).unbind(),
+        proper: Array1::from(res.proper).into_pyarray(py).unbind(),
+        angle: Array1::from(res.angle).into_pyarray(py).unbind(),
+        unshifted: Array1::from(res.unshifted).into_pyarray(py).unbind(),
+        errors: PyList::new(py, &errors)?.unbind(),
+    })
 }

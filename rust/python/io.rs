@@ -6,35 +6,45 @@ use super::{error_pair, exception_class, guarded, CoreError};
 use crate::error::Error;
 use crate::{readers, structure};
 use numpy::ndarray::{Array1, Array2};
-use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1};
+use numpy::{IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1};
 use pyo3::exceptions::PyValueError;
 use pyo3::prelude::*;
-use pyo3::types::{PyDict, PyList};
+use pyo3::types::PyList;
 
-pub(super) fn frames_to_dict<'py>(
-    py: Python<'py>,
-    frames: readers::XyzFrames,
-) -> PyResult<Bound<'py, PyDict>> {
-    let out = PyDict::new(py);
+/// Every frame of a file as ragged arrays (see _core.pyi): the reader's buffers handed to
+/// numpy as they are, no copy.
+#[pyclass(frozen, get_all, module = "gammatrace._core")]
+pub(super) struct XyzFrames {
+    positions: Py<PyArray2<f64>>,
+    numbers: Py<PyArray1<i64>>,
+    masses: Py<PyArray1<f64>>,
+    offsets: Py<PyArray1<i64>>,
+    comments: Py<PyList>,
+    info: Py<PyList>,
+    errors: Py<PyList>,
+}
+
+pub(super) fn frames_to_object(py: Python<'_>, frames: readers::XyzFrames) -> PyResult<XyzFrames> {
     let n = frames.positions.len();
     // the reader's Vec<[f64; 3]> becomes the numpy buffer as it is: no copy
     let flat: Vec<f64> = frames.positions.into_flattened();
     let pos =
         Array2::from_shape_vec((n, 3), flat).map_err(|e| PyValueError::new_err(e.to_string()))?;
-    out.set_item("positions", pos.into_pyarray(py))?;
-    out.set_item("numbers", Array1::from(frames.numbers).into_pyarray(py))?;
-    out.set_item("masses", Array1::from(frames.masses).into_pyarray(py))?;
     let offsets: Vec<i64> = frames.offsets.iter().map(|&o| o as i64).collect();
-    out.set_item("offsets", Array1::from(offsets).into_pyarray(py))?;
-    out.set_item("comments", PyList::new(py, &frames.comments)?)?;
-    out.set_item("info", PyList::new(py, &frames.info)?)?;
     let errors: Vec<Option<(&'static str, String)>> = frames
         .errors
         .iter()
         .map(|e| e.as_ref().map(error_pair))
         .collect();
-    out.set_item("errors", PyList::new(py, &errors)?)?;
-    Ok(out)
+    Ok(XyzFrames {
+        positions: pos.into_pyarray(py).unbind(),
+        numbers: Array1::from(frames.numbers).into_pyarray(py).unbind(),
+        masses: Array1::from(frames.masses).into_pyarray(py).unbind(),
+        offsets: Array1::from(offsets).into_pyarray(py).unbind(),
+        comments: PyList::new(py, &frames.comments)?.unbind(),
+        info: PyList::new(py, &frames.info)?.unbind(),
+        errors: PyList::new(py, &errors)?.unbind(),
+    })
 }
 
 pub(super) fn element_number(symbol: &str) -> Option<(i64, Option<f64>)> {
@@ -43,16 +53,12 @@ pub(super) fn element_number(symbol: &str) -> Option<(i64, Option<f64>)> {
 
 /// Read a (multi-frame, extended) XYZ file; bad frames carry an error, the rest are read.
 #[pyfunction]
-pub(super) fn read_xyz_path<'py>(
-    py: Python<'py>,
-    path: &str,
-    source: &str,
-) -> PyResult<Bound<'py, PyDict>> {
+pub(super) fn read_xyz_path<'py>(py: Python<'py>, path: &str, source: &str) -> PyResult<XyzFrames> {
     let p = std::path::PathBuf::from(path);
     let frames = py
         .detach(|| guarded(|| readers::read_xyz_path(&p, source, &element_number)))
         .map_err(CoreError)?;
-    frames_to_dict(py, frames)
+    frames_to_object(py, frames)
 }
 
 /// Read XYZ text held in memory (for standard input).
@@ -61,9 +67,9 @@ pub(super) fn read_xyz_bytes<'py>(
     py: Python<'py>,
     data: &[u8],
     source: &str,
-) -> PyResult<Bound<'py, PyDict>> {
+) -> PyResult<XyzFrames> {
     let frames = py.detach(|| readers::read_xyz_bytes(data, source, &element_number));
-    frames_to_dict(py, frames)
+    frames_to_object(py, frames)
 }
 
 /// Atomic numbers of element symbols (error names the position of a bad one).

@@ -116,6 +116,8 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(detect::identify_group, m)?)?;
     m.add_class::<detect::Detection>()?;
     m.add_class::<detect::GroupData>()?;
+    m.add_class::<io::XyzFrames>()?;
+    m.add_class::<batch::BatchResult>()?;
     m.add("DEFAULT_TOLERANCE", crate::detect::DEFAULT_TOLERANCE)?;
     m.add("LINEAR_SUBGROUP_N", crate::detect::LINEAR_SUBGROUP_N)?;
     m.add("VERIFY_ALL_LIMIT", crate::detect::DEFAULT_VERIFY_ALL_LIMIT)?;

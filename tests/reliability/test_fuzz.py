@@ -12,6 +12,7 @@ import glob
 import os
 import subprocess
 import sys
+from types import SimpleNamespace
 
 import pytest
 from hypothesis import HealthCheck, given, settings
@@ -134,8 +135,12 @@ def test_reader_check_rejects_a_bad_frame_that_kept_atoms(monkeypatch):
     import checks
 
     good = checks._core.read_xyz_bytes(b"1\nx\nH 0 0 0\n", "<fuzz>")
-    assert good["errors"] == [None]
-    broken = dict(good, errors=[("ReadError", "line 3 of <fuzz> (frame 0): made up")])
+    assert good.errors == [None]
+    fields = ("positions", "numbers", "masses", "offsets", "comments", "info")
+    broken = SimpleNamespace(
+        **{k: getattr(good, k) for k in fields},
+        errors=[("ReadError", "line 3 of <fuzz> (frame 0): made up")],
+    )
     monkeypatch.setattr(checks._core, "read_xyz_bytes", lambda data, source: broken)
     with pytest.raises(AssertionError, match="no atoms"):
         check_reader(b"1\nx\nH 0 0 0\n")

@@ -103,7 +103,7 @@ def test_reader_memory_grows_linearly_with_frames(tmp_path):
             f"""
             from gammatrace.io import read_xyz_raw
             raw = read_xyz_raw({str(path)!r})
-            OUT["n"] = len(raw["offsets"]) - 1
+            OUT["n"] = len(raw.offsets) - 1
             """
         )
         assert out["n"] == n
@@ -138,7 +138,7 @@ def test_an_absurd_atom_count_is_refused_without_allocating(claimed):
         f"""
         from gammatrace import _core
         raw = _core.read_xyz_bytes({data!r}, "claim.xyz")
-        OUT["errors"] = raw["errors"]
+        OUT["errors"] = raw.errors
         """
     )
     ((kind, message),) = out["errors"]
@@ -152,9 +152,9 @@ def test_one_frame_claiming_more_atoms_than_the_file_holds_keeps_the_next_ones()
 
     water = b"3\nwater\nO 0.0 0.0 0.1173\nH 0.0 0.7572 -0.4692\nH 0.0 -0.7572 -0.4692\n"
     raw = _core.read_xyz_bytes(b"1000000000\nclaim\nO 0 0 0\n" + water * 3, "claim.xyz")
-    assert raw["errors"][0][0] == "ReadError"
-    assert "next frame starts at line 4" in raw["errors"][0][1]
-    assert raw["errors"][1:] == [None, None, None]
+    assert raw.errors[0][0] == "ReadError"
+    assert "next frame starts at line 4" in raw.errors[0][1]
+    assert raw.errors[1:] == [None, None, None]
 
 
 @pytest.mark.slow

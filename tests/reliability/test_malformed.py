@@ -138,9 +138,9 @@ def test_reader_bytes_and_path_agree(name):
         data = fh.read()
     a = _core.read_xyz_bytes(data, name)
     b = _core.read_xyz_path(_path(name), name)
-    assert a["errors"] == b["errors"]
-    np.testing.assert_array_equal(a["offsets"], b["offsets"])
-    np.testing.assert_array_equal(a["positions"], b["positions"])
+    assert a.errors == b.errors
+    np.testing.assert_array_equal(a.offsets, b.offsets)
+    np.testing.assert_array_equal(a.positions, b.positions)
 
 
 @pytest.mark.parametrize("name", sorted(EXPECTED))

@@ -165,17 +165,17 @@ def ragged_from_file(path: str | os.PathLike, cell: str | None = None) -> Ragged
     choice = check_cell_choice(cell)
     source = os.fspath(path)
     raw = read_xyz_raw(path)
-    n = len(raw["offsets"]) - 1
-    offsets = np.asarray(raw["offsets"], dtype=np.int64)
-    positions, numbers = raw["positions"], raw["numbers"]
+    n = len(raw.offsets) - 1
+    offsets = np.asarray(raw.offsets, dtype=np.int64)
+    positions, numbers = raw.positions, raw.numbers
     masses = None
-    if len(raw["masses"]):
-        m = raw["masses"]
+    if len(raw.masses):
+        m = raw.masses
         masses = np.where(np.isnan(m), STANDARD_MASSES[numbers], m)
-    errors = list(raw["errors"])
+    errors = list(raw.errors)
     dropped = np.zeros(n, dtype=bool)
     copied = False
-    for k, info in enumerate(raw["info"]):
+    for k, info in enumerate(raw.info):
         # only frames with a cell key are looked at (plain XYZ frames have no info)
         if errors[k] is not None or not any(key.lower() in ("pbc", "lattice") for key, _ in info):
             continue
@@ -252,8 +252,8 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
     """Vectorised classes, Γ_3N, Γ_vib and activity for all rows of one point group."""
     table = get_table(group)
     h = len(table.operations)
-    start = raw["op_offsets"][rows]
-    if np.any(raw["op_offsets"][rows + 1] - start != h):
+    start = raw.op_offsets[rows]
+    if np.any(raw.op_offsets[rows + 1] - start != h):
         raise GammatraceError(f"{group}: operation count differs from the table's {h}")
     idx = start[:, None] + np.arange(h)[None, :]
     # detection lists each group's operations in canonical order (operation k is canonical
@@ -261,11 +261,11 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
     cls = np.broadcast_to(table.operation_class, idx.shape)
     # Γ_3N per operation: unshifted atoms × the core's per-atom contribution of x, y, z (l = 1)
     per_atom = _core.orbital_contributions(
-        np.ascontiguousarray(raw["proper"][idx].reshape(-1)),
-        np.ascontiguousarray(raw["angle"][idx].reshape(-1)),
+        np.ascontiguousarray(raw.proper[idx].reshape(-1)),
+        np.ascontiguousarray(raw.angle[idx].reshape(-1)),
         1,
     ).reshape(idx.shape)
-    chi_op = raw["unshifted"][idx].astype(np.float64) * per_atom
+    chi_op = raw.unshifted[idx].astype(np.float64) * per_atom
     k, nc = len(rows), len(table.classes)
     flat = (np.arange(k)[:, None] * nc + cls).reshape(-1)
     sums = np.bincount(flat, weights=chi_op.reshape(-1), minlength=k * nc).reshape(k, nc)
@@ -288,7 +288,7 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
     cols["n_raman"][r] = m[:, raman_mask].sum(axis=1)
     cols["gamma_vib"][r] = _format_rows(table, m)
     cols["symmetry_number"][r] = table.symmetry_number
-    cols["chiral"][r] = raw["n_proper"][r] == h
+    cols["chiral"][r] = raw.n_proper[r] == h
     for row in rows[bad]:
         cols["error_type"][row] = "ReductionError"
         cols["error"][row] = (
@@ -312,8 +312,8 @@ def _run_chunk(chunk: Ragged, tol: float, n_threads: int) -> dict:
         n_threads,
         None if chunk.masses is None else np.ascontiguousarray(chunk.masses),
     )
-    groups = np.asarray(raw["point_group"], dtype=object)
-    cols["max_deviation"] = np.asarray(raw["max_deviation"], dtype=np.float64)
+    groups = np.asarray(raw.point_group, dtype=object)
+    cols["max_deviation"] = np.asarray(raw.max_deviation, dtype=np.float64)
     for g in np.unique(groups[groups != ""]):
         rows = np.flatnonzero(groups == g)
         try:
@@ -321,7 +321,7 @@ def _run_chunk(chunk: Ragged, tol: float, n_threads: int) -> dict:
         except GammatraceError as exc:
             cols["error_type"][rows] = type(exc).__name__
             cols["error"][rows] = str(exc)
-    for k, err in enumerate(raw["errors"]):
+    for k, err in enumerate(raw.errors):
         if err is not None:
             cols["error_type"][k], cols["error"][k] = err
     for k, err in enumerate(chunk.errors):  # read errors win over "no atoms"

@@ -24,25 +24,25 @@ __all__ = ["frame_masses", "read_xyz", "read_xyz_raw", "write_xyz"]
 def frame_masses(raw: dict, a: int, b: int) -> np.ndarray | None:
     """Masses of atoms a..b of the reader's ragged arrays: None when the file gives none of
     them a mass of its own, else the given masses with standard weights filling the gaps."""
-    masses = raw["masses"]
+    masses = raw.masses
     if len(masses) == 0:
         return None
     m = masses[a:b]
     given = ~np.isnan(m)
     if not given.any():
         return None
-    return np.where(given, m, STANDARD_MASSES[raw["numbers"][a:b]])
+    return np.where(given, m, STANDARD_MASSES[raw.numbers[a:b]])
 
 
 def _frames_from_raw(raw: dict, source: str) -> list[Structure | FrameError]:
-    offsets = raw["offsets"]
+    offsets = raw.offsets
     out: list[Structure | FrameError] = []
-    for k, err in enumerate(raw["errors"]):
+    for k, err in enumerate(raw.errors):
         if err is not None:
             out.append(FrameError(source, k, err[0], err[1]))
             continue
         a, b = int(offsets[k]), int(offsets[k + 1])
-        info = dict(raw["info"][k])
+        info = dict(raw.info[k])
         try:
             cell, pbc = periodic_info(info, f"{source} [frame {k}]")
         except ReadError as exc:
@@ -50,11 +50,11 @@ def _frames_from_raw(raw: dict, source: str) -> list[Structure | FrameError]:
             continue
         out.append(
             Structure(
-                raw["numbers"][a:b],
-                raw["positions"][a:b],
+                raw.numbers[a:b],
+                raw.positions[a:b],
                 source=source,
                 index=k,
-                comment=raw["comments"][k],
+                comment=raw.comments[k],
                 info=info,
                 masses=frame_masses(raw, a, b),
                 cell=cell,
@@ -86,7 +86,7 @@ def read_xyz(path: str | os.PathLike) -> list[Structure | FrameError]:
     return _frames_from_raw(raw, source)
 
 
-def read_xyz_raw(path: str | os.PathLike) -> dict:
+def read_xyz_raw(path: str | os.PathLike) -> _core.XyzFrames:
     """The reader's ragged arrays (positions, numbers, masses, offsets, comments, info, errors).
 
     ``masses`` is empty when no atom of the file has a mass of its own, else parallel to
