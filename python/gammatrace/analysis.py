@@ -335,7 +335,7 @@ class Analysis:
         naphthalene's ``{"C": [[0, 3, 4, 7], [1, 2, 5, 6], [8, 9]], "H": [...]}``. Counts
         symmetry-equivalent atoms of this static structure; conformational averaging in
         solution can merge more (a methyl group's three H, the two H of a flipping CH2)."""
-        return environments(self.symmetry, self.orbits)
+        return environments(self.symmetry)
 
     @property
     def environments(self) -> dict[str, int]:

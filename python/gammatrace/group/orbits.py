@@ -11,7 +11,7 @@ from ..tables.subgroups import identify_group
 from .stabilisers import atom_images
 from .symmetry import SymmetryData
 
-__all__ = ["Orbit", "environments", "orbits", "site_group_names"]
+__all__ = ["Orbit", "environments", "orbit_sets", "orbits", "site_group_names"]
 
 
 @dataclass(frozen=True)
@@ -48,17 +48,23 @@ def orbits(sym: SymmetryData) -> list[Orbit]:
     the site group of each orbit comes from where the group's operations send one of its
     atoms, composed through the multiplication table (no further pass over the atoms).
     """
-    perms = np.ascontiguousarray(sym.generator_permutations)
-    ids = np.asarray(_core.orbits(sym.n_atoms, perms), dtype=np.int64)
-    order = np.argsort(ids, kind="stable")
-    counts = np.bincount(ids)
-    splits = np.split(order, np.cumsum(counts)[:-1])
+    splits = orbit_sets(sym)
     h = sym.group_order
     names = site_group_names(sym, np.array([a[0] for a in splits], dtype=np.int64))
     return [
         Orbit(atoms.tolist(), len(atoms), h // len(atoms) if h else None, name)
         for atoms, name in zip(splits, names)
     ]
+
+
+def orbit_sets(sym: SymmetryData) -> list[np.ndarray]:
+    """The sets of symmetry-equivalent atoms (ascending indices), in order of their first
+    atom: one union-find pass over the verified permutations in the core, no site groups."""
+    perms = np.ascontiguousarray(sym.generator_permutations)
+    ids = np.asarray(_core.orbits(sym.n_atoms, perms), dtype=np.int64)
+    order = np.argsort(ids, kind="stable")
+    counts = np.bincount(ids)
+    return np.split(order, np.cumsum(counts)[:-1])
 
 
 def site_group_names(sym: SymmetryData, representatives: np.ndarray) -> list:
@@ -86,7 +92,7 @@ def site_group_names(sym: SymmetryData, representatives: np.ndarray) -> list:
     return out
 
 
-def environments(sym: SymmetryData, orbit_list: list[Orbit] | None = None) -> dict[str, list]:
+def environments(sym: SymmetryData) -> dict[str, list]:
     """Symmetry-distinct environments per species: symbol -> the sets of equivalent atoms.
 
     The symbol tells isotopes apart (``D`` next to ``H``; :attr:`Structure.species_symbols`).
@@ -96,6 +102,6 @@ def environments(sym: SymmetryData, orbit_list: list[Orbit] | None = None) -> di
     """
     symbols = sym.structure.species_symbols
     out: dict[str, list] = {}
-    for orbit in orbits(sym) if orbit_list is None else orbit_list:
-        out.setdefault(symbols[orbit.atoms[0]], []).append(list(orbit.atoms))
+    for atoms in orbit_sets(sym):
+        out.setdefault(symbols[int(atoms[0])], []).append(atoms.tolist())
     return out
