@@ -5,8 +5,8 @@
 - :class:`ResolvedBasis` (:mod:`.resolve`): a basis on one structure (shells per atom, bonds,
   π centres and normals, vectors), read by the counting code and the matrix code alike.
 - :mod:`.components`: a resolved basis as site components for the matrix code;
-  :mod:`.salc` their orbit-type reduction; :mod:`.harmonics` real spherical harmonics;
-  :mod:`.elements` element symbols.
+  :mod:`.salc` their orbit-type reduction; :mod:`.naming` names of the basis functions and
+  symmetry-adapted functions written out over them.
 
 This package sits below the analysis, representations, sites and CLI layers and imports none
 of them.

@@ -20,7 +20,10 @@ Conventions
   ``X @ Γ(R) @ X.T`` is block diagonal, with one d x d block per (irrep, copy) equal to the
   irrep's reference matrix D(R) (the same for every copy). Rows are ordered by irrep (table
   order), then copy, then partner. The reference matrices are described in
-  :mod:`gammatrace.group.irreps`; they are returned as ``irreducible_matrices``.
+  :mod:`gammatrace.group.irreps`; they are returned as ``irreducible_matrices``. Each copy's
+  first partner starts with a positive coefficient (:mod:`gammatrace.bases.salc`).
+* :meth:`SymmetryAdaptedBasis.combinations` writes the rows out over named basis functions
+  (:mod:`gammatrace.bases.naming`).
 * Operations are made exact first (the canonical operation detection says each one is, or
   group averaging with products read off the atom permutations), so
   the results are exact for the ideal group near the detected one.
@@ -28,17 +31,20 @@ Conventions
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from functools import cached_property
 from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
 
+from .._progress import progress as _progress
 from ..errors import BasisError, InputError
 from ..group.irreps import GroupData, group_data
 from ..group.symmetry import SymmetryData
 from ..text import plural
 from .components import check_matrix_kind, component_matrix, site_components
+from .naming import COEFFICIENT_CUTOFF, Combination, exact_form, function_names
 from .resolve import ResolvedBasis
 from .salc import reduce_components
 from .spec import Basis, parse_basis
@@ -266,6 +272,10 @@ class SymmetryAdaptedBasis:
         Irrep label -> number of copies (irreps that do not occur are left out).
     irreducible_matrices : dict
         Irrep label -> (h, d, d) block that every copy of the irrep shows.
+    basis : ResolvedBasis or None
+        The basis the columns refer to (names its functions; None for a hand-made one).
+    symbols : tuple of str or None
+        Species symbols of the structure's atoms (isotopes apart), for the names.
     """
 
     matrix: sp.csr_matrix
@@ -276,6 +286,8 @@ class SymmetryAdaptedBasis:
     row_partner: np.ndarray
     multiplicities: dict
     irreducible_matrices: dict
+    basis: ResolvedBasis | None = field(default=None, compare=False, repr=False)
+    symbols: tuple | None = field(default=None, compare=False, repr=False)
 
     @property
     def labels(self) -> list:
@@ -294,8 +306,81 @@ class SymmetryAdaptedBasis:
         x = self.matrix
         return (x @ sp.csr_matrix(matrix) @ x.T).tocsr()
 
+    @cached_property
+    def function_names(self) -> tuple:
+        """One name per column (basis function): ``σ(O1–H2)``, ``p_z(C3)``, ``x(H4)`` …
+        (:func:`gammatrace.bases.naming.function_names`); ``f1``, ``f2`` … without a basis."""
+        if self.basis is None:
+            return tuple(f"f{j + 1}" for j in range(self.matrix.shape[1]))
+        return tuple(function_names(self.basis, self.symbols))
 
-def symmetry_adapted_basis(sym: SymmetryData, basis="cartesian") -> SymmetryAdaptedBasis:
+    def combinations(self, rows: Any = None, cutoff: float = COEFFICIENT_CUTOFF) -> list:
+        """The symmetry-adapted functions written out over the named basis functions.
+
+        Parameters
+        ----------
+        rows : slice, sequence of int or None
+            Rows of X to write out (default all, in X's order: irrep, copy, partner).
+        cutoff : float
+            Coefficients of smaller magnitude are left out (default
+            :data:`~gammatrace.bases.naming.COEFFICIENT_CUTOFF`, 1e-6).
+
+        Returns
+        -------
+        list of Combination
+            One per row, with the listed indices, coefficients, names and exact form
+            (:mod:`gammatrace.bases.naming`); ``c.expression()`` is the text.
+
+        Examples
+        --------
+        >>> import gammatrace as gt
+        >>> water = gt.analyze(["O", "H", "H"],
+        ...                    [[0, 0, 0.1173], [0, 0.7572, -0.4692], [0, -0.7572, -0.4692]])
+        >>> for c in water.symmetry_adapted_basis("bonds").combinations():
+        ...     print(c.label, c.expression())
+        A1 (1/√2)(σ(O1–H2) + σ(O1–H3))
+        B2 (1/√2)(σ(O1–H2) − σ(O1–H3))
+        """
+        every = range(self.matrix.shape[0])
+        if rows is None:
+            picked = every
+        elif isinstance(rows, slice):
+            picked = every[rows]
+        else:
+            picked = rows
+        x = self.matrix.tocsr()
+        if not x.has_sorted_indices:
+            x = x.sorted_indices()  # a copy: the caller's matrix stays as it is
+        names = self.function_names
+        mults = self.multiplicities
+        out = []
+        for r in picked:
+            r = int(r)
+            lo, hi = x.indptr[r], x.indptr[r + 1]
+            idx, val = x.indices[lo:hi], x.data[lo:hi]
+            keep = np.abs(val) >= cutoff
+            idx, val = idx[keep].astype(np.int64), val[keep].astype(np.float64)
+            irrep = self.irreps[int(self.row_irrep[r])]
+            out.append(
+                Combination(
+                    row=r,
+                    irrep=irrep,
+                    copy=int(self.row_copy[r]),
+                    partner=int(self.row_partner[r]),
+                    dimension=int(self.dims[int(self.row_irrep[r])]),
+                    multiplicity=int(mults.get(irrep, 0)),
+                    indices=idx,
+                    coefficients=val,
+                    functions=tuple(names[j] for j in idx),
+                    exact=exact_form(val),
+                )
+            )
+        return out
+
+
+def symmetry_adapted_basis(
+    sym: SymmetryData, basis="cartesian", progress: bool | None = False
+) -> SymmetryAdaptedBasis:
     """Full reduction of a basis: the orthogonal sparse change of basis and its labels.
 
     Built per orbit type and assembled sparsely (DESIGN.md §4); see :mod:`gammatrace.bases.salc`.
@@ -304,6 +389,9 @@ def symmetry_adapted_basis(sym: SymmetryData, basis="cartesian") -> SymmetryAdap
     ----------
     sym : SymmetryData
     basis : Basis, str or ResolvedBasis, default "cartesian"
+    progress : bool or None, default False
+        A bar over the functions reduced, orbit type by orbit type (:mod:`gammatrace._progress`):
+        True shows it, None only when standard error is a terminal, False never.
 
     Returns
     -------
@@ -317,11 +405,21 @@ def symmetry_adapted_basis(sym: SymmetryData, basis="cartesian") -> SymmetryAdap
     resolved = resolve_on(sym, basis)
     g = group_data(sym)
     comps = _components(sym, resolved, g)
-    x, irrep, copy, partner = reduce_components(comps, g)
+    with _progress(resolved.dimension, unit="function", desc="SALCs", enabled=progress) as bar:
+        x, irrep, copy, partner = reduce_components(comps, g, progress=bar)
     counts = np.bincount(irrep, minlength=len(g.labels)) // g.dims
     mults = {g.labels[i]: int(c) for i, c in enumerate(counts) if c}
     return SymmetryAdaptedBasis(
-        x, g.labels, g.dims.copy(), irrep, copy, partner, mults, dict(zip(g.labels, g.matrices))
+        x,
+        g.labels,
+        g.dims.copy(),
+        irrep,
+        copy,
+        partner,
+        mults,
+        dict(zip(g.labels, g.matrices)),
+        basis=resolved,
+        symbols=tuple(sym.structure.species_symbols),
     )
 
 

@@ -19,6 +19,11 @@ Local reduction of an orbit, for irrep i with reference matrices D (orthogonal, 
   each 2-plane of the real Schur form of J, and partner 2 is J times partner 1.
 
 Rows of the local matrix are ordered by irrep (table order), copy, partner.
+
+Sign: a copy may be multiplied by −1 as a whole (all its partners together) without changing
+its matrices D(R). :func:`reduce_components` fixes that choice so that every copy's first
+partner has a positive first coefficient (the one of lowest basis index among those of
+magnitude at least ``naming.COEFFICIENT_CUTOFF``), which is also the first term written out.
 """
 
 from __future__ import annotations
@@ -28,6 +33,7 @@ import scipy.linalg
 import scipy.sparse as sp
 
 from ..errors import ReductionError
+from .naming import COEFFICIENT_CUTOFF
 
 __all__ = ["reduce_components"]
 
@@ -134,18 +140,39 @@ def _stabiliser_keys(pi, sign):
     return rank.ravel(), packed
 
 
-def reduce_components(components, g):
+def _orient_copies(x, partner):
+    """Multiply each copy (rows from one partner-0 row to the next) by the sign of the first
+    coefficient of its first partner of magnitude ≥ the cutoff; ``x`` is changed in place."""
+    n = x.shape[0]
+    if n == 0:
+        return
+    x.sort_indices()
+    lengths = np.diff(x.indptr)
+    row_of = np.repeat(np.arange(n), lengths)
+    big = np.flatnonzero(np.abs(x.data) >= COEFFICIENT_CUTOFF)
+    rows, first = np.unique(row_of[big], return_index=True)
+    row_sign = np.ones(n)
+    row_sign[rows] = np.sign(x.data[big[first]])
+    copy_id = np.cumsum(partner == 0) - 1
+    copy_sign = row_sign[partner == 0]
+    x.data *= np.repeat(copy_sign[copy_id], lengths)
+
+
+def reduce_components(components, g, progress=None):
     """Symmetry-adapted basis of a whole basis made of components, as sparse rows.
 
     Parameters
     ----------
     components : list of gammatrace.bases.components.Component
     g : GroupData
+    progress : gammatrace._progress.Progress, optional
+        Told the number of functions reduced after each orbit type of each component.
 
     Returns
     -------
     x : scipy.sparse.csr_matrix, shape (n, n)
-        Rows = symmetry-adapted functions ordered by irrep, then copy, then partner.
+        Rows = symmetry-adapted functions ordered by irrep, then copy, then partner; each
+        copy's first partner starts with a positive coefficient (module notes).
     irrep, copy, partner : ndarray, shape (n,)
         Labels of each row (copy counted from 0 within each irrep).
     """
@@ -211,6 +238,8 @@ def reduce_components(components, g):
             key_parts.append((base + first_loc[None, :]).ravel())
             part_parts.append(np.tile(part_loc, n_o))
             n_rows += n_o * n_loc
+            if progress is not None:
+                progress.update(n_o * n_loc)
     if n_rows != n_total:
         raise ReductionError(f"the reduction produced {n_rows} functions for {n_total}")
     counts = np.concatenate(indptr_parts) if indptr_parts else np.zeros(0, dtype=np.int64)
@@ -229,6 +258,7 @@ def reduce_components(components, g):
     order = np.lexsort((partner, ckey, irrep))
     x = x_orb[order]
     irrep, partner = irrep[order], partner[order]
+    _orient_copies(x, partner)
     starts = np.searchsorted(irrep, irrep, side="left")
     copy = (np.arange(n_rows) - starts) // g.dims[irrep]
     return x, irrep, copy, partner
