@@ -162,6 +162,7 @@ LAYERS = {
     "_progress": 0,
     "text": 0,
     "errors": 0,
+    "render": 0,
     "io": 1,
     "tables": 2,
     "group": 3,

@@ -41,6 +41,8 @@ from .io import (
     check_cell_choice,
     read_structures,
 )
+from .render import write_html, write_latex, write_markdown
+from .render.results import analysis_blocks
 from .spectroscopy import Vibrations, binary_bands, fermi_resonances, format_irreps, vibrations
 from .tables import LINEAR_SUBGROUP_N
 from .text import format_length, plural
@@ -426,6 +428,32 @@ class Analysis:
         )
         lines.append("  " + self._environments_text())
         return "\n".join(lines)
+
+    def to_markdown(
+        self, bases: Sequence[Any] = DEFAULT_BASES, worked: bool = True, extra: Sequence[str] = ()
+    ) -> str:
+        """The report as Markdown: the group and its facts, the Γ summary (characters per
+        class and reduction of each basis and of Γ_vib), the activity of the fundamentals,
+        the worked table of each basis (``worked``: unshifted atoms, contribution of each,
+        character, per class), the symmetry-distinct atoms, then the ``extra`` lines."""
+        return write_markdown(analysis_blocks(self, bases, worked, extra))
+
+    def to_latex(
+        self,
+        bases: Sequence[Any] = DEFAULT_BASES,
+        worked: bool = True,
+        extra: Sequence[str] = (),
+        document: bool = False,
+    ) -> str:
+        """The report of :meth:`to_markdown` as LaTeX: a fragment needing no package, or
+        with ``document=True`` a whole ``article``."""
+        return write_latex(analysis_blocks(self, bases, worked, extra), document=document)
+
+    def _repr_html_(self) -> str:
+        return write_html(analysis_blocks(self, DEFAULT_BASES, worked=False))
+
+    def _repr_markdown_(self) -> str:
+        return self.to_markdown(worked=False)
 
     def _environments_text(self, max_listed: int = 60) -> str:
         """``environments: C 3 (1,4,5,8 | 2,3,6,7 | 9,10), H 2 (…)`` (atoms numbered from 1;

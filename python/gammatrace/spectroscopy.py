@@ -24,6 +24,8 @@ import numpy as np
 from .bases import parse_basis
 from .bases.counting import build_representation
 from .errors import InputError, ReductionError
+from .render import write_html, write_markdown
+from .render.results import vibrations_grid
 from .tables.products import band, totally_symmetric
 from .text import plural
 
@@ -97,6 +99,12 @@ class Vibrations:
             "mutual_exclusion": self.mutual_exclusion,
             "polarised": self.polarised,
         }
+
+    def _repr_html_(self) -> str:
+        return write_html([vibrations_grid(self)])
+
+    def _repr_markdown_(self) -> str:
+        return write_markdown([vibrations_grid(self)])
 
 
 def format_irreps(irreps: dict) -> str:

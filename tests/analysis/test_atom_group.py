@@ -305,11 +305,11 @@ def test_cli_table_k_h_text_and_json(capsys):
     status, out, err = _run(capsys, ["table", "K_h"])
     assert status == 0, err
     head = out.splitlines()[0].split()
-    assert head[:2] == ["K_h", "E"] and head[-1] == "functions"
+    assert head[:2] == ["K_h", "E"] and head[-2:] == ["rotations", "quadratic"]
     assert "i" in head and any(c.startswith("∞C(") for c in head)
     rows = {line.split()[0]: line for line in out.splitlines()[2:] if line[:1].isalpha()}
     assert set(LABELS) <= set(rows)
-    assert "(x,y,z)" in rows["Pu"] and "x2+y2+z2" in rows["Sg"]
+    assert "(x,y,z)" in rows["Pu"] and "x²+y²+z²" in rows["Sg"]
     assert "360°/13" in out and "l ≤ 5" in out
     status, out, err = _run(capsys, ["table", "Kh", "--format", "json"])
     assert status == 0, err

@@ -490,15 +490,23 @@ def test_to_dict_matches_interface_example():
 def test_to_text_is_aligned_and_readable():
     text = get_table("D5h").to_text()
     lines = text.splitlines()
-    assert lines[0].split()[:3] == ["D5h", "E", "2C5"]
-    assert "0.618" in text and "(x2-y2,xy)" in text
+    assert lines[0].split()[:4] == ["D5h", "E", "2C5", "2C5²"]
+    # printed forms: 2cos72° with its decimal under the table, x² for x2, primes ′ ″
+    assert "2cos72°" in text and "(2cos72° = 0.618" in text and "(x²-y²,xy)" in text
     t = get_table("D5h")
-    for line, ir in zip(lines[2:], t.irreps):
+    rows = lines[2 : 2 + len(t.irreps)]
+    for line, ir in zip(rows, t.irreps):
         cells = line.split()
-        assert cells[0] == ir.label and len(cells) >= len(t.classes) + 1
-    # Columns are right-aligned under their heads.
+        printed = ir.label.replace("''", "″").replace("'", "′")
+        assert cells[0] == printed and len(cells) >= len(t.classes) + 1
+    # Character columns are right-aligned under their heads.
     head_end = lines[0].index("2C5") + len("2C5")
-    assert all(line[head_end - 1] != " " for line in lines[2:])
+    assert all(line[head_end - 1] != " " for line in rows)
+    # The two function columns start under their heads: z (linear) and x²+y² (quadratic).
+    linear, quadratic = lines[0].index("linear, rotations"), lines[0].index("quadratic")
+    a2pp = next(line for line in rows if line.startswith("A2″"))
+    a1p = next(line for line in rows if line.startswith("A1′"))
+    assert a2pp[linear:].strip() == "z" and a1p[quadratic:] == "x²+y²; z²"
 
 
 def test_class_info_and_irrep_are_records():

@@ -19,6 +19,8 @@ import numpy as np
 from .. import _core
 from ..errors import BasisError, SymmetryError
 from ..group.symmetry import class_representatives
+from ..render import write_html, write_markdown
+from ..render.results import representation_grid
 from .resolve import ResolvedBasis
 from .spec import Basis
 
@@ -64,6 +66,11 @@ class Representation:
     class_labels: tuple
 
     @property
+    def item_name(self) -> str:
+        """What the unshifted count counts: ``atoms``, ``bonds`` or ``π centres``."""
+        return _ITEMS.get(self.basis.kind, "atoms")
+
+    @property
     def dimension(self) -> int:
         """The dimension (character of E)."""
         return round(float(self.characters[0])) if len(self.characters) else 0
@@ -78,9 +85,7 @@ class Representation:
         Columns: class, unshifted atoms carrying the basis (or bonds), contribution per
         unshifted item, character.
         """
-        kind = self.basis.kind
-        item = {"bonds": "bonds", "bond_vectors": "bonds", "pi": "π centres"}.get(kind, "atoms")
-        rows = [("class", f"unshifted {item}", "per item", "character")]
+        rows = [("class", f"unshifted {self.item_name}", "per item", "character")]
         for label, n, contrib, chi in zip(
             self.class_labels, self.unshifted, self.contributions, self.characters
         ):
@@ -99,6 +104,15 @@ class Representation:
         ]
         lines.insert(1, "  ".join("-" * w for w in widths))
         return "\n".join(lines)
+
+    def _repr_html_(self) -> str:
+        return write_html([representation_grid(self)])
+
+    def _repr_markdown_(self) -> str:
+        return write_markdown([representation_grid(self)])
+
+
+_ITEMS = {"bonds": "bonds", "bond_vectors": "bonds", "pi": "π centres"}
 
 
 def json_number(x: float) -> int | float:

@@ -21,6 +21,7 @@ from ..group import DEFAULT_TOL
 from ..io import CELL_CHOICES, FrameError, apply_cell, read_structures
 
 __all__ = [
+    "EXPORT_FORMATS",
     "add_cell",
     "add_format",
     "add_tolerance",
@@ -59,9 +60,29 @@ def add_cell(parser: argparse.ArgumentParser) -> None:
     )
 
 
-def add_format(parser: argparse.ArgumentParser) -> None:
-    """``--format text|json``."""
-    parser.add_argument("--format", choices=("text", "json"), default="text")
+def add_format(parser: argparse.ArgumentParser, exports: bool = False) -> None:
+    """``--format text|json``; with ``exports`` also ``markdown`` and ``latex``, and
+    ``--latex-document`` (a whole LaTeX document instead of a fragment)."""
+    if not exports:
+        parser.add_argument("--format", choices=("text", "json"), default="text")
+        return
+    parser.add_argument(
+        "--format",
+        choices=EXPORT_FORMATS,
+        default="text",
+        help="text (default), json, markdown (pipe tables) or latex (a fragment of tabular "
+        "environments needing no package; see --latex-document)",
+    )
+    parser.add_argument(
+        "--latex-document",
+        action="store_true",
+        help="with --format latex: write a whole document (article class, amsmath) that "
+        "pdflatex compiles as it is, instead of a fragment to paste",
+    )
+
+
+#: The choices of ``--format`` for the commands with exports (table, correlate, analyze).
+EXPORT_FORMATS = ("text", "json", "markdown", "latex")
 
 
 def write(text: str) -> None:

@@ -13,6 +13,7 @@ from ..group.chirality import SEARCH_FACTOR
 from ..group.measure import EXTENDED_BOUND
 from ..io import FrameError
 from ..pictures import draw_stereogram, draw_symmetry
+from ..render.grid import LATEX_END, LATEX_PREAMBLE
 from ..tables import get_table
 from ._shared import add_cell, add_format, add_tolerance, dump, fail, watched, write
 
@@ -32,6 +33,9 @@ def run(args: argparse.Namespace) -> int:
         fail(exc, args.traceback)
         return 2
     status = 0
+    document = args.format == "latex" and args.latex_document
+    if document:
+        write(LATEX_PREAMBLE)
     for result in watched(analyze_many(args.paths, tol=args.tol, cell=args.cell)):
         if isinstance(result, FrameError):
             status = 1
@@ -54,11 +58,18 @@ def run(args: argparse.Namespace) -> int:
             if args.format == "json":
                 row = result.to_dict(bases, orbits=args.orbits, near=args.near, measure=named)
                 write(dump(row) + "\n")
+            elif args.format in ("markdown", "latex"):
+                extra = _orbit_lines(result) if args.orbits else []
+                extra += _near_texts(result, args.near, named)
+                worked = not args.brief
+                if args.format == "markdown":
+                    write(result.to_markdown(bases, worked=worked, extra=extra) + "\n\n")
+                else:
+                    write(result.to_latex(bases, worked=worked, extra=extra) + "\\bigskip\n\n")
             else:
                 write(result.report(bases, worked=not args.brief) + "\n")
                 if args.orbits:
-                    for o in result.orbits:
-                        write(f"    orbit of {o.size} ({o.site_group}): atoms {o.atoms}\n")
+                    write("".join(f"    {line}\n" for line in _orbit_lines(result)))
                 write(_near_lines(result, args.near, named))
                 write("\n")
         except GammatraceError as exc:
@@ -70,11 +81,23 @@ def run(args: argparse.Namespace) -> int:
                 write(dump(err.to_dict()) + "\n")
             fail(exc, args.traceback)
         sys.stdout.flush()
+    if document:
+        write(LATEX_END)
     return status
+
+
+def _orbit_lines(result) -> list:
+    """The lines of ``--orbits``: one per set of symmetry-equivalent atoms."""
+    return [f"orbit of {o.size} ({o.site_group}): atoms {o.atoms}" for o in result.orbits]
 
 
 def _near_lines(result, near: bool, named: list) -> str:
     """The text lines of ``--near`` and ``--measure``."""
+    return "".join(f"  {line}\n" for line in _near_texts(result, near, named))
+
+
+def _near_texts(result, near: bool, named: list) -> list:
+    """The lines of ``--near`` and ``--measure``, unindented."""
     lines = []
     if near:
         found = result.near_symmetry()
@@ -89,7 +112,7 @@ def _near_lines(result, near: bool, named: list) -> str:
             f"{result.near.extended_bound:.2g} Å"
         )
     lines += [result.symmetry_measure(name).describe("named") for name in named]
-    return "".join(f"  {line}\n" for line in lines)
+    return lines
 
 
 def register(sub) -> None:
@@ -97,7 +120,7 @@ def register(sub) -> None:
     a = sub.add_parser("analyze", help="point group, representations and vibrations")
     a.add_argument("paths", nargs="+", metavar="PATH", help="XYZ file(s), '-' for stdin")
     add_tolerance(a)
-    add_format(a)
+    add_format(a, exports=True)
     add_cell(a)
     a.add_argument(
         "--basis",
@@ -108,7 +131,9 @@ def register(sub) -> None:
         "(repeatable; atoms and cartesian are always included)",
     )
     a.add_argument("--orbits", action="store_true", help="list symmetry-distinct atoms")
-    a.add_argument("--brief", action="store_true", help="text: omit the per-class tables")
+    a.add_argument(
+        "--brief", action="store_true", help="text, markdown, latex: omit the per-class tables"
+    )
     a.add_argument(
         "--near",
         action="store_true",

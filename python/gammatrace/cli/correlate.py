@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 
 from ..errors import GammatraceError
+from ..render import correlation_latex, correlation_markdown
 from ..tables import correlate
 from ._shared import add_format, dump, fail, write
 
@@ -19,6 +20,10 @@ def run(args: argparse.Namespace) -> int:
         return 1
     if args.format == "json":
         write(dump(result) + "\n")
+    elif args.format == "markdown":
+        write(correlation_markdown(result) + "\n")
+    elif args.format == "latex":
+        write(correlation_latex(result, document=args.latex_document))
     else:
         write(f"{result['group']} -> {result['subgroup']}\n")
         for emb in result["embeddings"]:
@@ -36,5 +41,5 @@ def register(sub) -> None:
     c = sub.add_parser("correlate", help="how irreps split in a subgroup")
     c.add_argument("group", metavar="GROUP")
     c.add_argument("subgroup", metavar="SUBGROUP")
-    add_format(c)
+    add_format(c, exports=True)
     c.set_defaults(func=run)

@@ -1,4 +1,5 @@
-"""``gammatrace table GROUP [--complex]``: the character table of any point group."""
+"""``gammatrace table GROUP [--complex]``: the character table of any point group, as printed
+(text), as JSON, or for papers and notes (Markdown, LaTeX)."""
 
 from __future__ import annotations
 
@@ -20,6 +21,10 @@ def run(args: argparse.Namespace) -> int:
     shown = table.complex_form() if args.complex else table
     if args.format == "json":
         write(dump(shown.to_dict()) + "\n")
+    elif args.format == "markdown":
+        write(shown.to_markdown() + "\n")
+    elif args.format == "latex":
+        write(shown.to_latex(document=args.latex_document))
     else:
         write(shown.to_text() + "\n")
     return 0
@@ -35,5 +40,5 @@ def register(sub) -> None:
         help="write complex-conjugate pairs apart: one column per class (g and g⁻¹ apart), "
         "one-dimensional irreps with complex characters (JSON: [re, im] pairs)",
     )
-    add_format(t)
+    add_format(t, exports=True)
     t.set_defaults(func=run)

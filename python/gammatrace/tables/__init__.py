@@ -19,7 +19,7 @@ from .complex import ComplexClass, ComplexForm
 from .linear import LINEAR_SUBGROUP_N
 from .names import MAX_N, GroupName, parse_group_name
 from .registry import get_table
-from .subgroups import SubgroupEmbedding, correlate, embedding_namings, subgroups
+from .subgroups import Correlation, SubgroupEmbedding, correlate, embedding_namings, subgroups
 from .table import CharacterTable
 
 __all__ = [
@@ -29,6 +29,7 @@ __all__ = [
     "ClassInfo",
     "ComplexClass",
     "ComplexForm",
+    "Correlation",
     "GroupName",
     "Irrep",
     "SubgroupEmbedding",

@@ -29,13 +29,17 @@ as ±1, ±i or ±ε^k, ±ε^k* with the smallest k (C6: ε, −ε*, −1, −ε,
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import NamedTuple
+from typing import Any, NamedTuple
 
 import numpy as np
 
+from ..render import Paragraph, write_html, write_latex, write_markdown
+from ..render.grid import cell
+from ..render.tables import complex_grid
 from ._ops import INVERSION, SIGMA_H, canonical_group, contains_all, describe, locate, rotation
 from ._types import ClassInfo
 
@@ -108,6 +112,9 @@ class ComplexForm:
         Class weights of the reduction formula where they are not size / h (K_h).
     plain_text : str
         The real table's text, written by :meth:`to_text` when there are no pairs.
+    real_table : CharacterTable or None
+        The real table, written by the other outputs (Markdown, LaTeX, HTML) when there are
+        no pairs.
     """
 
     name: str
@@ -122,6 +129,7 @@ class ComplexForm:
     operation_class: np.ndarray
     weights: np.ndarray | None = None
     plain_text: str = ""
+    real_table: Any = None
 
     @property
     def pairs(self) -> list[str]:
@@ -210,9 +218,14 @@ class ComplexForm:
             cells = [r[0].ljust(widths[0])] + [r[j].rjust(widths[j]) for j in range(1, len(widths))]
             lines.append("  ".join([*cells, r[-1]]).rstrip())
         lines.insert(1, "-" * len(lines[0]))
+        lines.extend(self.notes)
+        return "\n".join(lines)
+
+    @property
+    def notes(self) -> list[str]:
+        """The notes under the complex table: ε, the pairs' members, the split classes."""
         if not self.has_pairs:
-            lines.append(self._no_pairs_note())
-            return "\n".join(lines)
+            return [self._no_pairs_note()]
         notes = []
         if self.epsilon is not None and self.epsilon not in (1, 2, 4):
             notes.append(f"ε = exp(2πi/{self.epsilon}), ε* its complex conjugate")
@@ -232,8 +245,34 @@ class ComplexForm:
             + ", ".join(f"{a} and {b}" for a, b in split)
             + " hold inverse operations (one class each in the real table)"
         )
-        lines.extend(f"({n})" for n in notes)
-        return "\n".join(lines)
+        return [f"({n})" for n in notes]
+
+    def _blocks(self) -> list:
+        if not self.has_pairs and self.real_table is not None:
+            return [*self.real_table._blocks(), Paragraph([cell(self._no_pairs_note())])]
+        write = functools.partial(_cached_root, epsilon=self.epsilon, cache={})
+        return [complex_grid(self, write, self.notes)]
+
+    def to_markdown(self) -> str:
+        """The complex table as Markdown (characters in ε as in :meth:`to_text`)."""
+        return write_markdown(self._blocks())
+
+    def to_latex(self, document: bool = False) -> str:
+        """The complex table as LaTeX: a fragment, or a whole ``article`` (``document``)."""
+        return write_latex(self._blocks(), document=document)
+
+    def _repr_html_(self) -> str:
+        return write_html(self._blocks())
+
+    def _repr_markdown_(self) -> str:
+        return self.to_markdown()
+
+
+def _cached_root(z: complex, epsilon: int | None, cache: dict) -> str:
+    key = (round(z.real, 9), round(z.imag, 9))
+    if key not in cache:
+        cache[key] = format_root(z, epsilon)
+    return cache[key]
 
 
 # --- writing roots of unity with ε --------------------------------------------------------
@@ -411,6 +450,7 @@ def build_complex_form(
     functions: list[tuple[str, ...]],
     weights: np.ndarray | None = None,
     plain_text: str = "",
+    real_table: Any = None,
 ) -> ComplexForm:
     """The complex form of a finite group's real table (see the module docstring).
 
@@ -438,6 +478,7 @@ def build_complex_form(
             operation_class=np.asarray(op_real_class).copy(),
             weights=weights,
             plain_text=plain_text,
+            real_table=real_table,
         )
     group = canonical_group(name)
     ops = np.asarray(group.operations)

@@ -43,6 +43,8 @@ import numpy as np
 
 from .. import _core
 from ..errors import ReductionError, TableError
+from ..render import write_html, write_latex, write_markdown
+from ..render.tables import correlation_grid
 from ._ops import canonical_group, contains_all, describe, fraction_of_turn, multiplication_table
 from .linear import linear_class_label
 from .names import parse_group_name
@@ -51,6 +53,7 @@ from .spherical import L_LETTERS, spherical_characters
 
 __all__ = [
     "MAX_ORDER",
+    "Correlation",
     "SubgroupEmbedding",
     "correlate",
     "embedding_namings",
@@ -60,6 +63,33 @@ __all__ = [
 
 #: Largest group order whose subgroups are enumerated.
 MAX_ORDER = 240
+
+
+class Correlation(dict):
+    """The result of :func:`correlate`: the INTERFACE.md ``correlate`` dict itself (``group``,
+    ``subgroup``, ``embeddings``; equal to, and serialised as, a plain dict), with a display.
+
+    :meth:`to_markdown` and :meth:`to_latex` write it as a correlation table (the group's
+    irreps down, one column per embedding; ``gammatrace.render.correlation_markdown`` does the
+    same for a plain dict); notebooks show it as an HTML table.
+    """
+
+    __slots__ = ()
+
+    def to_markdown(self) -> str:
+        """The correlation table as Markdown, descriptions and other namings as notes."""
+        return write_markdown([correlation_grid(self)])
+
+    def to_latex(self, document: bool = False) -> str:
+        """The correlation table as LaTeX: a fragment, or a whole ``article`` (``document``)."""
+        return write_latex([correlation_grid(self)], document=document)
+
+    def _repr_html_(self) -> str:
+        return write_html([correlation_grid(self)])
+
+    def _repr_markdown_(self) -> str:
+        return self.to_markdown()
+
 
 _TOL = 1e-6
 
@@ -418,7 +448,7 @@ def _linear_rows(parent_name: str, finite):
     return [(lab, rows[lab]) for lab in labels if lab in rows]
 
 
-def correlate(group_name: str, subgroup_name: str) -> dict:
+def correlate(group_name: str, subgroup_name: str) -> Correlation:
     """How the irreps of a group split in a subgroup, per inequivalent embedding.
 
     Parameters
@@ -428,8 +458,8 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
 
     Returns
     -------
-    dict
-        The INTERFACE.md ``correlate`` object: ``group``, ``subgroup`` and
+    Correlation
+        A dict, the INTERFACE.md ``correlate`` object: ``group``, ``subgroup`` and
         ``embeddings``, one per conjugacy class of such subgroups in the group, each with
         ``description``, ``correlation`` (every irrep of the group -> the subgroup irreps
         it contains) and ``other_namings``: for each other standard frame of the same
@@ -450,7 +480,7 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
     parent = get_table(group_name)
     sub = get_table(subgroup_name)
     if parent.is_spherical:
-        return _correlate_spherical(parent, sub)
+        return Correlation(_correlate_spherical(parent, sub))
     if parent.is_linear:
         parsed = parse_group_name(sub.name)
         n_axis = parsed.n or 1
@@ -490,7 +520,7 @@ def correlate(group_name: str, subgroup_name: str) -> dict:
                 _other_naming(parent.name, finite, sub, idx, frames[0], f, corrs[0], corr)
             )
         embeddings.append({"description": desc, "correlation": corrs[0], "other_namings": namings})
-    return {"group": parent.name, "subgroup": sub.name, "embeddings": embeddings}
+    return Correlation(group=parent.name, subgroup=sub.name, embeddings=embeddings)
 
 
 def _correlation(finite, sub, idx, frame, rows, parent_name: str) -> dict:

@@ -26,6 +26,8 @@ from functools import cached_property
 import numpy as np
 
 from ..errors import ReductionError
+from ..render import write_html, write_latex, write_markdown, write_text
+from ..render.tables import table_grid
 from ._ops import LINEAR_SUBGROUP_N, locate
 from ._types import ClassInfo, Irrep, TableSpec
 from .complex import ComplexForm, build_complex_form, member_labels
@@ -201,6 +203,7 @@ class CharacterTable:
                 [ir.functions for ir in self.irreps],
                 weights=self.class_weights if self.is_spherical else None,
                 plain_text=self.to_text(),
+                real_table=self,
             )
         return self._complex
 
@@ -485,31 +488,62 @@ class CharacterTable:
             "n = (1/2h) Σ g χ(R) χ_i(R), and n is how often each member of the pair occurs)"
         )
 
-    def to_text(self) -> str:
-        """A readable, aligned text table (irrational characters to three decimals)."""
-        head = [self.name] + [c.label for c in self.classes] + ["functions"]
-        rows = [
-            [ir.label] + [_fmt_number(x) for x in ir.characters] + ["; ".join(ir.functions)]
-            for ir in self.irreps
-        ]
-        widths = [max(len(r[j]) for r in [head, *rows]) for j in range(len(head) - 1)]
-        lines = []
-        for r in [head, *rows]:
-            cells = [r[0].ljust(widths[0])] + [r[j].rjust(widths[j]) for j in range(1, len(widths))]
-            lines.append("  ".join([*cells, r[-1]]).rstrip())
-        lines.insert(1, "-" * len(lines[0]))
+    @property
+    def notes(self) -> list[str]:
+        """The notes printed under the table: complex-conjugate pairs, and for C∞v, D∞h and
+        K_h the sampling the reduction formula uses."""
+        out = []
         if self.pairs:
-            lines.append(self._pair_note())
+            out.append(self._pair_note())
         if self.is_linear:
-            lines.append(
+            out.append(
                 f"(C∞ and S∞ sampled at multiples of 360°/{LINEAR_SUBGROUP_N}; class sizes "
                 f"and h = {self._h} of that sampling in the reduction formula; "
                 "|m| ≤ 6 resolved)"
             )
         if self.is_spherical:
-            lines.append(
+            out.append(
                 f"(rotations sampled at multiples of 360°/{LINEAR_SUBGROUP_N}, with and without "
                 "i; each class weighted by size·(1 − cos θ)/h, θ its rotation angle, in the "
                 f"reduction formula; l ≤ {MAX_L} resolved)"
             )
-        return "\n".join(lines)
+        return out
+
+    def _blocks(self) -> list:
+        return [table_grid(self)]
+
+    def to_text(self) -> str:
+        """The table as printed, in aligned text.
+
+        The group in the corner, the classes across (``2C3``, ``3σv``, ``C2′``, ``12C5²``),
+        the irreps down; irrational characters in their exact printed forms (``2cos72°``,
+        ``√2``, ``(1+√5)/2``; the decimal values in a line under the table); two function
+        columns, linear functions and rotations, and quadratic functions (``x²+y²``); then
+        the notes (:attr:`notes`). JSON (:meth:`to_dict`) keeps numbers and ASCII labels.
+
+        Examples
+        --------
+        >>> from gammatrace.tables import get_table
+        >>> print(get_table("C3v").to_text())
+        C3v  E  2C3  3σv  linear, rotations  quadratic
+        --------------------------------------------------------
+        A1   1    1    1  z                  x²+y²; z²
+        A2   1    1   -1  Rz
+        E    2   -1    0  (x,y); (Rx,Ry)     (x²-y²,xy); (xz,yz)
+        """
+        return write_text(table_grid(self))
+
+    def to_markdown(self) -> str:
+        """The table as a Markdown pipe table (the layout of :meth:`to_text`), notes below."""
+        return write_markdown(self._blocks())
+
+    def to_latex(self, document: bool = False) -> str:
+        """The table as LaTeX: a ``tabular`` fragment needing no package (characters and
+        labels in math mode, ASCII only), or with ``document=True`` a whole ``article``."""
+        return write_latex(self._blocks(), document=document)
+
+    def _repr_html_(self) -> str:
+        return write_html(self._blocks())
+
+    def _repr_markdown_(self) -> str:
+        return self.to_markdown()
