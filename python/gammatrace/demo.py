@@ -128,19 +128,41 @@ def run_demo(out: str | None = None) -> int:
             f"   {name:<22} {s.n_atoms:>7} {res.point_group:<5} {n_orbits:>6}  {dt:>7.3f}  "
             f"{vib.n_ir:>2}  {vib.n_raman:>5}"
         )
+    symbols, pos = reference_molecules()["benzene"]
+    benzene = analyze(symbols, pos)
+    print("\n4. Benzene's π combinations (SALCs of the p orbitals perpendicular to the ring)")
+    for comb in benzene.symmetry_adapted_basis("pi").combinations():
+        print(f"   {comb.label:<24} {comb.expression()}")
+
+    print("\n5. Exports: the D6h table and benzene's analysis for a paper or a notebook")
+    table = benzene.table
+    exports = {
+        "d6h_table.md": table.to_markdown(),
+        "d6h_table.tex": table.to_latex(document=True),
+        "benzene_analysis.md": benzene.to_markdown(),
+        "benzene_table.html": table._repr_html_(),
+    }
+    for name, text in exports.items():
+        with open(os.path.join(folder, name), "w", encoding="utf-8") as fh:
+            fh.write(text)
+    print("   " + "\n   ".join(table.to_markdown().splitlines()[:4]) + "\n   ...")
+    print("   written: " + ", ".join(os.path.join(folder, n) for n in exports))
+
     try:
-        from .pictures import draw_symmetry, plot_group_counts
+        from .pictures import draw_stereogram, draw_symmetry, plot_group_counts
 
         png = os.path.join(folder, "c60_symmetry.png")
         draw_symmetry(analyze(c60()), png)
+        stereo = os.path.join(folder, "benzene_stereogram.png")
+        draw_stereogram(benzene, stereo)
         counts: dict[str, int] = {}
         for res in analyze_many([scan]):
             if not isinstance(res, FrameError):
                 counts[res.point_group] = counts.get(res.point_group, 0) + 1
         chart = os.path.join(folder, "scan_point_groups.png")
         plot_group_counts(counts, chart)
-        print(f"\nPictures: {png}\n          {chart}")
-    except InputError as exc:  # pictures need the optional matplotlib
+        print(f"\nPictures: {png}\n          {stereo}\n          {chart}")
+    except InputError as exc:  # matplotlib missing from this environment
         print(f"\n(pictures skipped: {exc})")
     print("\nDone. Try: gammatrace analyze " + scan + " --format json")
     return 0
