@@ -185,6 +185,14 @@ def test_demo_runs(tmp_path, capsys):
     assert run_demo(out=str(tmp_path)) == 0
     out = capsys.readouterr().out
     assert "INVENTED" in out and "D3d" in out and "Ih" in out and "ERROR" in out
+    # benzene's π SALCs as printed: A2u is the in-phase sum (Cotton, benzene π MOs; from memory)
+    assert "A2u" in out and "(1/√6)(p⊥(C1) + p⊥(C2) + p⊥(C3) + p⊥(C4) + p⊥(C5) + p⊥(C6))" in out
+    for name in ("d6h_table.md", "d6h_table.tex", "benzene_analysis.md", "benzene_table.html"):
+        assert (tmp_path / name).stat().st_size > 200
+    tex = (tmp_path / "d6h_table.tex").read_text()
+    assert tex.count("\\begin{") == tex.count("\\end{") and "\\documentclass" in tex
+    for png in ("c60_symmetry.png", "benzene_stereogram.png", "scan_point_groups.png"):
+        assert (tmp_path / png).read_bytes()[:4] == b"\x89PNG"
 
 
 @pytest.mark.parametrize("group", ["C3", "C5", "S6", "C3h", "C4h", "T", "Th", "D3d", "Oh"])
