@@ -405,3 +405,23 @@ def test_selection_matches_the_interface_shape():
     assert pr.selection("Dinfh")["group"] == "D∞h"
     with pytest.raises(TableError):
         pr.selection("Q7", bands=["A^2"])
+
+
+def test_table_products_refuse_what_the_linear_sampling_cannot_label():
+    # C∞v is sampled by C13v, which separates |m| ≤ 6: Γ ⊗ Γ reaches |m| = 8 and would alias
+    # onto H (|m| = 5); Π² = Σ+ + Δ (Herzberg, Electronic Spectra of Polyatomic Molecules,
+    # products of Π states; from memory) is inside the reach
+    from gammatrace.errors import ReductionError
+    from gammatrace.tables import get_table
+
+    t = get_table("C∞v")
+    assert t.symmetric_square("Π") == {"Σ+": 1, "Δ": 1}
+    assert t.antisymmetric_square("Γ") == {"Σ-": 1}  # Λ² of a doublet is Σ- for any |m|
+    with pytest.raises(ReductionError, match=r"\|m\| = 8"):
+        t.symmetric_square("Γ")
+    with pytest.raises(ReductionError, match=r"\|m\| = 7"):
+        t.decompose_product("Φ", "Γ")
+    kh = get_table("K_h")
+    assert kh.antisymmetric_square("Dg") == {"Pg": 1, "Fg": 1}  # Λ²(l=2) = l 1 + l 3
+    with pytest.raises(ReductionError, match="l = 6"):
+        kh.decompose_product("Fu", "Fu")

@@ -212,23 +212,8 @@ def antisymmetric_power(table, label: str, n: int) -> dict[str, int]:
 
 
 def _reach(table) -> tuple[str, np.ndarray, int, int] | None:
-    """For the infinite groups: (quantity, its value per irrep, largest value a full
-    reduction resolves, largest sum the totally symmetric content resolves); else None."""
-    chars = np.asarray(table.character_matrix)
-    dims = np.array([ir.dim for ir in table.irreps])
-    if table.is_spherical:
-        return "l", (dims - 1) // 2, MAX_L, LINEAR_SUBGROUP_N - 2
-    if table.is_linear:
-        step = 360.0 / LINEAR_SUBGROUP_N
-        col = next(
-            j
-            for j, c in enumerate(table.classes)
-            if c.proper and c.size == 2 and abs(c.angle - step) < 1e-6
-        )
-        cos = np.clip(chars[:, col] / 2.0, -1.0, 1.0)
-        m = np.where(dims == 1, 0, np.rint(np.arccos(cos) / np.radians(step))).astype(int)
-        return "|m|", m, MAX_ABS_M, LINEAR_SUBGROUP_N - 1
-    return None
+    """The table's :attr:`~gammatrace.tables.CharacterTable.angular_reach`."""
+    return table.angular_reach
 
 
 def _reach_of(table, factors) -> tuple[str, int, int, int] | None:

@@ -416,6 +416,41 @@ class CharacterTable:
 
     # -- products ----------------------------------------------------------------------
 
+    @cached_property
+    def angular_reach(self) -> tuple[str, np.ndarray, int, int] | None:
+        """For the infinite groups, what the finite sampling resolves: (quantity, its value
+        per irrep, the largest value a full reduction resolves, the largest sum whose totally
+        symmetric content it resolves) — ``("|m|", …, 6, 12)`` for C∞v/D∞h, ``("l", …, 5, 11)``
+        for K_h; None for a finite group. Products beyond it would alias onto a wrong label."""
+        chars = np.asarray(self.character_matrix)
+        dims = np.array([ir.dim for ir in self.irreps])
+        if self.is_spherical:
+            return "l", (dims - 1) // 2, MAX_L, LINEAR_SUBGROUP_N - 2
+        if self.is_linear:
+            step = 360.0 / LINEAR_SUBGROUP_N
+            col = next(
+                j
+                for j, c in enumerate(self.classes)
+                if c.proper and c.size == 2 and abs(c.angle - step) < 1e-6
+            )
+            cos = np.clip(chars[:, col] / 2.0, -1.0, 1.0)
+            m = np.where(dims == 1, 0, np.rint(np.arccos(cos) / np.radians(step))).astype(int)
+            return "|m|", m, (LINEAR_SUBGROUP_N - 1) // 2, LINEAR_SUBGROUP_N - 1
+        return None
+
+    def _check_reach(self, labels, what: str, offset: int = 0) -> None:
+        """Refuse a product of the infinite groups beyond what the sampling resolves."""
+        reach = self.angular_reach
+        if reach is None:
+            return
+        name, values, full, _ = reach
+        total = sum(int(values[self.index(lab)]) for lab in labels) + offset
+        if total > full:
+            raise ReductionError(
+                f"{what} reaches {name} = {total}, beyond the {self.name} table's {name} ≤ "
+                f"{full} (the finite sampling behind it has no label there and would alias it)"
+            )
+
     def direct_product(self, *labels: str) -> np.ndarray:
         """Characters of the direct product of the named irreps (per class)."""
         if not labels:
@@ -427,7 +462,9 @@ class CharacterTable:
 
     def decompose_product(self, *labels: str) -> dict[str, int]:
         """Irreps in the direct product of the named irreps, e.g. E ⊗ E = A1 + A2 + E."""
-        return self.reduce(self.direct_product(*labels), what=" x ".join(labels))
+        what = " x ".join(labels)
+        self._check_reach(labels, what)
+        return self.reduce(self.direct_product(*labels), what=what)
 
     def _square_chars(self, label: str, sign: float) -> np.ndarray:
         chi = self.character_matrix[self.index(label)]
@@ -435,10 +472,14 @@ class CharacterTable:
 
     def symmetric_square(self, label: str) -> dict[str, int]:
         """Irreps in the symmetric square [Γ²]: χ(R) = (χ(R)² + χ(R²)) / 2."""
+        self._check_reach((label, label), f"[{label}]^2")
         return self.reduce(self._square_chars(label, 1.0), what=f"[{label}]^2")
 
     def antisymmetric_square(self, label: str) -> dict[str, int]:
         """Irreps in the antisymmetric square {Γ²}: χ(R) = (χ(R)² − χ(R²)) / 2."""
+        reach = self.angular_reach
+        if reach is not None and reach[0] == "l":  # Λ² of an l shell reaches 2l − 1
+            self._check_reach((label, label), f"{{{label}}}^2", offset=-1)
         return self.reduce(self._square_chars(label, -1.0), what=f"{{{label}}}^2")
 
     # -- output ------------------------------------------------------------------------
