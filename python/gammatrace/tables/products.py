@@ -49,10 +49,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import InputError, ReductionError
-from ._ops import LINEAR_SUBGROUP_N, locate
-from .linear import MAX_ABS_M
+from ._ops import locate
 from .registry import get_table
-from .spherical import MAX_L
 
 __all__ = [
     "MAX_POWER",
