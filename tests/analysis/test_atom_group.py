@@ -145,7 +145,7 @@ def test_k_h_products_follow_angular_momentum_coupling():
     t = get_table("K_h")
     assert t.decompose_product("Pu", "Pu") == {"Sg": 1, "Pg": 1, "Dg": 1}
     assert t.decompose_product("Dg", "Fu") == {"Pu": 1, "Du": 1, "Fu": 1, "Gu": 1, "Hu": 1}
-    with pytest.raises(ReductionError, match="reaches l = 6, beyond the K_h table.s l ≤ 5"):
+    with pytest.raises(ReductionError, match=r"reaches l = 6, beyond the K_h table.s l ≤ 5"):
         t.decompose_product("Fg", "Fg")  # holds l = 6
 
 
