@@ -424,7 +424,7 @@ class Analysis:
         )
         lines.append(
             f"  distinct fundamentals {vib.n_fundamentals}: {vib.n_ir} IR, {vib.n_raman} Raman"
-            + ("; mutual exclusion (centrosymmetric)" if vib.mutual_exclusion else "")
+            + ("; mutual exclusion (centrosymmetric)" if vib.mutual_exclusion and vib.modes else "")
         )
         lines.append("  " + self._environments_text())
         return "\n".join(lines)
