@@ -6,6 +6,8 @@ Each group ``"<family> 1e<k>"`` holds, from the same run:
   ``vibrations()`` — everything from coordinates only;
 - ``ours-counting``: the core's unshifted-atom count for the given operations (like for like
   with the baselines);
+- ``ours-detection``: the core's detection alone (``_core.find_point_group``, default
+  verify-all limit), to set against ``ours-counting``;
 - ``kdtree``: baseline (b), numpy + cKDTree, given the operations;
 - ``dense``: baseline (a), the literal 3N × 3N matrices, given the operations (10³ only).
 """
@@ -95,6 +97,24 @@ def test_ours_counting(benchmark, family, k):
     note(benchmark, family=family, n_atoms=s.n_atoms, kind="ours-counting")
     g3n, gvib = baselines.reduce_vibrations(ref["table"], ref["op_class"], chars)
     assert (g3n, gvib) == (ref["gamma_3n"], ref["gamma_vib"])
+
+
+@pytest.mark.parametrize(("family", "k"), _params())
+def test_ours_detection(benchmark, family, k):
+    s = cluster(family, k)
+    benchmark.group = f"{family} 1e{k}"
+    benchmark.name = "ours-detection"
+
+    def run():
+        return _core.find_point_group(
+            s.positions, s.numbers, TOL, _core.LINEAR_SUBGROUP_N, _core.VERIFY_ALL_LIMIT
+        )
+
+    d = benchmark.pedantic(run, rounds=ROUNDS[k][0], iterations=1)
+    note(benchmark, family=family, n_atoms=s.n_atoms, kind="ours-detection")
+    assert d.point_group == family
+    verify_all = s.n_atoms * len(d.operations) <= _core.VERIFY_ALL_LIMIT
+    assert len(d.verified) == (len(d.operations) if verify_all else 1 + len(d.generators))
 
 
 @pytest.mark.parametrize(("family", "k"), _params())

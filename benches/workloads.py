@@ -5,6 +5,8 @@
   points) in random orientations; half keep their symmetry (noise 10⁻⁴ Å), half are distorted
   (noise 0.05 Å, so C1 at the default tolerance of 0.01 Å).
 - A multi-frame XYZ file of about 50 MB made of such conformers.
+- Single molecules for detection next to counting: benzene, C60, a 2057-atom Mackay
+  icosahedron, and C1 conformers (the distorted half of the conformers above).
 """
 
 from __future__ import annotations
@@ -15,7 +17,7 @@ import os
 import numpy as np
 from gammatrace import get_table
 from gammatrace.io import Structure, write_xyz
-from gammatrace.io.builders import fcc_cluster, mackay_icosahedron, orbit_structure
+from gammatrace.io.builders import c60, fcc_cluster, mackay_icosahedron, orbit_structure
 
 SEED = 20260707
 TOL = 0.01
@@ -28,6 +30,8 @@ FAMILIES = {"Ih": "Mackay icosahedron", "Oh": "fcc sphere"}
 N_CONFORMERS = 10_000
 CONFORMER_ATOMS = 30
 XYZ_TARGET_BYTES = 50_000_000
+#: Mackay shells of the 2057-atom icosahedron.
+ICO_2057_SHELLS = 8
 
 
 @functools.cache
@@ -110,3 +114,39 @@ def write_conformer_xyz(path: os.PathLike, target_bytes: int = XYZ_TARGET_BYTES)
     structures, *_ = conformers(n_frames, seed=SEED + 1)
     write_xyz(structures, path)
     return n_frames
+
+
+def _rotated(s: Structure, seed: int) -> Structure:
+    """``s`` in a fixed random orientation, shifted off the origin."""
+    rng = np.random.default_rng(seed)
+    rot = _random_rotations(rng, 1)[0]
+    pos = s.positions @ rot.T + rng.normal(0.0, 5.0, 3)
+    return Structure(s.numbers, np.ascontiguousarray(pos), s.source)
+
+
+@functools.cache
+def molecule(name: str) -> Structure:
+    """``"benzene"`` (D6h), ``"C60"`` (Ih) or ``"Ih-2057"`` (Ih), in a random orientation."""
+    if name == "benzene":
+        # C–C 1.39 Å, C–H 1.09 Å (approximate; only the symmetry matters here).
+        angle = np.arange(6) * np.pi / 3
+        ring = np.stack([np.cos(angle), np.sin(angle), np.zeros(6)], axis=1)
+        pos = np.concatenate([1.39 * ring, 2.48 * ring])
+        base = Structure(np.array([6] * 6 + [1] * 6), np.ascontiguousarray(pos), "<benzene>")
+    elif name == "C60":
+        base = c60()
+    elif name == "Ih-2057":
+        base = mackay_icosahedron(ICO_2057_SHELLS)
+    else:
+        raise ValueError(f"molecule: expected 'benzene', 'C60' or 'Ih-2057', got {name!r}")
+    return _rotated(base, SEED + len(name))
+
+
+@functools.cache
+def c1_conformers(n: int = 100) -> tuple:
+    """``n`` distinct 30-atom conformers of point group C1 (distorted parents)."""
+    structures, expected, *_ = conformers(4 * n, seed=SEED + 2)
+    picked = [s for s, g in zip(structures, expected) if g == "C1"][:n]
+    if len(picked) != n:
+        raise RuntimeError(f"only {len(picked)} C1 conformers among {4 * n}")
+    return tuple(picked)

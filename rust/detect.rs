@@ -36,6 +36,8 @@
 pub mod canonical;
 mod frame;
 pub mod naming;
+mod search;
+mod verify;
 
 use crate::error::{Error, Result};
 use crate::lookup::{find_overlap, map_atoms, Grid};
@@ -43,6 +45,7 @@ use crate::ops::{dot, fit_orthogonal, mat_mul, mat_vec, norm, transpose, Mat3, P
 use crate::structure;
 use canonical::{group_data, Family};
 use std::collections::HashMap;
+use std::sync::OnceLock;
 
 /// Default distance tolerance, Å (DEVELOPERS.md, "Tolerance").
 pub const DEFAULT_TOLERANCE: f64 = 0.01;
@@ -57,6 +60,9 @@ const SAMPLE_ABOVE: usize = 4096;
 /// At most this many atoms found by failed verifications are screened first on retries.
 const MAX_EXTRA: usize = 16;
 const SAMPLE_SIZE: usize = 1024;
+/// Up to this many atoms, overlaps and the pruned search's lookups are brute force and the
+/// cell grid is built only if a lookup needs its exact answer.
+const BRUTE_FORCE_MAX: usize = 48;
 
 /// Options of `find_point_group`.
 #[derive(Debug, Clone, PartialEq)]
@@ -124,12 +130,62 @@ struct Ctx<'a> {
     x: Vec<Vec3>,
     /// Species code of each atom (`structure::Species`): what the matching compares.
     species: &'a [i64],
-    grid: Grid,
+    /// The cell grid, built on first use (small structures may never need it).
+    grid: OnceLock<Grid>,
     tol: f64,
     inertia: Mat3,
+    /// Principal axes of `inertia` (rows, ascending moments).
+    axes: Mat3,
 }
 
 impl Ctx<'_> {
+    fn grid(&self) -> Result<&Grid> {
+        if let Some(g) = self.grid.get() {
+            return Ok(g);
+        }
+        let g = Grid::build(&self.x, self.species, self.tol)?;
+        Ok(self.grid.get_or_init(|| g))
+    }
+
+    /// True when lookups are brute force (a small structure whose grid is not built).
+    fn brute(&self) -> bool {
+        self.x.len() <= BRUTE_FORCE_MAX && self.grid.get().is_none()
+    }
+
+    /// Nearest atom of `element` within `radius` of `q`: (index, distance). The grid's
+    /// answer, or brute force for small structures (any nearest atom will do: the pruned
+    /// search only screens with it).
+    fn nearest(&self, q: &Vec3, element: i64, radius: f64) -> Option<(usize, f64)> {
+        if !self.brute() {
+            return self.grid().ok()?.query_within(q, element, radius);
+        }
+        let mut best = (usize::MAX, radius * radius);
+        for (j, p) in self.x.iter().enumerate() {
+            if self.species[j] == element {
+                let d = [p[0] - q[0], p[1] - q[1], p[2] - q[2]];
+                let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+                if d2 <= best.1 {
+                    best = (j, d2);
+                }
+            }
+        }
+        (best.0 != usize::MAX).then(|| (best.0, best.1.sqrt()))
+    }
+
+    /// Small structures: the nearest atom of the same element to every image under `m`, by
+    /// brute force (a candidate permutation for verify.rs to check); `None` otherwise.
+    fn brute_map(&self, m: &Mat3) -> Option<Vec<u32>> {
+        if !self.brute() {
+            return None;
+        }
+        let mut perm = Vec::with_capacity(self.x.len());
+        for (i, p) in self.x.iter().enumerate() {
+            let (j, _) = self.nearest(&mat_vec(m, p), self.species[i], f64::INFINITY)?;
+            perm.push(j as u32);
+        }
+        Some(perm)
+    }
+
     fn count_on_axis(&self, u: &Vec3) -> usize {
         self.x
             .iter()
@@ -202,8 +258,14 @@ pub fn find_point_group_with_masses(
         .iter()
         .map(|p| [p[0] - center[0], p[1] - center[1], p[2] - center[2]])
         .collect();
-    let grid = Grid::build(&x, &species.codes, tol)?;
-    if let Some((first, second, distance)) = find_overlap(&grid) {
+    let (grid, overlap) = if x.len() <= BRUTE_FORCE_MAX {
+        (OnceLock::new(), brute_overlap(&x, tol))
+    } else {
+        let g = Grid::build(&x, &species.codes, tol)?;
+        let overlap = find_overlap(&g);
+        (OnceLock::from(g), overlap)
+    };
+    if let Some((first, second, distance)) = overlap {
         return Err(Error::OverlappingAtoms {
             first,
             second,
@@ -212,17 +274,18 @@ pub fn find_point_group_with_masses(
         });
     }
     let inertia = structure::weighted_inertia(positions, &species.masses);
+    if positions.len() == 1 {
+        return single_atom(center, opts);
+    }
+    let (_, axes) = structure::principal_axes(&inertia);
     let ctx = Ctx {
         x,
         species: &species.codes,
         grid,
         tol,
         inertia,
+        axes,
     };
-    if positions.len() == 1 {
-        return single_atom(center, opts);
-    }
-    let (_, axes) = structure::principal_axes(&inertia);
     let line = axes[0];
     let on_line = ctx.x.iter().all(|p| {
         let t = dot(p, &line);
@@ -236,6 +299,9 @@ pub fn find_point_group_with_masses(
                 return Ok(sym);
             }
         }
+    }
+    if let Some(sym) = search::pruned(&ctx, center, opts) {
+        return Ok(sym);
     }
     let mut last = Error::GroupClosure {
         reason: "no candidate operations".into(),
@@ -388,25 +454,12 @@ fn finish(
         .collect();
     let classes = classes_from(&data.class_of);
     let n = ctx.x.len();
-    let verified: Vec<usize> = if n.saturating_mul(ops.len()) <= opts.verify_all_limit {
-        (0..ops.len()).collect()
-    } else {
-        std::iter::once(0)
-            .chain(generators.iter().copied())
-            .collect()
-    };
-    let mut permutations = Vec::with_capacity(verified.len());
-    let mut max_deviation = 0.0_f64;
-    for &k in &verified {
-        if k == 0 {
-            // E maps every atom onto itself at distance 0.
-            permutations.push((0..n as u32).collect());
-            continue;
-        }
-        let (perm, dev) = map_atoms(&ctx.grid, &ctx.x, ctx.species, &ops[k].matrix, ctx.tol)?;
-        max_deviation = max_deviation.max(dev);
-        permutations.push(perm);
-    }
+    let all = n.saturating_mul(ops.len()) <= opts.verify_all_limit;
+    let verify::Verified {
+        verified,
+        permutations,
+        max_deviation,
+    } = verify::verify(ctx, &ops, &data, all)?;
     Ok(Symmetry {
         point_group: fam.name(),
         center,
@@ -441,21 +494,29 @@ fn classes_from(class_of: &[usize]) -> Vec<Vec<usize>> {
 struct Windows {
     order: Vec<u32>,
     range: Vec<(u32, u32)>,
+    /// Position of each atom in `order`.
+    pos: Vec<u32>,
 }
 
 fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
     let n = r.len();
-    let mut order: Vec<u32> = (0..n as u32).collect();
-    order.sort_unstable_by(|&i, &j| {
-        let (i, j) = (i as usize, j as usize);
-        ctx.species[i]
-            .cmp(&ctx.species[j])
-            .then(r[i].total_cmp(&r[j]))
-    });
+    // One integer key per atom, (species, radius, index): radii are ≥ 0, so their bits sort
+    // as the numbers do, and species codes are below 2^32 (element + 1000 × isotope rank).
+    let mut keys: Vec<u128> = (0..n)
+        .map(|i| {
+            (u128::from(ctx.species[i] as u32) << 96)
+                | (u128::from(r[i].to_bits()) << 32)
+                | i as u128
+        })
+        .collect();
+    keys.sort_unstable();
+    let order: Vec<u32> = keys.iter().map(|&k| k as u32).collect();
     let mut range = vec![(0u32, 0u32); n];
+    let mut pos = vec![0u32; n];
     let (mut lo, mut hi) = (0usize, 0usize);
     for s in 0..n {
         let i = order[s] as usize;
+        pos[i] = s as u32;
         let (z, ri) = (ctx.species[i], r[i]);
         while lo < s {
             let j = order[lo] as usize;
@@ -476,7 +537,7 @@ fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
         }
         range[i] = (lo as u32, hi as u32 + 1);
     }
-    Windows { order, range }
+    Windows { order, range, pos }
 }
 
 /// Up to `k` evenly spread members of a slice.
@@ -534,6 +595,7 @@ fn enumerate(
     let b = pick(&|i| perp[i], 0.5 * d_max).ok_or_else(no_ops)?;
     let wa = &win.order[win.range[a].0 as usize..win.range[a].1 as usize];
     let wb = &win.order[win.range[b].0 as usize..win.range[b].1 as usize];
+    let grid = ctx.grid()?;
     let ref_frame = pair_frame(&ctx.x[a], &ctx.x[b]).ok_or_else(no_ops)?;
     let d_ab = norm(&sub(&ctx.x[a], &ctx.x[b]));
 
@@ -572,8 +634,7 @@ fn enumerate(
         for &i in &front {
             chosen[i] = false;
         }
-        let rest = ctx
-            .grid
+        let rest = grid
             .atoms_in_cell_order()
             .iter()
             .map(|&i| i as usize)
@@ -603,7 +664,9 @@ fn enumerate(
                     f[2] = [-f[2][0], -f[2][1], -f[2][2]];
                 }
                 let r0 = mat_mul(&transpose(&f), &ref_frame);
-                if let Some(op) = test_candidate(ctx, &r0, proper, &probe, &accept, tol_raw, a, b) {
+                if let Some(op) =
+                    test_candidate(ctx, grid, &r0, proper, &probe, &accept, tol_raw, a, b)
+                {
                     if let std::collections::hash_map::Entry::Vacant(e) =
                         seen.entry((op.ia, op.ib, op.proper))
                     {
@@ -615,6 +678,22 @@ fn enumerate(
         }
     }
     Ok((found, a, b))
+}
+
+/// The first pair (i < j, in (i, j) order) of atoms within `tol` of each other, by brute
+/// force: the answer of `find_overlap` for small structures.
+fn brute_overlap(x: &[Vec3], tol: f64) -> Option<(usize, usize, f64)> {
+    let t2 = tol * tol;
+    for (i, p) in x.iter().enumerate() {
+        for (j, q) in x.iter().enumerate().skip(i + 1) {
+            let d = [q[0] - p[0], q[1] - p[1], q[2] - p[2]];
+            let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+            if d2 <= t2 {
+                return Some((i, j, d2.sqrt()));
+            }
+        }
+    }
+    None
 }
 
 fn sub(p: &Vec3, q: &Vec3) -> Vec3 {
@@ -637,6 +716,7 @@ fn add_outer(h: &mut Mat3, p: &Vec3, q: &Vec3) {
 #[allow(clippy::too_many_arguments)]
 fn test_candidate(
     ctx: &Ctx,
+    grid: &Grid,
     r0: &Mat3,
     proper: bool,
     probe: &[usize],
@@ -648,7 +728,7 @@ fn test_candidate(
     let mut h = [[0.0; 3]; 3];
     for &i in probe {
         let q = mat_vec(r0, &ctx.x[i]);
-        let (j, _) = ctx.grid.query_within(&q, ctx.species[i], 3.0 * ctx.tol)?;
+        let (j, _) = grid.query_within(&q, ctx.species[i], 3.0 * ctx.tol)?;
         add_outer(&mut h, &ctx.x[i], &ctx.x[j]);
     }
     let r1 = fit_orthogonal(&h, proper);
@@ -656,7 +736,7 @@ fn test_candidate(
     let (mut ia, mut ib) = (usize::MAX, usize::MAX);
     for &i in accept {
         let q = mat_vec(&r1, &ctx.x[i]);
-        let (j, _) = ctx.grid.query_within(&q, ctx.species[i], tol_raw)?;
+        let (j, _) = grid.query_within(&q, ctx.species[i], tol_raw)?;
         add_outer(&mut h, &ctx.x[i], &ctx.x[j]);
         if i == a {
             ia = j;
@@ -686,6 +766,7 @@ fn test_candidate(
 /// structure is reported in that subgroup rather than in no group at all.
 fn close_and_order(ctx: &Ctx, raw: Vec<RawOp>, a: usize, b: usize) -> Result<Vec<RawOp>> {
     let h = raw.len();
+    let grid = ctx.grid()?;
     let key: HashMap<(usize, usize, bool), usize> = raw
         .iter()
         .enumerate()
@@ -693,8 +774,7 @@ fn close_and_order(ctx: &Ctx, raw: Vec<RawOp>, a: usize, b: usize) -> Result<Vec
         .collect();
     let image = |g: &RawOp, atom: usize| -> Option<usize> {
         let q = mat_vec(&g.m, &ctx.x[atom]);
-        ctx.grid
-            .query_within(&q, ctx.species[atom], 2.0 * ctx.tol)
+        grid.query_within(&q, ctx.species[atom], 2.0 * ctx.tol)
             .map(|t| t.0)
     };
     let fail = |what: String| Error::GroupClosure {

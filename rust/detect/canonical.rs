@@ -6,7 +6,7 @@ use crate::ops::{mat_mul, max_abs_diff, rotation_matrix, Mat3, IDENTITY};
 use std::f64::consts::PI;
 
 /// The point groups the detector reports, with the n of the axial families.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Family {
     /// C1.
     C1,
@@ -275,6 +275,12 @@ pub struct GroupData {
     pub inverse: Vec<usize>,
     /// Index of the square of each operation.
     pub square: Vec<usize>,
+    /// Every operation as a generator times an earlier one: `words[k] = (g, j)` with
+    /// ops[k] = ops[g]·ops[j], g in `generators` (E: `(0, 0)`).
+    pub words: Vec<(usize, usize)>,
+    /// The operations in breadth-first order from E over the generators: each one comes after
+    /// the `j` of its word.
+    pub word_order: Vec<usize>,
 }
 
 /// Entries of operation matrices agree to this when two operations are one element.
@@ -385,6 +391,29 @@ fn build_group_data(family: Family) -> crate::Result<GroupData> {
         }
     }
     let class_of: Vec<usize> = (0..h).map(|k| root(&mut parent, k)).collect();
+    // Breadth first from E: every operation as a generator times one reached before it.
+    let mut words = vec![(0usize, 0usize); h];
+    let mut reached = vec![false; h];
+    reached[0] = true;
+    let mut word_order = vec![0usize];
+    let mut next = 0;
+    while next < word_order.len() {
+        let j = word_order[next];
+        next += 1;
+        for &g in &generators {
+            let k = idx
+                .find(&mat_mul(&ops[g], &ops[j]))
+                .ok_or_else(|| missing("product", j))?;
+            if !reached[k] {
+                reached[k] = true;
+                words[k] = (g, j);
+                word_order.push(k);
+            }
+        }
+    }
+    if let Some(k) = reached.iter().position(|&r| !r) {
+        return Err(missing("word over the generators", k));
+    }
     Ok(GroupData {
         family,
         ops,
@@ -392,6 +421,8 @@ fn build_group_data(family: Family) -> crate::Result<GroupData> {
         class_of,
         inverse,
         square,
+        words,
+        word_order,
     })
 }
 
@@ -403,8 +434,8 @@ fn build_group_data(family: Family) -> crate::Result<GroupData> {
 pub fn group_data(family: Family) -> crate::Result<std::sync::Arc<GroupData>> {
     use std::collections::HashMap;
     use std::sync::{Arc, Mutex, OnceLock};
-    static CACHE: OnceLock<Mutex<HashMap<String, Arc<GroupData>>>> = OnceLock::new();
-    let key = format!("{family:?}");
+    static CACHE: OnceLock<Mutex<HashMap<Family, Arc<GroupData>>>> = OnceLock::new();
+    let key = family;
     let cache = CACHE.get_or_init(|| Mutex::new(HashMap::new()));
     if let Ok(map) = cache.lock() {
         if let Some(found) = map.get(&key) {
@@ -538,5 +569,36 @@ mod tests {
             &[[[2.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]]]
         )
         .is_err());
+    }
+
+    #[test]
+    fn words_spell_every_operation_from_the_generators() {
+        for family in [
+            Family::C1,
+            Family::Cs,
+            Family::Cnv(5),
+            Family::S2n(8),
+            Family::Dnd(4),
+            Family::Td,
+            Family::Ih,
+            Family::Dinfh(13),
+            Family::Kh(13),
+        ] {
+            let g = group_data(family).unwrap();
+            let h = g.ops.len();
+            assert_eq!(g.word_order.len(), h);
+            assert_eq!(g.word_order[0], 0);
+            let mut position = vec![usize::MAX; h];
+            for (p, &k) in g.word_order.iter().enumerate() {
+                position[k] = p;
+            }
+            for &k in &g.word_order[1..] {
+                let (gen, j) = g.words[k];
+                assert!(g.generators.contains(&gen), "{family:?} {k}");
+                assert!(position[j] < position[k], "{family:?} {k}");
+                let p = mat_mul(&g.ops[gen], &g.ops[j]);
+                assert!(max_abs_diff(&p, &g.ops[k]) < 1e-9, "{family:?} {k}");
+            }
+        }
     }
 }

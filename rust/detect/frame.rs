@@ -5,7 +5,6 @@ use super::canonical::Family;
 use super::{parallel, Ctx, RawOp};
 use crate::error::{Error, Result};
 use crate::ops::{cross, det, dot, mat_vec, normalize, Mat3, Vec3};
-use crate::structure::principal_axes;
 use nalgebra::Matrix3;
 
 /// Frame with z along `z` and x along the part of `x_hint` perpendicular to z (any
@@ -96,7 +95,7 @@ fn missing(what: &str) -> Error {
 
 /// The standard frame of `fam` from the raw operations and the atoms.
 pub(super) fn standard_frame(ctx: &Ctx, fam: Family, raw: &[RawOp]) -> Result<Mat3> {
-    let (_, inertia_axes) = principal_axes(&ctx.inertia);
+    let inertia_axes = ctx.axes;
     let first = |v: Vec<Vec3>, what: &str| v.first().copied().ok_or_else(|| missing(what));
     let perpendicular_to = |z: Vec3| move |o: &RawOp| dot(&o.op.axis, &z).abs() < 0.1;
     match fam {

@@ -1,0 +1,188 @@
+//! Verification of a group's ideal operations against the atoms (step 5 of the module doc),
+//! at the cost of a streaming pass per operation instead of a lookup per atom.
+//!
+//! The generators are mapped with the nearest-atom lookup. Every other operation is
+//! g·op_j for a generator g and an operation j verified before it (the breadth-first words
+//! of [`canonical::GroupData`]), so its candidate permutation is π_g ∘ π_j; each atom i is
+//! then checked directly against its candidate image. When that image lies within tol/2 of
+//! R·x_i it *is* the lookup's answer: every other atom is more than tol away from it (no two
+//! atoms lie within tol), hence more than tol/2 from R·x_i. Any atom beyond tol/2 is looked up
+//! as the lookup would, and any failure repeats the plain verification (every operation
+//! mapped by the lookup, in index order), so the permutations, `max_deviation` and errors are
+//! those of mapping every operation by lookup, bit for bit.
+
+use super::canonical::GroupData;
+use super::Ctx;
+use crate::error::Result;
+use crate::lookup::{map_atoms, PARALLEL_MIN_ATOMS};
+use crate::ops::{mat_vec, Mat3, PointOp, Vec3};
+use crate::parallel;
+
+/// Operations checked against all atoms, their permutations and the largest image distance.
+pub(super) struct Verified {
+    /// Indices of the verified operations: E first, then all others or the generators.
+    pub verified: Vec<usize>,
+    /// One permutation per entry of `verified`.
+    pub permutations: Vec<Vec<u32>>,
+    /// Largest image distance over the verified operations, Å.
+    pub max_deviation: f64,
+}
+
+/// Verify E and the generators, or every operation when `all`: the permutations and errors of
+/// mapping each of them with [`map_atoms`] (see the module notes).
+pub(super) fn verify(ctx: &Ctx, ops: &[PointOp], data: &GroupData, all: bool) -> Result<Verified> {
+    let verified: Vec<usize> = if all {
+        (0..ops.len()).collect()
+    } else {
+        std::iter::once(0)
+            .chain(data.generators.iter().copied())
+            .collect()
+    };
+    match composed(ctx, ops, data, all) {
+        Some((mut perms, dev)) => {
+            let permutations = verified
+                .iter()
+                .map(|&k| std::mem::take(&mut perms[k]))
+                .collect();
+            Ok(Verified {
+                verified,
+                permutations,
+                max_deviation: dev,
+            })
+        }
+        None => plain(ctx, ops, verified),
+    }
+}
+
+/// Every listed operation mapped by lookup, in order: the first failure is the error.
+fn plain(ctx: &Ctx, ops: &[PointOp], verified: Vec<usize>) -> Result<Verified> {
+    let n = ctx.x.len();
+    let mut permutations = Vec::with_capacity(verified.len());
+    let mut max_deviation = 0.0_f64;
+    for &k in &verified {
+        if k == 0 {
+            // E maps every atom onto itself at distance 0.
+            permutations.push((0..n as u32).collect());
+            continue;
+        }
+        let grid = ctx.grid()?;
+        let (perm, dev) = map_atoms(grid, &ctx.x, ctx.species, &ops[k].matrix, ctx.tol)?;
+        max_deviation = max_deviation.max(dev);
+        permutations.push(perm);
+    }
+    Ok(Verified {
+        verified,
+        permutations,
+        max_deviation,
+    })
+}
+
+/// Permutations of the generators (and of every operation when `all`) with the largest image
+/// distance, or `None` when any check fails (the caller then maps by lookup for the error).
+fn composed(
+    ctx: &Ctx,
+    ops: &[PointOp],
+    data: &GroupData,
+    all: bool,
+) -> Option<(Vec<Vec<u32>>, f64)> {
+    let n = ctx.x.len();
+    let h = ops.len();
+    let mut perms: Vec<Vec<u32>> = vec![Vec::new(); h];
+    perms[0] = (0..n as u32).collect();
+    let mut dev = 0.0_f64;
+    for &g in &data.generators {
+        if perms[g].is_empty() {
+            let (perm, d) = map_nearest(ctx, &ops[g].matrix)?;
+            perms[g] = perm;
+            dev = dev.max(d);
+        }
+    }
+    if all {
+        for &k in &data.word_order[1..] {
+            if !perms[k].is_empty() {
+                continue;
+            }
+            let (g, j) = data.words[k];
+            let (pg, pj) = (&perms[g], &perms[j]);
+            let mut perm: Vec<u32> = pj.iter().map(|&t| pg[t as usize]).collect();
+            dev = dev.max(check(ctx, &ops[k].matrix, &mut perm)?);
+            perms[k] = perm;
+        }
+    }
+    Some((perms, dev))
+}
+
+/// Squared distance from R·x_i to atom j, as the lookup measures it.
+#[inline]
+fn dist2(m: &Mat3, xi: &Vec3, xj: &Vec3) -> f64 {
+    let q = mat_vec(m, xi);
+    let d = [xj[0] - q[0], xj[1] - q[1], xj[2] - q[2]];
+    d[0] * d[0] + d[1] * d[1] + d[2] * d[2]
+}
+
+/// Check a candidate permutation of the operation `m` atom by atom (see the module notes);
+/// atoms beyond tol/2 take the lookup's answer. The largest image distance, or `None` when an
+/// atom has no image or two atoms share one.
+fn check(ctx: &Ctx, m: &Mat3, perm: &mut [u32]) -> Option<f64> {
+    let half2 = 0.25 * ctx.tol * ctx.tol;
+    let x = &ctx.x;
+    // Fast pass: the largest squared distance, or the first atom beyond tol/2.
+    let scan = |start: usize, chunk: &[u32]| -> (f64, Option<usize>) {
+        let mut worst = 0.0_f64;
+        for (k, &j) in chunk.iter().enumerate() {
+            let i = start + k;
+            let d2 = dist2(m, &x[i], &x[j as usize]);
+            if d2.is_nan() || d2 > half2 {
+                return (worst, Some(i));
+            }
+            worst = worst.max(d2);
+        }
+        (worst, None)
+    };
+    let n = perm.len();
+    let parts = parallel::map_chunks(n, PARALLEL_MIN_ATOMS, |range| {
+        scan(range.start, &perm[range])
+    });
+    let mut worst = 0.0_f64;
+    let mut slow = false;
+    for (w, stop) in parts {
+        worst = worst.max(w);
+        slow |= stop.is_some();
+    }
+    if !slow {
+        return Some(worst.sqrt());
+    }
+    // Some atom beyond tol/2: look up every such atom as the lookup would.
+    let grid = ctx.grid().ok()?;
+    let mut worst = 0.0_f64;
+    for (i, slot) in perm.iter_mut().enumerate() {
+        let d2 = dist2(m, &x[i], &x[*slot as usize]);
+        if d2 <= half2 {
+            worst = worst.max(d2.sqrt());
+            continue;
+        }
+        let (j, d) = grid.query_within(&mat_vec(m, &x[i]), ctx.species[i], ctx.tol)?;
+        *slot = j as u32;
+        worst = worst.max(d);
+    }
+    // Atoms within tol/2 of their images cannot share one; the others might.
+    let mut owner = vec![false; n];
+    for &j in perm.iter() {
+        if std::mem::replace(&mut owner[j as usize], true) {
+            return None;
+        }
+    }
+    Some(worst)
+}
+
+/// The permutation of one operation by nearest-atom lookup within tol and its largest image
+/// distance; `None` on failure. Small structures without a grid take each atom's nearest
+/// image by brute force, checked as any candidate permutation is.
+fn map_nearest(ctx: &Ctx, m: &Mat3) -> Option<(Vec<u32>, f64)> {
+    if let Some(mut perm) = ctx.brute_map(m) {
+        let d = check(ctx, m, &mut perm)?;
+        return Some((perm, d));
+    }
+    let grid = ctx.grid().ok()?;
+    map_atoms(grid, &ctx.x, ctx.species, m, ctx.tol).ok()
+}
