@@ -16,7 +16,7 @@ import numpy as np
 import pytest
 from _fd_hessians import benzene_field, fd_hessian, lj13, planar_ammonia, sf6, symmetric_noise
 from _force_field import benzene
-from _symmetry_helpers import TABLES
+from _symmetry_helpers import TABLES, closure
 from conftest import random_rotation
 from gammatrace.bases.matrices import representation_matrices
 from gammatrace.errors import SymmetryBreakingWarning
@@ -272,17 +272,7 @@ def test_linear_molecule_has_two_rotations_and_3n_minus_5_modes():
 
 
 def _orbit_structure(generators, seeds):
-    ops = [np.eye(3)]
-    frontier = [np.eye(3)]
-    while frontier:
-        new = []
-        for a in frontier:
-            for g in generators:
-                p = g @ a
-                if not any(np.abs(p - o).max() < 1e-8 for o in ops):
-                    ops.append(p)
-                    new.append(p)
-        frontier = new
+    ops = closure(generators)
     pos, num = [], []
     for z, point in seeds:
         imgs = []
