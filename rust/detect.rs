@@ -157,6 +157,8 @@ impl Ctx<'_> {
         if !self.brute() {
             return self.grid().ok()?.query_within(q, element, radius);
         }
+        // An atom within tol/2 is the nearest: no two atoms lie within tol of each other.
+        let sure = 0.25 * self.tol * self.tol;
         let mut best = (usize::MAX, radius * radius);
         for (j, p) in self.x.iter().enumerate() {
             if self.numbers[j] == element {
@@ -164,6 +166,9 @@ impl Ctx<'_> {
                 let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
                 if d2 <= best.1 {
                     best = (j, d2);
+                    if d2 <= sure {
+                        break;
+                    }
                 }
             }
         }
@@ -465,29 +470,21 @@ fn classes_from(class_of: &[usize]) -> Vec<Vec<usize>> {
 struct Windows {
     order: Vec<u32>,
     range: Vec<(u32, u32)>,
-    /// Position of each atom in `order`.
-    pos: Vec<u32>,
 }
 
 fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
     let n = r.len();
-    // One integer key per atom, (element, radius, index): radii are ≥ 0, so their bits sort
-    // as the numbers do, and elements are 1…118 (validated).
-    let mut keys: Vec<u128> = (0..n)
-        .map(|i| {
-            (u128::from(ctx.numbers[i] as u8) << 96)
-                | (u128::from(r[i].to_bits()) << 32)
-                | i as u128
-        })
-        .collect();
-    keys.sort_unstable();
-    let order: Vec<u32> = keys.iter().map(|&k| k as u32).collect();
+    let mut order: Vec<u32> = (0..n as u32).collect();
+    order.sort_unstable_by(|&i, &j| {
+        let (i, j) = (i as usize, j as usize);
+        ctx.numbers[i]
+            .cmp(&ctx.numbers[j])
+            .then(r[i].total_cmp(&r[j]))
+    });
     let mut range = vec![(0u32, 0u32); n];
-    let mut pos = vec![0u32; n];
     let (mut lo, mut hi) = (0usize, 0usize);
     for s in 0..n {
         let i = order[s] as usize;
-        pos[i] = s as u32;
         let (z, ri) = (ctx.numbers[i], r[i]);
         while lo < s {
             let j = order[lo] as usize;
@@ -508,7 +505,7 @@ fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
         }
         range[i] = (lo as u32, hi as u32 + 1);
     }
-    Windows { order, range, pos }
+    Windows { order, range }
 }
 
 /// Up to `k` evenly spread members of a slice.

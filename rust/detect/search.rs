@@ -19,10 +19,8 @@
 //!   operation that fails) repeats the search with the atom that failed screened first, then
 //!   with the full probe, and finally leaves the structure to the plain search.
 
-use super::canonical::{group_data, GroupData};
-use super::{
-    finish, frame, naming, pair_frame, sub, windows, Ctx, DetectOptions, RawOp, Symmetry, Windows,
-};
+use super::canonical::{group_data, Family, GroupData};
+use super::{finish, frame, naming, pair_frame, sub, Ctx, DetectOptions, RawOp, Symmetry};
 use crate::error::Error;
 use crate::ops::{
     cross, det, dot, mat_mul, mat_vec, norm, rotation_matrix, transpose, Mat3, PointOp, Vec3,
@@ -39,13 +37,17 @@ const B_CHOICES: usize = 64;
 /// The structure's group by the pruned search, or `None` to leave it to the plain search.
 pub(super) fn pruned(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Option<Symmetry> {
     let r: Vec<f64> = ctx.x.iter().map(norm).collect();
-    let win = windows(ctx, &r, 2.0 * ctx.tol);
-    let (a, b) = choose_pair(ctx, &r, &win)?;
+    if lone_pair_without_mirror(ctx, &r) {
+        let fr = frame::standard_frame(ctx, Family::C1, &[]).ok()?;
+        return finish(ctx, Family::C1, fr, center, opts).ok();
+    }
+    let sh = Shells::new(ctx.numbers, &r, 2.0 * ctx.tol);
+    let (a, b) = choose_pair(ctx, &sh)?;
     let mut extra: Vec<usize> = Vec::new();
     let mut full = false;
     for _ in 0..=MAX_RETRIES + 1 {
-        let probe = probe(ctx, &r, &win, a, b, &extra, full);
-        match attempt(ctx, &r, &win, a, b, &probe, center, opts) {
+        let probe = probe(ctx, &sh, a, b, &extra, full);
+        match attempt(ctx, &sh, a, b, &probe, center, opts) {
             Ok(sym) => return Some(sym),
             // An atom screened already that fails again: the structure is at the edge of
             // the tolerance, a case for the plain search.
@@ -58,28 +60,185 @@ pub(super) fn pruned(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Option<Sy
     None
 }
 
-fn size(win: &Windows, i: usize) -> usize {
-    (win.range[i].1 - win.range[i].0) as usize
+/// Atoms grouped by element and radius: bins of width at least the window width w, so that
+/// the atoms of an element within w of a radius lie in its bin and the two next to it
+/// (counting sort, O(n); at most 2n + 64 bins, wider ones for sparse radii).
+struct Shells<'a> {
+    r: &'a [f64],
+    w: f64,
+    width: f64,
+    /// Bins per element.
+    per: usize,
+    /// Bin of each atom: element block × `per` + radius bin.
+    bin: Vec<u32>,
+    /// Bin k holds `atoms[start[k]..start[k + 1]]`, ascending.
+    start: Vec<u32>,
+    atoms: Vec<u32>,
 }
 
-fn members(win: &Windows, i: usize) -> &[u32] {
-    &win.order[win.range[i].0 as usize..win.range[i].1 as usize]
+impl<'a> Shells<'a> {
+    fn new(numbers: &[i64], r: &'a [f64], w: f64) -> Self {
+        let n = r.len();
+        let mut block = [u32::MAX; 119];
+        let mut blocks = 0u32;
+        for &z in numbers {
+            let b = &mut block[z.clamp(0, 118) as usize];
+            if *b == u32::MAX {
+                *b = blocks;
+                blocks += 1;
+            }
+        }
+        let blocks = blocks.max(1) as usize;
+        let r_max = r.iter().copied().fold(0.0, f64::max);
+        let cap = ((2 * n + 64) / blocks).max(2);
+        let mut width = w;
+        if r_max / width >= (cap - 1) as f64 {
+            width = r_max / (cap - 1) as f64;
+        }
+        let per = (r_max / width) as usize + 1;
+        let bin: Vec<u32> = (0..n)
+            .map(|i| {
+                let k = ((r[i] / width) as usize).min(per - 1);
+                (block[numbers[i].clamp(0, 118) as usize] as usize * per + k) as u32
+            })
+            .collect();
+        let mut start = vec![0u32; blocks * per + 1];
+        for &k in &bin {
+            start[k as usize + 1] += 1;
+        }
+        for k in 1..start.len() {
+            start[k] += start[k - 1];
+        }
+        let mut fill = start.clone();
+        let mut atoms = vec![0u32; n];
+        for (i, &k) in bin.iter().enumerate() {
+            atoms[fill[k as usize] as usize] = i as u32;
+            fill[k as usize] += 1;
+        }
+        Shells {
+            r,
+            w,
+            width,
+            per,
+            bin,
+            start,
+            atoms,
+        }
+    }
+
+    /// The atoms of the bins that hold i's element within `radius` of its radius.
+    fn span(&self, i: usize, radius: f64) -> &[u32] {
+        let b = self.bin[i] as usize;
+        let base = b - b % self.per;
+        let lo = ((self.r[i] - radius).max(0.0) / self.width) as usize;
+        let hi = (((self.r[i] + radius) / self.width) as usize).min(self.per - 1);
+        &self.atoms[self.start[base + lo] as usize..self.start[base + hi + 1] as usize]
+    }
+
+    /// The window of atom i: atoms of its element whose radius is within w of its own.
+    fn window(&self, i: usize) -> Vec<u32> {
+        let ri = self.r[i];
+        self.span(i, self.w)
+            .iter()
+            .copied()
+            .filter(|&j| (self.r[j as usize] - ri).abs() <= self.w)
+            .collect()
+    }
+
+    /// Size of i's window: counted when its bins hold few atoms, else their number (the
+    /// size or a little more).
+    fn size(&self, i: usize) -> usize {
+        let span = self.span(i, self.w);
+        if span.len() > 16 {
+            return span.len();
+        }
+        let ri = self.r[i];
+        span.iter()
+            .filter(|&&j| (self.r[j as usize] - ri).abs() <= self.w)
+            .count()
+    }
+}
+
+/// The early exit for small structures without symmetry (up to 32 atoms, where the plain
+/// search's probe is every atom): reference atoms a and b, chosen as below, each alone in
+/// its window, so that every operation fixes both and can only be E or the mirror through
+/// the centre, a and b; and that mirror fails the screen at some atom.
+fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64]) -> bool {
+    let (x, n, w) = (&ctx.x, r.len(), 2.0 * ctx.tol);
+    if n > 32 {
+        return false;
+    }
+    // Alone: no other atom of its element within w of its radius (neighbours in the order
+    // of element and radius; radii are ≥ 0, so their bits sort as the numbers do).
+    let mut keys: Vec<u128> = (0..n)
+        .map(|i| {
+            (u128::from(ctx.numbers[i] as u8) << 96)
+                | (u128::from(r[i].to_bits()) << 32)
+                | i as u128
+        })
+        .collect();
+    keys.sort_unstable();
+    let mut alone = vec![true; n];
+    for pair in keys.windows(2) {
+        let (i, j) = (pair[0] as u32 as usize, pair[1] as u32 as usize);
+        if ctx.numbers[i] == ctx.numbers[j] && r[j] - r[i] <= w {
+            alone[i] = false;
+            alone[j] = false;
+        }
+    }
+    let r_max = r.iter().copied().fold(0.0, f64::max);
+    // a: the smallest window among the far atoms (1 when alone), then the largest radius.
+    let Some((_, a)) = (0..n)
+        .filter(|&i| alone[i] && r[i] >= 0.5 * r_max && r[i] > 0.0)
+        .map(|i| (u64::MAX - r[i].to_bits(), i))
+        .min()
+    else {
+        return false;
+    };
+    let ua = [x[a][0] / r[a], x[a][1] / r[a], x[a][2] / r[a]];
+    let perp: Vec<f64> = x
+        .iter()
+        .map(|p| {
+            let t = dot(p, &ua);
+            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
+        })
+        .collect();
+    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let Some((_, b)) = (0..n)
+        .filter(|&i| alone[i] && perp[i] >= 0.5 * d_max && perp[i] > 0.0)
+        .map(|i| (u64::MAX - perp[i].to_bits(), i))
+        .min()
+    else {
+        return false;
+    };
+    let Some(f) = pair_frame(&x[a], &x[b]) else {
+        return false;
+    };
+    let u = f[2];
+    // Atoms within 1.5·tol of the plane move by at most 3·tol: they pass.
+    x.iter().enumerate().any(|(i, p)| {
+        let t = dot(p, &u);
+        let q = [
+            p[0] - 2.0 * t * u[0],
+            p[1] - 2.0 * t * u[1],
+            p[2] - 2.0 * t * u[2],
+        ];
+        t.abs() > 1.5 * ctx.tol && ctx.nearest(&q, ctx.numbers[i], 3.0 * ctx.tol).is_none()
+    })
 }
 
 /// The reference atoms: a as in the plain search (smallest window among the atoms at ≥ half
 /// the largest radius); b among the atoms at ≥ half the largest distance from the line of a,
 /// the one with the fewest atoms of its window at its distance from a.
-fn choose_pair(ctx: &Ctx, r: &[f64], win: &Windows) -> Option<(usize, usize)> {
+fn choose_pair(ctx: &Ctx, sh: &Shells) -> Option<(usize, usize)> {
+    let r = sh.r;
     let n = r.len();
     let r_max = r.iter().copied().fold(0.0, f64::max);
     let a = (0..n)
         .filter(|&i| r[i] >= 0.5 * r_max && r[i] > 0.0)
-        .min_by(|&i, &j| {
-            size(win, i)
-                .cmp(&size(win, j))
-                .then(r[j].total_cmp(&r[i]))
-                .then(i.cmp(&j))
-        })?;
+        .map(|i| (sh.size(i), u64::MAX - r[i].to_bits(), i))
+        .min()?
+        .2;
     let ua = [ctx.x[a][0] / r[a], ctx.x[a][1] / r[a], ctx.x[a][2] / r[a]];
     let perp: Vec<f64> = ctx
         .x
@@ -96,7 +255,7 @@ fn choose_pair(ctx: &Ctx, r: &[f64], win: &Windows) -> Option<(usize, usize)> {
     // (window size, farthest from the line first, index) as one integer key.
     let mut eligible: Vec<(u32, u64, u32)> = eligible
         .into_iter()
-        .map(|i| (size(win, i) as u32, u64::MAX - perp[i].to_bits(), i as u32))
+        .map(|i| (sh.size(i) as u32, u64::MAX - perp[i].to_bits(), i as u32))
         .collect();
     if eligible.len() > B_CHOICES {
         eligible.select_nth_unstable(B_CHOICES - 1);
@@ -107,7 +266,7 @@ fn choose_pair(ctx: &Ctx, r: &[f64], win: &Windows) -> Option<(usize, usize)> {
     let band = 2.5 * ctx.tol;
     let multiplicity = |b: usize| -> usize {
         let d_ab = norm(&sub(&ctx.x[a], &ctx.x[b]));
-        members(win, b)
+        sh.window(b)
             .iter()
             .filter(|&&j| (norm(&sub(&ctx.x[a], &ctx.x[j as usize])) - d_ab).abs() <= band)
             .count()
@@ -127,19 +286,13 @@ fn choose_pair(ctx: &Ctx, r: &[f64], win: &Windows) -> Option<(usize, usize)> {
 
 /// Probe atoms in screening order: atoms that failed before, then far atoms of the plain
 /// search's probe (the first `SHORT_PROBE` of them unless `full`), then a and b.
-fn probe(
-    ctx: &Ctx,
-    r: &[f64],
-    win: &Windows,
-    a: usize,
-    b: usize,
-    extra: &[usize],
-    full: bool,
-) -> Vec<usize> {
+fn probe(ctx: &Ctx, sh: &Shells, a: usize, b: usize, extra: &[usize], full: bool) -> Vec<usize> {
+    let r = sh.r;
     let n = ctx.x.len();
     let all: Vec<u32> = (0..n as u32).collect();
-    let pool: Vec<usize> = super::spread(members(win, a), 16)
-        .chain(super::spread(members(win, b), 16))
+    let (wa, wb) = (sh.window(a), sh.window(b));
+    let pool: Vec<usize> = super::spread(&wa, 16)
+        .chain(super::spread(&wb, 16))
         .chain(super::spread(&all, 32))
         .filter(|&i| i != a && i != b && !extra.contains(&i))
         .collect();
@@ -155,7 +308,7 @@ fn probe(
     let mut ranked: Vec<(u32, u32)> = keyed
         .iter()
         .map(|&(_, i)| {
-            let w = win.range[i as usize].0;
+            let w = sh.bin[i as usize];
             let rank = match seen.iter_mut().find(|(v, _)| *v == w) {
                 Some((_, c)) => {
                     *c += 1;
@@ -181,42 +334,27 @@ fn probe(
     out
 }
 
-/// Nearest atom of `element` within `radius` of `q`, where `q` is an image of atom `i` (so
-/// at its radius): the atoms of i's element within `radius` of its radius, from the sorted
-/// windows when they are few, else the grid (or brute force).
-fn nearest_image(
-    ctx: &Ctx,
-    r: &[f64],
-    win: &Windows,
-    i: usize,
-    q: &Vec3,
-    radius: f64,
-) -> Option<(usize, f64)> {
-    const FEW: usize = 12;
-    let z = ctx.numbers[i];
-    let p = win.pos[i] as usize;
-    let same = |s: usize| {
-        let j = win.order[s] as usize;
-        ctx.numbers[j] == z && (r[j] - r[i]).abs() <= radius
-    };
-    let mut lo = p;
-    while lo > 0 && p - lo < FEW && same(lo - 1) {
-        lo -= 1;
+/// Nearest atom of i's element within `radius` of `q`, an image of atom i (so at its
+/// radius): a scan of the atoms of its shells when they are few, else the grid (or brute
+/// force).
+fn nearest_image(ctx: &Ctx, sh: &Shells, i: usize, q: &Vec3, radius: f64) -> Option<(usize, f64)> {
+    const FEW: usize = 16;
+    let span = sh.span(i, radius);
+    if span.len() > FEW {
+        return ctx.nearest(q, ctx.numbers[i], radius);
     }
-    let mut hi = p + 1;
-    while hi < win.order.len() && hi - lo < 2 * FEW && same(hi) {
-        hi += 1;
-    }
-    if (lo > 0 && same(lo - 1)) || (hi < win.order.len() && same(hi)) {
-        return ctx.nearest(q, z, radius);
-    }
+    // An atom within tol/2 is the nearest: no two atoms lie within tol of each other.
+    let sure = 0.25 * ctx.tol * ctx.tol;
     let mut best = (usize::MAX, radius * radius);
-    for &j in &win.order[lo..hi] {
+    for &j in span {
         let x = &ctx.x[j as usize];
         let d = [x[0] - q[0], x[1] - q[1], x[2] - q[2]];
         let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
         if d2 <= best.1 {
             best = (j as usize, d2);
+            if d2 <= sure {
+                break;
+            }
         }
     }
     (best.0 != usize::MAX).then(|| (best.0, best.1.sqrt()))
@@ -224,11 +362,9 @@ fn nearest_image(
 
 /// One pass of the pruned search: `Err(Some(atom))` when verification failed at an atom,
 /// `Err(None)` for any other reason.
-#[allow(clippy::too_many_arguments)]
 fn attempt(
     ctx: &Ctx,
-    r: &[f64],
-    win: &Windows,
+    sh: &Shells,
     a: usize,
     b: usize,
     probe: &[usize],
@@ -240,14 +376,24 @@ fn attempt(
     let ref_frame = pair_frame(&x[a], &x[b]).ok_or(None)?;
     let d_ab = norm(&sub(&x[a], &x[b]));
     let radius = 3.0 * tol;
-    let (wa, wb) = (members(win, a), members(win, b));
+    let (wa, wb) = (sh.window(a), sh.window(b));
     // Operations are keyed by the images of a and b (members of their windows) and their
     // handedness: slot of (ia, ib, proper) in a dense table.
-    let (ra, rb) = (win.range[a].0 as usize, win.range[b].0 as usize);
+    let place = |w: &[u32]| {
+        let mut v: Vec<(u32, u32)> = w.iter().enumerate().map(|(k, &j)| (j, k as u32)).collect();
+        v.sort_unstable();
+        v
+    };
+    let (pa, pb) = (place(&wa), place(&wb));
+    let find = |v: &[(u32, u32)], j: usize| -> Option<usize> {
+        let k = v
+            .binary_search_by_key(&(j as u32), |&(atom, _)| atom)
+            .ok()?;
+        Some(v[k].1 as usize)
+    };
     let slot = |ia: usize, ib: usize, proper: bool| -> Option<usize> {
-        let (pa, pb) = (win.pos[ia] as usize, win.pos[ib] as usize);
-        let (ka, kb) = (pa.checked_sub(ra)?, pb.checked_sub(rb)?);
-        (ka < wa.len() && kb < wb.len()).then(|| 2 * (ka * wb.len() + kb) + usize::from(proper))
+        let (ka, kb) = (find(&pa, ia)?, find(&pb, ib)?);
+        Some(2 * (ka * wb.len() + kb) + usize::from(proper))
     };
     let mut seen: Vec<u32> = vec![u32::MAX; 2 * wa.len() * wb.len()];
     let mut found: Vec<RawOp> = Vec::new();
@@ -259,7 +405,7 @@ fn attempt(
         let mut worst = 0.0_f64;
         for &i in probe {
             let q = mat_vec(m, &x[i]);
-            let (j, d) = nearest_image(ctx, r, win, i, &q, radius)?;
+            let (j, d) = nearest_image(ctx, sh, i, &q, radius)?;
             worst = worst.max(d);
             if i == a {
                 ia = j;
@@ -277,9 +423,9 @@ fn attempt(
             order: 0,
         })
     };
-    for &ap in wa {
+    for &ap in &wa {
         let ap = ap as usize;
-        for &bp in wb {
+        for &bp in &wb {
             let bp = bp as usize;
             if ap == bp {
                 continue;
@@ -337,9 +483,10 @@ fn attempt(
         return Err(None);
     }
     let mut fr = frame::standard_frame(ctx, fam, &found).map_err(|_| None)?;
-    // Exact candidates give an exact frame; otherwise fit it to the atoms.
-    if slack > 1e-9 * tol {
-        fr = refine_frame(ctx, r, win, fr, &data).ok_or(None)?;
+    // Candidates within tol/100 of their images give a frame good to about that much;
+    // otherwise fit it to the atoms.
+    if slack > 0.01 * tol {
+        fr = refine_frame(ctx, sh, fr, &data).ok_or(None)?;
     }
     let sym = finish(ctx, fam, fr, center, opts).map_err(|e| match e {
         Error::NotASymmetry { atom, .. } => Some(atom),
@@ -378,29 +525,34 @@ fn attempt(
 /// The frame rotated by a least-squares step (twice) so that the group's ideal generators
 /// map the atoms onto their images as closely as possible: for a small rotation ω of the
 /// frame an ideal operation M becomes M + [ω]×M − M[ω]×, which moves the image y = M·x by
-/// −[y]×(1 − det(M)·M)·ω. Images are found once, within 3·tol.
-fn refine_frame(ctx: &Ctx, r: &[f64], win: &Windows, fr: Mat3, data: &GroupData) -> Option<Mat3> {
+/// −[y]×(1 − det(M)·M)·ω. Images are found once, within 3·tol, for all atoms or (large
+/// structures) an evenly spread sample of `REFINE_SAMPLE`.
+fn refine_frame(ctx: &Ctx, sh: &Shells, fr: Mat3, data: &GroupData) -> Option<Mat3> {
+    const REFINE_SAMPLE: usize = 4096;
     let x = &ctx.x;
+    let all: Vec<u32> = (0..x.len() as u32).collect();
+    let atoms: Vec<usize> = super::spread(&all, REFINE_SAMPLE).collect();
     let mut fr = fr;
     let ideal = |fr: &Mat3, g: usize| mat_mul(&transpose(fr), &mat_mul(&data.ops[g], fr));
     let mut images: Vec<Vec<u32>> = Vec::with_capacity(data.generators.len());
     for &g in &data.generators {
         let m = ideal(&fr, g);
-        let perm = (0..x.len())
-            .map(|i| {
-                nearest_image(ctx, r, win, i, &mat_vec(&m, &x[i]), 3.0 * ctx.tol)
-                    .map(|(j, _)| j as u32)
+        let perm = atoms
+            .iter()
+            .map(|&i| {
+                nearest_image(ctx, sh, i, &mat_vec(&m, &x[i]), 3.0 * ctx.tol).map(|(j, _)| j as u32)
             })
             .collect::<Option<Vec<u32>>>()?;
         images.push(perm);
     }
     // Σ (|x|² 1 − x xᵀ): rotated by M it is the same sum over the images y = M·x.
     let mut s0 = [[0.0; 3]; 3];
-    for p in x {
+    for &i in &atoms {
+        let p = &x[i];
         let p2 = dot(p, p);
-        for i in 0..3 {
-            for j in 0..3 {
-                s0[i][j] += if i == j { p2 } else { 0.0 } - p[i] * p[j];
+        for a in 0..3 {
+            for b in 0..3 {
+                s0[a][b] += if a == b { p2 } else { 0.0 } - p[a] * p[b];
             }
         }
     }
@@ -418,7 +570,7 @@ fn refine_frame(ctx: &Ctx, r: &[f64], win: &Windows, fr: Mat3, data: &GroupData)
             }
             let sy = mat_mul(&m, &mat_mul(&s0, &transpose(&m)));
             let mut c = [0.0; 3];
-            for (i, &j) in perm.iter().enumerate() {
+            for (&i, &j) in atoms.iter().zip(perm) {
                 let w = cross(&mat_vec(&m, &x[i]), &x[j as usize]);
                 c = [c[0] + w[0], c[1] + w[1], c[2] + w[2]];
             }

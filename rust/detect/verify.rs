@@ -103,13 +103,17 @@ fn composed(
                 continue;
             }
             let (g, j) = data.words[k];
-            let (pg, pj) = (&perms[g], &perms[j]);
-            let mut perm: Vec<u32> = pj.iter().map(|&t| pg[t as usize]).collect();
+            let mut perm = compose(&perms[g], &perms[j]);
             dev = dev.max(check(ctx, &ops[k].matrix, &mut perm)?);
             perms[k] = perm;
         }
     }
     Some((perms, dev))
+}
+
+/// π_g ∘ π_j: atom i goes to π_g(π_j(i)).
+fn compose(pg: &[u32], pj: &[u32]) -> Vec<u32> {
+    pj.iter().map(|&t| pg[t as usize]).collect()
 }
 
 /// Squared distance from R·x_i to atom j, as the lookup measures it.
