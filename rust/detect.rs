@@ -3,7 +3,8 @@
 //! Algorithm (all steps rest on operations verified against the atoms, never on inertia
 //! alone):
 //!
-//! 1. Validate; centre on the centre of mass; build the cell grid; reject overlapping atoms.
+//! 1. Validate; centre on the centre of mass; build the cell grid (up to
+//!    `BRUTE_FORCE_MAX` atoms: only when a lookup needs it); reject overlapping atoms.
 //! 2. One atom → K_h, reported through C_M × Ci (M = `linear_n`). Atoms all within tol/2 of one line through the centre (the axis of
 //!    least inertia) → C∞v or D∞h, reported through C_Mv / D_Md (M = `linear_n`).
 //! 3. Otherwise enumerate the whole group directly. Pick a reference atom `a` (among atoms at
@@ -15,7 +16,11 @@
 //!    A candidate is tested on a small probe of atoms with a loose tolerance (3·tol), refitted
 //!    by least squares (Kabsch) on the matches, tested on all atoms (a fixed sample of 1024
 //!    plus the two windows for structures above 4096 atoms) at `tol`, and refitted again.
-//!    Nothing limits n.
+//!    Nothing limits n. This plain search runs only when the pruned search (search.rs)
+//!    gives up: the same reference-atom idea with a second atom whose distance to a is rare
+//!    in its window (|W(a)| · k · 2 candidates), screened on a short probe and accepted
+//!    only when the verified group is exactly the screened set; it starts with an early
+//!    exit for small structures without symmetry.
 //! 4. The operations found must close under multiplication (checked exactly through the
 //!    images of a and b); the group is named from its content (orders of the rotations, number
 //!    of axes of order ≥ 3, σh, mirrors, inversion) by `naming::name_group`, the namer that
@@ -25,7 +30,9 @@
 //!    group's ideal operations in that frame, rotated back to the input frame, so they form a
 //!    group exactly. They are verified against the atoms (all of them when
 //!    n_atoms·order ≤ `verify_all_limit`, otherwise E and the generators), giving the
-//!    permutations and `max_deviation`.
+//!    permutations and `max_deviation`: the generators by lookup, every other operation
+//!    through the permutation composed along its word in the generators, checked atom by
+//!    atom (verify.rs; the same permutations as a lookup per atom would give).
 //! 6. If an ideal operation fails verification at some atom (a defect outside the screening
 //!    sample), steps 3–5 are repeated with that atom screened first (up to 16 such atoms).
 //!    Any other failure while screening on a sample repeats them screening on all atoms; after
@@ -223,6 +230,27 @@ pub fn find_point_group(
     numbers: &[i64],
     opts: &DetectOptions,
 ) -> Result<Symmetry> {
+    detect(positions, numbers, opts, Search::PrunedThenPlain)
+}
+
+/// Which searches [`detect`] runs for structures that are neither atoms nor linear.
+#[derive(Clone, Copy, PartialEq)]
+#[cfg_attr(not(test), allow(dead_code))]
+enum Search {
+    /// The pruned search, then the plain one if it gives up: what [`find_point_group`] does.
+    PrunedThenPlain,
+    /// The plain search alone (the reference the pruned search is tested against).
+    Plain,
+    /// The pruned search alone; `GroupClosure` where it gives up (for tests).
+    Pruned,
+}
+
+fn detect(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    opts: &DetectOptions,
+    search: Search,
+) -> Result<Symmetry> {
     structure::validate(positions, numbers)?;
     let tol = opts.tol;
     if !(tol.is_finite() && tol > 0.0) {
@@ -281,9 +309,23 @@ pub fn find_point_group(
             }
         }
     }
+    if search == Search::Plain {
+        return plain_search(&ctx, center, opts);
+    }
     if let Some(sym) = search::pruned(&ctx, center, opts) {
         return Ok(sym);
     }
+    if search == Search::Pruned {
+        return Err(Error::GroupClosure {
+            reason: "the pruned search gave up".into(),
+        });
+    }
+    plain_search(&ctx, center, opts)
+}
+
+/// The plain search with its retries (module doc, steps 3–6).
+fn plain_search(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Result<Symmetry> {
+    let positions = &ctx.x;
     let mut last = Error::GroupClosure {
         reason: "no candidate operations".into(),
     };
@@ -297,7 +339,7 @@ pub fn find_point_group(
     let factors = [1.0, 0.85, 0.7];
     let mut f = 0;
     while f < factors.len() {
-        match detect_general(&ctx, factors[f], &extra, sampled, center, opts) {
+        match detect_general(ctx, factors[f], &extra, sampled, center, opts) {
             Ok(sym) => return Ok(sym),
             Err(Error::NotASymmetry { atom, distance })
                 if extra.len() < MAX_EXTRA && !extra.contains(&atom) =>
