@@ -1,34 +1,39 @@
 //! The pruned search (step 3 of the module doc, first attempt): the operations found from
-//! the fewest candidate pairs, screened on a short probe, the group named from them and then
+//! the fewest candidate pairs, few of them screened, the group named from them and then
 //! checked as a whole.
 //!
 //! - The second reference atom b is the one whose distance to a is rarest among the atoms
 //!   of its window: an operation sending a to a' sends b to an atom at |ab| from a', so the
 //!   candidates number |W(a)| · k · 2 with k that multiplicity (k = 1 for C60: 120
 //!   candidates, every one a symmetry; the plain search tries 60 · 60 pairs).
-//! - Candidates are screened on a short probe (a subset of the plain search's probe, far
-//!   atoms first, so wrong candidates fail at their first or second atom) and are not
-//!   refitted or tested on all atoms one by one: orders come from the rotation angles, the
-//!   group is named and put in its standard frame from them, and only the group's ideal
-//!   operations are verified against all atoms ([`super::finish`]).
-//! - The answer is accepted only when the verified group is exactly the set of screened
-//!   candidates, matched by the images of a and b. Every true operation passes the probe
-//!   (it passes the larger probe of the plain search), so the screened set holds all of
-//!   them; a verified group equal to it is the structure's whole group. Anything else (a
-//!   false candidate that passed the probe, a name or frame that cannot be built, an
-//!   operation that fails) repeats the search with the atom that failed screened first, then
-//!   with the full probe, and finally leaves the structure to the plain search.
+//! - A candidate is screened on a short probe (atoms of the plain search's probe, one per
+//!   radius band before the second of any, far ones first: wrong candidates fail at their
+//!   first atoms), refitted to it, and must give the atoms of both windows images. One that
+//!   passes becomes a generator: the images of the windows give every product with it
+//!   without a lookup, and the candidates that are products already are never screened.
+//!   Orders come from those products too; the group is named and put in its standard frame
+//!   from them, and only the group's ideal operations are verified against all atoms
+//!   ([`super::finish`]; the frame is fitted to the atoms first when that fails).
+//! - The answer is accepted only when the verified group is exactly the set found, matched
+//!   by the images of a and b. Every true operation passes the screen (its probe is part of
+//!   the plain search's), so that set holds all of them; a verified group equal to it is the
+//!   structure's whole group. Anything else (a false candidate that passed the probe, a name
+//!   or frame that cannot be built, an operation that fails) repeats the search with the
+//!   atom that failed screened first, then with the full probe, and finally leaves the
+//!   structure to the plain search.
+//! - Small structures without symmetry exit before all this: see
+//!   [`lone_pair_without_mirror`].
 
 use super::canonical::{group_data, Family, GroupData};
 use super::{finish, frame, naming, pair_frame, sub, Ctx, DetectOptions, RawOp, Symmetry};
 use crate::error::Error;
 use crate::ops::{
-    cross, det, dot, mat_mul, mat_vec, norm, rotation_matrix, transpose, Mat3, PointOp, Vec3,
-    IDENTITY,
+    cross, det, dot, fit_orthogonal, mat_mul, mat_vec, norm, rotation_matrix, transpose, Mat3,
+    PointOp, Vec3, IDENTITY,
 };
 
 /// Probe atoms screened by the first attempt (besides a, b and atoms that failed before).
-const SHORT_PROBE: usize = 12;
+const SHORT_PROBE: usize = 8;
 /// Atoms that failed verification, screened first on the next attempt, at most.
 const MAX_RETRIES: usize = 4;
 /// Second reference atoms whose multiplicity is measured, at most.
@@ -66,7 +71,8 @@ pub(super) fn pruned(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Option<Sy
 struct Shells<'a> {
     r: &'a [f64],
     w: f64,
-    width: f64,
+    /// 1 / bin width.
+    inv: f64,
     /// Bins per element.
     per: usize,
     /// Bin of each atom: element block × `per` + radius bin.
@@ -95,10 +101,11 @@ impl<'a> Shells<'a> {
         if r_max / width >= (cap - 1) as f64 {
             width = r_max / (cap - 1) as f64;
         }
-        let per = (r_max / width) as usize + 1;
+        let inv = 1.0 / width;
+        let per = (r_max * inv) as usize + 1;
         let bin: Vec<u32> = (0..n)
             .map(|i| {
-                let k = ((r[i] / width) as usize).min(per - 1);
+                let k = ((r[i] * inv) as usize).min(per - 1);
                 (block[numbers[i].clamp(0, 118) as usize] as usize * per + k) as u32
             })
             .collect();
@@ -118,7 +125,7 @@ impl<'a> Shells<'a> {
         Shells {
             r,
             w,
-            width,
+            inv,
             per,
             bin,
             start,
@@ -130,8 +137,8 @@ impl<'a> Shells<'a> {
     fn span(&self, i: usize, radius: f64) -> &[u32] {
         let b = self.bin[i] as usize;
         let base = b - b % self.per;
-        let lo = ((self.r[i] - radius).max(0.0) / self.width) as usize;
-        let hi = (((self.r[i] + radius) / self.width) as usize).min(self.per - 1);
+        let lo = ((self.r[i] - radius).max(0.0) * self.inv) as usize;
+        let hi = (((self.r[i] + radius) * self.inv) as usize).min(self.per - 1);
         &self.atoms[self.start[base + lo] as usize..self.start[base + hi + 1] as usize]
     }
 
@@ -285,16 +292,16 @@ fn choose_pair(ctx: &Ctx, sh: &Shells) -> Option<(usize, usize)> {
 }
 
 /// Probe atoms in screening order: atoms that failed before, then far atoms of the plain
-/// search's probe (the first `SHORT_PROBE` of them unless `full`), then a and b.
+/// search's probe outside the windows of a and b (which are screened in full), the first
+/// `SHORT_PROBE` of them unless `full`.
 fn probe(ctx: &Ctx, sh: &Shells, a: usize, b: usize, extra: &[usize], full: bool) -> Vec<usize> {
     let r = sh.r;
     let n = ctx.x.len();
     let all: Vec<u32> = (0..n as u32).collect();
     let (wa, wb) = (sh.window(a), sh.window(b));
-    let pool: Vec<usize> = super::spread(&wa, 16)
-        .chain(super::spread(&wb, 16))
-        .chain(super::spread(&all, 32))
-        .filter(|&i| i != a && i != b && !extra.contains(&i))
+    let pool: Vec<usize> = super::spread(&all, 32)
+        .filter(|&i| !wa.contains(&(i as u32)) && !wb.contains(&(i as u32)))
+        .filter(|i| !extra.contains(i))
         .collect();
     // Far atoms first (radii are ≥ 0: their bits sort as the numbers do), one per window
     // before the second of any: atoms of one shell may share symmetries the rest lacks.
@@ -329,19 +336,19 @@ fn probe(ctx: &Ctx, sh: &Shells, a: usize, b: usize, extra: &[usize], full: bool
     }
     let mut out: Vec<usize> = extra.to_vec();
     out.extend(pool);
-    out.push(a);
-    out.push(b);
     out
 }
 
 /// Nearest atom of i's element within `radius` of `q`, an image of atom i (so at its
-/// radius): a scan of the atoms of its shells when they are few, else the grid (or brute
+/// radius), with its squared distance: a scan of the atoms of its shells when they are few, else the grid (or brute
 /// force).
 fn nearest_image(ctx: &Ctx, sh: &Shells, i: usize, q: &Vec3, radius: f64) -> Option<(usize, f64)> {
     const FEW: usize = 16;
     let span = sh.span(i, radius);
     if span.len() > FEW {
-        return ctx.nearest(q, ctx.numbers[i], radius);
+        return ctx
+            .nearest(q, ctx.numbers[i], radius)
+            .map(|(j, d)| (j, d * d));
     }
     // An atom within tol/2 is the nearest: no two atoms lie within tol of each other.
     let sure = 0.25 * ctx.tol * ctx.tol;
@@ -357,7 +364,7 @@ fn nearest_image(ctx: &Ctx, sh: &Shells, i: usize, q: &Vec3, radius: f64) -> Opt
             }
         }
     }
-    (best.0 != usize::MAX).then(|| (best.0, best.1.sqrt()))
+    (best.0 != usize::MAX).then_some(best)
 }
 
 /// One pass of the pruned search: `Err(Some(atom))` when verification failed at an atom,
@@ -377,98 +384,206 @@ fn attempt(
     let d_ab = norm(&sub(&x[a], &x[b]));
     let radius = 3.0 * tol;
     let (wa, wb) = (sh.window(a), sh.window(b));
-    // Operations are keyed by the images of a and b (members of their windows) and their
-    // handedness: slot of (ia, ib, proper) in a dense table.
+    let (na, nb) = (wa.len(), wb.len());
+    // Position of an atom in a window.
     let place = |w: &[u32]| {
         let mut v: Vec<(u32, u32)> = w.iter().enumerate().map(|(k, &j)| (j, k as u32)).collect();
         v.sort_unstable();
         v
     };
-    let (pa, pb) = (place(&wa), place(&wb));
+    let (pla, plb) = (place(&wa), place(&wb));
     let find = |v: &[(u32, u32)], j: usize| -> Option<usize> {
         let k = v
             .binary_search_by_key(&(j as u32), |&(atom, _)| atom)
             .ok()?;
         Some(v[k].1 as usize)
     };
-    let slot = |ia: usize, ib: usize, proper: bool| -> Option<usize> {
-        let (ka, kb) = (find(&pa, ia)?, find(&pb, ib)?);
-        Some(2 * (ka * wb.len() + kb) + usize::from(proper))
+    let (ka0, kb0) = (find(&pla, a).ok_or(None)?, find(&plb, b).ok_or(None)?);
+    // An operation is known by the images of a and b (positions in their windows) and its
+    // handedness: its slot in a dense table. A generator keeps the images of every atom of
+    // both windows (positions in the same window, W(a) then W(b); `OUT` for an image outside
+    // it: a window is a band of radii, not an orbit), so a generator times any element needs
+    // no lookup; every other element is a generator times an element found before it.
+    const OUT: u32 = u32::MAX;
+    let slot = |ka: u32, kb: u32, proper: bool| -> Option<usize> {
+        (ka != OUT && kb != OUT).then(|| 2 * (ka as usize * nb + kb as usize) + usize::from(proper))
     };
-    let mut seen: Vec<u32> = vec![u32::MAX; 2 * wa.len() * wb.len()];
-    let mut found: Vec<RawOp> = Vec::new();
-    // Largest probe residual: over the lever arm of a (≥ half the largest radius), a bound
-    // on the candidates' angular error.
+    struct Element {
+        m: Mat3,
+        proper: bool,
+        /// Images of a and b (positions in their windows).
+        ka: u32,
+        kb: u32,
+        /// (generator, element) whose product this is; `None` for E and the generators.
+        parent: Option<(usize, usize)>,
+        /// Generators: the images of both windows.
+        img: Vec<u32>,
+    }
+    let mut index: Vec<u32> = vec![u32::MAX; 2 * na * nb];
+    let mut els: Vec<Element> = vec![Element {
+        m: IDENTITY,
+        proper: true,
+        ka: ka0 as u32,
+        kb: kb0 as u32,
+        parent: None,
+        img: Vec::new(),
+    }];
+    let identity = slot(ka0 as u32, kb0 as u32, true).ok_or(None)?;
+    index[identity] = 0;
+    let mut gens: Vec<usize> = Vec::new();
+    // Largest screening residual: whether the frame needs a fit to the atoms.
     let mut slack = 0.0_f64;
-    let mut screen = |m: &Mat3, proper: bool| -> Option<RawOp> {
-        let (mut ia, mut ib) = (usize::MAX, usize::MAX);
+    // A candidate passes when every probe atom and every atom of both windows has an image
+    // within 3·tol (the windows' images are kept where they lie in the same window); it is
+    // then refitted to those images (least squares).
+    let screen = |m: &mut Mat3, proper: bool, slack: &mut f64| -> Option<Vec<u32>> {
         let mut worst = 0.0_f64;
+        let mut h = [[0.0; 3]; 3];
         for &i in probe {
-            let q = mat_vec(m, &x[i]);
-            let (j, d) = nearest_image(ctx, sh, i, &q, radius)?;
-            worst = worst.max(d);
-            if i == a {
-                ia = j;
-            } else if i == b {
-                ib = j;
+            let (j, d2) = nearest_image(ctx, sh, i, &mat_vec(m, &x[i]), radius)?;
+            worst = worst.max(d2);
+            super::add_outer(&mut h, &x[i], &x[j]);
+        }
+        let mut img = Vec::with_capacity(na + nb);
+        for (w, pl) in [(&wa, &pla), (&wb, &plb)] {
+            for &i in w.iter() {
+                let i = i as usize;
+                let (j, d2) = nearest_image(ctx, sh, i, &mat_vec(m, &x[i]), radius)?;
+                worst = worst.max(d2);
+                super::add_outer(&mut h, &x[i], &x[j]);
+                img.push(find(pl, j).map_or(OUT, |k| k as u32));
             }
         }
-        slack = slack.max(worst);
-        Some(RawOp {
-            m: *m,
-            proper,
-            ia,
-            ib,
-            op: PointOp::from_matrix(*m),
-            order: 0,
-        })
+        if worst > 1e-20 * tol * tol {
+            *m = fit_orthogonal(&h, proper);
+        }
+        *slack = slack.max(worst.sqrt());
+        Some(img)
     };
-    for &ap in &wa {
+    for (kap, &ap) in wa.iter().enumerate() {
         let ap = ap as usize;
-        for &bp in &wb {
+        for (kbp, &bp) in wb.iter().enumerate() {
             let bp = bp as usize;
-            if ap == bp {
-                continue;
-            }
-            if (norm(&sub(&x[ap], &x[bp])) - d_ab).abs() > 2.5 * tol {
+            if ap == bp || (norm(&sub(&x[ap], &x[bp])) - d_ab).abs() > 2.5 * tol {
                 continue;
             }
             let Some(img_frame) = pair_frame(&x[ap], &x[bp]) else {
                 continue;
             };
             for proper in [true, false] {
-                let op = if ap == a && bp == b && proper {
-                    Some(RawOp {
-                        m: IDENTITY,
-                        proper,
-                        ia: a,
-                        ib: b,
-                        op: PointOp::from_matrix(IDENTITY),
-                        order: 1,
-                    })
-                } else {
-                    let mut f = img_frame;
-                    if !proper {
-                        f[2] = [-f[2][0], -f[2][1], -f[2][2]];
-                    }
-                    screen(&mat_mul(&transpose(&f), &ref_frame), proper)
+                if slot(kap as u32, kbp as u32, proper).is_some_and(|k| index[k] != u32::MAX) {
+                    continue; // a product of operations found already
+                }
+                let mut f = img_frame;
+                if !proper {
+                    f[2] = [-f[2][0], -f[2][1], -f[2][2]];
+                }
+                let mut m = mat_mul(&transpose(&f), &ref_frame);
+                let Some(img) = screen(&mut m, proper, &mut slack) else {
+                    continue;
                 };
-                if let Some(op) = op {
-                    let k = slot(op.ia, op.ib, op.proper).ok_or(None)?;
-                    if seen[k] == u32::MAX {
-                        seen[k] = found.len() as u32;
-                        found.push(op);
+                let (ka, kb) = (img[ka0], img[na + kb0]);
+                let Some(k) = slot(ka, kb, proper) else {
+                    continue;
+                };
+                if index[k] != u32::MAX {
+                    continue;
+                }
+                let new = els.len();
+                index[k] = new as u32;
+                gens.push(new);
+                els.push(Element {
+                    m,
+                    proper,
+                    ka,
+                    kb,
+                    parent: None,
+                    img,
+                });
+                // Close under the generators: the elements found so far times the new
+                // generator, new elements times every generator.
+                let mut queue: std::collections::VecDeque<(usize, bool)> =
+                    (0..els.len()).map(|q| (q, false)).collect();
+                while let Some((q, every)) = queue.pop_front() {
+                    let by: &[usize] = if every { &gens } else { &[new] };
+                    for &g in by {
+                        let (eg, eq) = (&els[g], &els[q]);
+                        let (ka, kb) = match (eq.ka, eq.kb) {
+                            (OUT, _) | (_, OUT) => (OUT, OUT),
+                            (ka, kb) => (eg.img[ka as usize], eg.img[na + kb as usize]),
+                        };
+                        let proper = eg.proper == eq.proper;
+                        let k = slot(ka, kb, proper).ok_or(None)?;
+                        if index[k] == u32::MAX {
+                            let m = mat_mul(&eg.m, &eq.m);
+                            index[k] = els.len() as u32;
+                            queue.push_back((els.len(), true));
+                            els.push(Element {
+                                m,
+                                proper,
+                                ka,
+                                kb,
+                                parent: Some((g, q)),
+                                img: Vec::new(),
+                            });
+                        }
                     }
                 }
             }
         }
     }
-    let h = found.len();
-    // Orders from the angles, to within the candidates' accuracy (generous: a wrong order
-    // only makes the group fail its checks below).
-    let angle_tol = (8.0 * slack / (0.5 * norm(&x[a]))).to_degrees().max(1e-7);
-    for o in &mut found {
-        o.order = o.op.order_within(h.max(1), angle_tol).ok_or(None)?;
+    let h = els.len();
+    // Orders from the products: the smallest k with eᵏ = E. Left multiplication by each
+    // generator as a table; e·x is then x multiplied by the generators of e's chain.
+    let ng = gens.len();
+    let mut times: Vec<u32> = vec![0; h * ng];
+    for (q, eq) in els.iter().enumerate() {
+        for (gi, &g) in gens.iter().enumerate() {
+            let eg = &els[g];
+            let (ka, kb) = match (eq.ka, eq.kb) {
+                (OUT, _) | (_, OUT) => (OUT, OUT),
+                (ka, kb) => (eg.img[ka as usize], eg.img[na + kb as usize]),
+            };
+            let k = slot(ka, kb, eg.proper == eq.proper).ok_or(None)?;
+            if index[k] == u32::MAX {
+                return Err(None);
+            }
+            times[q * ng + gi] = index[k];
+        }
+    }
+    let gen_no = |g: usize| gens.iter().position(|&x| x == g).unwrap_or(0);
+    let mut found: Vec<RawOp> = Vec::with_capacity(h);
+    let mut chain: Vec<usize> = Vec::new();
+    for (e, el) in els.iter().enumerate() {
+        // e = g1·g2·…·gd (E or a generator last).
+        chain.clear();
+        let mut root = e;
+        while let Some((g, q)) = els[root].parent {
+            chain.push(gen_no(g));
+            root = q;
+        }
+        if root != 0 {
+            chain.push(gen_no(root));
+        }
+        let mut power = e;
+        let mut order = 1;
+        while power != 0 {
+            for &gi in chain.iter().rev() {
+                power = times[power * ng + gi] as usize;
+            }
+            order += 1;
+            if order > h {
+                return Err(None);
+            }
+        }
+        found.push(RawOp {
+            m: el.m,
+            proper: el.proper,
+            ia: wa[el.ka as usize] as usize,
+            ib: wb[el.kb as usize] as usize,
+            op: PointOp::from_matrix(el.m),
+            order,
+        });
     }
     let elems: Vec<naming::Element> = found
         .iter()
@@ -482,16 +597,23 @@ fn attempt(
     if data.ops.len() != h {
         return Err(None);
     }
-    let mut fr = frame::standard_frame(ctx, fam, &found).map_err(|_| None)?;
-    // Candidates within tol/100 of their images give a frame good to about that much;
-    // otherwise fit it to the atoms.
-    if slack > 0.01 * tol {
-        fr = refine_frame(ctx, sh, fr, &data).ok_or(None)?;
-    }
-    let sym = finish(ctx, fam, fr, center, opts).map_err(|e| match e {
+    let fr = frame::standard_frame(ctx, fam, &found).map_err(|_| None)?;
+    let failed_at = |e: Error| match e {
         Error::NotASymmetry { atom, .. } => Some(atom),
         _ => None,
-    })?;
+    };
+    // The frame comes from operations fitted to the probe; when the ideal operations miss
+    // an atom in it and the candidates did not hit their images exactly, the frame is fitted
+    // to the atoms and verified once more.
+    let sym = match finish(ctx, fam, fr, center, opts) {
+        Ok(sym) => sym,
+        Err(Error::NotASymmetry { atom, .. }) if slack <= 1e-9 * tol => return Err(Some(atom)),
+        Err(Error::NotASymmetry { .. }) => {
+            let fr = refine_frame(ctx, sh, fr, &data).ok_or(None)?;
+            finish(ctx, fam, fr, center, opts).map_err(failed_at)?
+        }
+        Err(e) => return Err(failed_at(e)),
+    };
     // The verified group must be the screened set: the images of a and b of every
     // operation, composed through the words when only the generators were verified.
     let mut images: Vec<Option<(usize, usize)>> = vec![None; h];
@@ -514,7 +636,8 @@ fn attempt(
     let mut matched = vec![false; h];
     for (k, img) in images.iter().enumerate() {
         let (ia, ib) = img.ok_or(None)?;
-        let idx = seen[slot(ia, ib, sym.ops[k].proper).ok_or(None)?];
+        let (ka, kb) = (find(&pla, ia).ok_or(None)?, find(&plb, ib).ok_or(None)?);
+        let idx = index[slot(ka as u32, kb as u32, sym.ops[k].proper).ok_or(None)?];
         if idx == u32::MAX || std::mem::replace(&mut matched[idx as usize], true) {
             return Err(None);
         }
