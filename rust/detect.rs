@@ -139,11 +139,16 @@ struct Ctx<'a> {
     grid: OnceLock<Grid>,
     tol: f64,
     inertia: Mat3,
-    /// Principal axes of `inertia` (rows, ascending moments).
-    axes: Mat3,
+    /// Principal axes of `inertia` (rows, ascending moments), computed on first use.
+    axes: OnceLock<Mat3>,
 }
 
 impl Ctx<'_> {
+    fn axes(&self) -> &Mat3 {
+        self.axes
+            .get_or_init(|| structure::principal_axes(&self.inertia).1)
+    }
+
     fn grid(&self) -> Result<&Grid> {
         if let Some(g) = self.grid.get() {
             return Ok(g);
@@ -286,21 +291,36 @@ fn detect(
     if positions.len() == 1 {
         return single_atom(center, opts);
     }
-    let (_, axes) = structure::principal_axes(&inertia);
     let ctx = Ctx {
         x,
         numbers,
         grid,
         tol,
         inertia,
-        axes,
+        axes: OnceLock::new(),
     };
-    let line = axes[0];
-    let on_line = ctx.x.iter().all(|p| {
-        let t = dot(p, &line);
-        norm(&[p[0] - t * line[0], p[1] - t * line[1], p[2] - t * line[2]]) <= 0.5 * tol
-    });
-    if on_line {
+    let off_line = |line: &Vec3, p: &Vec3| {
+        let t = dot(p, line);
+        norm(&[p[0] - t * line[0], p[1] - t * line[1], p[2] - t * line[2]])
+    };
+    // Atoms within tol/2 of the axis of least inertia are within tol of the line through
+    // the farthest atom (which is within tol/2 of that axis): when some atom is not, the
+    // structure is not linear and the axes are not needed yet.
+    let far = ctx
+        .x
+        .iter()
+        .copied()
+        .max_by(|p, q| dot(p, p).total_cmp(&dot(q, q)));
+    let maybe_linear = far
+        .and_then(|p| crate::ops::normalize(&p))
+        .is_none_or(|u| ctx.x.iter().all(|p| off_line(&u, p) <= tol * (1.0 + 1e-9)));
+    if maybe_linear
+        && ctx
+            .x
+            .iter()
+            .all(|p| off_line(&ctx.axes()[0], p) <= 0.5 * tol)
+    {
+        let line = ctx.axes()[0];
         let m = opts.linear_n;
         for fam in [Family::Dinfh(m), Family::Cinfv(m)] {
             let fr = frame::axial_frame(&line, None);
@@ -690,20 +710,40 @@ fn enumerate(
     Ok((found, a, b))
 }
 
-/// The first pair (i < j, in (i, j) order) of atoms within `tol` of each other, by brute
-/// force: the answer of `find_overlap` for small structures.
+/// The first pair (i < j, in (i, j) order) of atoms within `tol` of each other, without a
+/// grid: the answer of `find_overlap` for small structures. Two such atoms lie within `tol`
+/// of each other's distance from the centre, so only neighbours in the order of that
+/// distance are compared.
 fn brute_overlap(x: &[Vec3], tol: f64) -> Option<(usize, usize, f64)> {
     let t2 = tol * tol;
-    for (i, p) in x.iter().enumerate() {
-        for (j, q) in x.iter().enumerate().skip(i + 1) {
+    // Distances from the centre are ≥ 0: their bits sort as the numbers do.
+    let mut keys: Vec<u128> = x
+        .iter()
+        .enumerate()
+        .map(|(i, p)| (u128::from(norm(p).to_bits()) << 64) | i as u128)
+        .collect();
+    keys.sort_unstable();
+    let radius = |k: u128| f64::from_bits((k >> 64) as u64);
+    let mut first: Option<(usize, usize, f64)> = None;
+    for (s, &ks) in keys.iter().enumerate() {
+        for &kt in &keys[s + 1..] {
+            // (with a margin for the rounding of the two distances)
+            if radius(kt) - radius(ks) > tol * (1.0 + 1e-9) + 1e-12 * radius(kt) {
+                break;
+            }
+            let (i, j) = (
+                (ks as u64).min(kt as u64) as usize,
+                (ks as u64).max(kt as u64) as usize,
+            );
+            let (p, q) = (&x[i], &x[j]);
             let d = [q[0] - p[0], q[1] - p[1], q[2] - p[2]];
             let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
-            if d2 <= t2 {
-                return Some((i, j, d2.sqrt()));
+            if d2 <= t2 && first.is_none_or(|(a, b, _)| (i, j) < (a, b)) {
+                first = Some((i, j, d2.sqrt()));
             }
         }
     }
-    None
+    first
 }
 
 fn sub(p: &Vec3, q: &Vec3) -> Vec3 {

@@ -22,7 +22,7 @@
 //!   atom that failed screened first, then with the full probe, and finally leaves the
 //!   structure to the plain search.
 //! - Small structures without symmetry exit before all this: see
-//!   [`lone_pair_without_mirror`].
+//!   [`lone_pair_without_mirror`] and [`without_symmetry`].
 
 use super::canonical::{group_data, Family, GroupData};
 use super::{finish, frame, naming, pair_frame, sub, Ctx, DetectOptions, RawOp, Symmetry};
@@ -42,7 +42,11 @@ const B_CHOICES: usize = 64;
 /// The structure's group by the pruned search, or `None` to leave it to the plain search.
 pub(super) fn pruned(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Option<Symmetry> {
     let r: Vec<f64> = ctx.x.iter().map(norm).collect();
-    if lone_pair_without_mirror(ctx, &r) {
+    let c1 = match lone_pair_without_mirror(ctx, &r) {
+        Some(c1) => c1,
+        None => without_symmetry(ctx, &r),
+    };
+    if c1 {
         let fr = frame::standard_frame(ctx, Family::C1, &[]).ok()?;
         return finish(ctx, Family::C1, fr, center, opts).ok();
     }
@@ -166,14 +170,15 @@ impl<'a> Shells<'a> {
     }
 }
 
-/// The early exit for small structures without symmetry (up to 32 atoms, where the plain
-/// search's probe is every atom): reference atoms a and b, chosen as below, each alone in
-/// its window, so that every operation fixes both and can only be E or the mirror through
-/// the centre, a and b; and that mirror fails the screen at some atom.
-fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64]) -> bool {
+/// The first early exit for small structures without symmetry (up to 32 atoms, where the
+/// plain search's probe is every atom): reference atoms a and b, chosen as below, each
+/// alone in its window, so that every operation fixes both and can only be E or the mirror
+/// through the centre, a and b. `Some(true)` when that mirror fails the screen at some
+/// atom (C1), `Some(false)` when it passes, `None` when there are no such a and b.
+fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64]) -> Option<bool> {
     let (x, n, w) = (&ctx.x, r.len(), 2.0 * ctx.tol);
     if n > 32 {
-        return false;
+        return None;
     }
     // Alone: no other atom of its element within w of its radius (neighbours in the order
     // of element and radius; radii are ≥ 0, so their bits sort as the numbers do).
@@ -195,9 +200,97 @@ fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64]) -> bool {
     }
     let r_max = r.iter().copied().fold(0.0, f64::max);
     // a: the smallest window among the far atoms (1 when alone), then the largest radius.
-    let Some((_, a)) = (0..n)
+    let (_, a) = (0..n)
         .filter(|&i| alone[i] && r[i] >= 0.5 * r_max && r[i] > 0.0)
         .map(|i| (u64::MAX - r[i].to_bits(), i))
+        .min()?;
+    let ua = [x[a][0] / r[a], x[a][1] / r[a], x[a][2] / r[a]];
+    let perp: Vec<f64> = x
+        .iter()
+        .map(|p| {
+            let t = dot(p, &ua);
+            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
+        })
+        .collect();
+    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let (_, b) = (0..n)
+        .filter(|&i| alone[i] && perp[i] >= 0.5 * d_max && perp[i] > 0.0)
+        .map(|i| (u64::MAX - perp[i].to_bits(), i))
+        .min()?;
+    let f = pair_frame(&x[a], &x[b])?;
+    let u = f[2];
+    // Atoms within 1.5·tol of the plane move by at most 3·tol: they pass.
+    Some(x.iter().enumerate().any(|(i, p)| {
+        let t = dot(p, &u);
+        let q = [
+            p[0] - 2.0 * t * u[0],
+            p[1] - 2.0 * t * u[1],
+            p[2] - 2.0 * t * u[2],
+        ];
+        t.abs() > 1.5 * ctx.tol && ctx.nearest(&q, ctx.numbers[i], 3.0 * ctx.tol).is_none()
+    }))
+}
+
+/// The second early exit for small structures without symmetry (up to 32 atoms):
+/// reference atoms a and b chosen as below (smallest windows), and every candidate pair of
+/// images of them, each screened on all atoms; when no candidate but E passes, the group
+/// is C1.
+fn without_symmetry(ctx: &Ctx, r: &[f64]) -> bool {
+    let (x, n, w, tol) = (&ctx.x, r.len(), 2.0 * ctx.tol, ctx.tol);
+    if n > 32 {
+        return false;
+    }
+    // Atoms in the order of element and radius (radii are ≥ 0: their bits sort as the
+    // numbers do); each window is a run of that order.
+    let mut keys: Vec<u128> = (0..n)
+        .map(|i| {
+            (u128::from(ctx.numbers[i] as u8) << 96)
+                | (u128::from(r[i].to_bits()) << 32)
+                | i as u128
+        })
+        .collect();
+    keys.sort_unstable();
+    let order: Vec<usize> = keys.iter().map(|&k| k as u32 as usize).collect();
+    let mut at = vec![0usize; n];
+    for (s, &i) in order.iter().enumerate() {
+        at[i] = s;
+    }
+    // The run of atoms of i's element within `band` of its radius.
+    let run = |i: usize, band: f64| -> std::ops::Range<usize> {
+        let near = |s: usize| {
+            let j = order[s];
+            ctx.numbers[j] == ctx.numbers[i] && (r[j] - r[i]).abs() <= band
+        };
+        let (mut lo, mut hi) = (at[i], at[i] + 1);
+        while lo > 0 && near(lo - 1) {
+            lo -= 1;
+        }
+        while hi < n && near(hi) {
+            hi += 1;
+        }
+        lo..hi
+    };
+    // Window sizes, by one sweep of the order.
+    let mut size = vec![0u32; n];
+    let (mut lo, mut hi) = (0usize, 0usize);
+    for (s, &i) in order.iter().enumerate() {
+        let same = |t: usize| {
+            let j = order[t];
+            ctx.numbers[j] == ctx.numbers[i] && (r[j] - r[i]).abs() <= w
+        };
+        while !same(lo) {
+            lo += 1;
+        }
+        hi = hi.max(s + 1);
+        while hi < n && same(hi) {
+            hi += 1;
+        }
+        size[i] = (hi - lo) as u32;
+    }
+    let r_max = r.iter().copied().fold(0.0, f64::max);
+    let Some((_, _, a)) = (0..n)
+        .filter(|&i| r[i] >= 0.5 * r_max && r[i] > 0.0)
+        .map(|i| (size[i], u64::MAX - r[i].to_bits(), i))
         .min()
     else {
         return false;
@@ -211,27 +304,50 @@ fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64]) -> bool {
         })
         .collect();
     let d_max = perp.iter().copied().fold(0.0, f64::max);
-    let Some((_, b)) = (0..n)
-        .filter(|&i| alone[i] && perp[i] >= 0.5 * d_max && perp[i] > 0.0)
-        .map(|i| (u64::MAX - perp[i].to_bits(), i))
+    let Some((_, _, b)) = (0..n)
+        .filter(|&i| perp[i] >= 0.5 * d_max && perp[i] > 0.0)
+        .map(|i| (size[i], u64::MAX - perp[i].to_bits(), i))
         .min()
     else {
         return false;
     };
-    let Some(f) = pair_frame(&x[a], &x[b]) else {
+    let Some(ref_frame) = pair_frame(&x[a], &x[b]) else {
         return false;
     };
-    let u = f[2];
-    // Atoms within 1.5·tol of the plane move by at most 3·tol: they pass.
-    x.iter().enumerate().any(|(i, p)| {
-        let t = dot(p, &u);
-        let q = [
-            p[0] - 2.0 * t * u[0],
-            p[1] - 2.0 * t * u[1],
-            p[2] - 2.0 * t * u[2],
-        ];
-        t.abs() > 1.5 * ctx.tol && ctx.nearest(&q, ctx.numbers[i], 3.0 * ctx.tol).is_none()
-    })
+    let d_ab = norm(&sub(&x[a], &x[b]));
+    // Every atom has an image within 3·tol under m (images lie at the atom's radius).
+    let passes = |m: &Mat3| {
+        x.iter().enumerate().all(|(i, p)| {
+            let q = mat_vec(m, p);
+            order[run(i, 3.0 * tol)].iter().any(|&j| {
+                let d = sub(&x[j], &q);
+                dot(&d, &d) <= 9.0 * tol * tol
+            })
+        })
+    };
+    for &ap in &order[run(a, w)] {
+        for &bp in &order[run(b, w)] {
+            if ap == bp || (norm(&sub(&x[ap], &x[bp])) - d_ab).abs() > 2.5 * tol {
+                continue;
+            }
+            let Some(img_frame) = pair_frame(&x[ap], &x[bp]) else {
+                continue;
+            };
+            for proper in [true, false] {
+                if proper && ap == a && bp == b {
+                    continue; // E
+                }
+                let mut f = img_frame;
+                if !proper {
+                    f[2] = [-f[2][0], -f[2][1], -f[2][2]];
+                }
+                if passes(&mat_mul(&transpose(&f), &ref_frame)) {
+                    return false;
+                }
+            }
+        }
+    }
+    true
 }
 
 /// The reference atoms: a as in the plain search (smallest window among the atoms at ≥ half
