@@ -32,7 +32,8 @@ use crate::ops::{
     PointOp, Vec3, IDENTITY,
 };
 
-/// Probe atoms screened by the first attempt (besides a, b and atoms that failed before).
+/// Probe atoms outside the two windows screened by the first attempt (besides atoms that
+/// failed before).
 const SHORT_PROBE: usize = 8;
 /// Atoms that failed verification, screened first on the next attempt, at most.
 const MAX_RETRIES: usize = 4;
