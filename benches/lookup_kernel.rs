@@ -16,87 +16,12 @@ use rayon::prelude::*;
 use std::hint::black_box;
 use std::time::{Duration, Instant};
 
-type Vec3 = [f64; 3];
-type Mat3 = [[f64; 3]; 3];
+#[path = "common/shapes.rs"]
+mod shapes;
+
+use shapes::{mackay, Mat3, Vec3, GOLDEN};
 
 const TOL: f64 = 0.01;
-const SPACING: f64 = 2.8;
-const GOLDEN: f64 = 1.618_033_988_749_895;
-
-/// The 12 vertices (0, ±1, ±φ) and their cyclic permutations, edge length 2.
-fn icosahedron_vertices() -> Vec<Vec3> {
-    let mut base = Vec::new();
-    for s1 in [-1.0, 1.0] {
-        for s2 in [-1.0, 1.0] {
-            base.push([0.0, s1, s2 * GOLDEN]);
-        }
-    }
-    let mut v = base.clone();
-    v.extend(base.iter().map(|p| [p[2], p[0], p[1]]));
-    v.extend(base.iter().map(|p| [p[1], p[2], p[0]]));
-    v
-}
-
-fn dist(a: &Vec3, b: &Vec3) -> f64 {
-    ((a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2) + (a[2] - b[2]).powi(2)).sqrt()
-}
-
-fn lerp3(terms: &[(f64, &Vec3)]) -> Vec3 {
-    let mut out = [0.0; 3];
-    for (w, p) in terms {
-        for k in 0..3 {
-            out[k] += w * p[k];
-        }
-    }
-    out
-}
-
-/// A Mackay icosahedron (centre + `n_shells` shells of 10k² + 2 atoms), nearest-neighbour
-/// distance `SPACING` Å: the same construction as `gammatrace.io.builders.mackay_icosahedron`.
-fn mackay(n_shells: usize) -> Vec<Vec3> {
-    let v2 = icosahedron_vertices();
-    let v: Vec<Vec3> = v2
-        .iter()
-        .map(|p| [p[0] / 2.0, p[1] / 2.0, p[2] / 2.0])
-        .collect();
-    let adj = |i: usize, j: usize| (dist(&v2[i], &v2[j]) - 2.0).abs() < 1e-9;
-    let mut edges = Vec::new();
-    let mut faces = Vec::new();
-    for i in 0..12 {
-        for j in i + 1..12 {
-            if adj(i, j) {
-                edges.push((i, j));
-                for k in j + 1..12 {
-                    if adj(i, k) && adj(j, k) {
-                        faces.push((i, j, k));
-                    }
-                }
-            }
-        }
-    }
-    let mut pts = vec![[0.0; 3]];
-    for k in 1..=n_shells {
-        let kf = k as f64;
-        pts.extend(v.iter().map(|p| [p[0] * kf, p[1] * kf, p[2] * kf]));
-        for &(a, b) in &edges {
-            for t in 1..k {
-                let t = t as f64;
-                pts.push(lerp3(&[(kf - t, &v[a]), (t, &v[b])]));
-            }
-        }
-        for &(a, b, c) in &faces {
-            for i in 1..k {
-                for j in 1..k - i {
-                    let (fi, fj) = (i as f64, j as f64);
-                    pts.push(lerp3(&[(kf - fi - fj, &v[a]), (fi, &v[b]), (fj, &v[c])]));
-                }
-            }
-        }
-    }
-    pts.iter()
-        .map(|p| [p[0] * SPACING, p[1] * SPACING, p[2] * SPACING])
-        .collect()
-}
 
 /// Rotation by `angle_rad` about the unit vector along `axis` (Rodrigues).
 fn rotation(axis: Vec3, angle_rad: f64) -> Mat3 {

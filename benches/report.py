@@ -40,6 +40,14 @@ TARGET_BATCH_PER_S = 20_000
 GOAL_BATCH_PER_S = 100_000
 TARGET_READ_MB_S = 300.0
 TARGET_MEMORY_RATIO = 10.0
+# Targets of issue 14, part 1: detection against the counting of the same operations.
+DETECTION_TARGETS = (
+    ("detect benzene", "benzene (12 atoms)", 20e-6, 1),
+    ("detect C60", "C60", 300e-6, 1),
+    ("detect Ih-2057", "Ih cluster, 2,057 atoms", 3e-3, 1),
+    ("detect C1 30 atoms x100", "C1 conformer, 30 atoms (per structure)", 3e-6, 100),
+)
+TARGET_DETECTION_RATIO = 2.0
 
 
 def _git(*args: str, cwd: Path = ROOT) -> str:
@@ -237,6 +245,7 @@ def make_plot(bench: dict, path: Path) -> None:
     fig, axes = plt.subplots(1, 2, figsize=(10, 4.2), sharey=True)
     styles = {
         "ours": ("o-", "gammatrace: detection + Γ_3N + Γ_vib"),
+        "ours-detection": ("d-", "gammatrace: detection only"),
         "ours-counting": ("s--", "gammatrace: counting only (operations given)"),
         "kdtree": ("^-", "baseline (b) numpy + cKDTree (operations given)"),
         "dense": ("x", "baseline (a) dense 3N×3N traces (operations given)"),
@@ -394,6 +403,50 @@ def targets_table(runs: list, rust: dict | None) -> list:
     return lines
 
 
+def detection_table(bench: dict) -> list:
+    """Detection next to counting of the same operations, same run (issue 14, part 1)."""
+    lines = [
+        "| workload | detection | counting | detection / counting | target | verdict |",
+        "|---|---|---|---|---|---|",
+    ]
+
+    def cell(group, name, per):
+        m = median(bench.get((group, name)))
+        return None if m is None else m / per
+
+    def fmt_t(x):  # with a decimal below 100 µs
+        return f"{x * 1e6:.1f} µs" if x < 1e-4 else fmt_s(x)
+
+    for group, title, limit, per in DETECTION_TARGETS:
+        det, cnt = cell(group, "ours-detection", per), cell(group, "ours-counting", per)
+        if det is None or cnt is None:
+            continue
+        lines.append(
+            f"| {title} | {fmt_t(det)} | {fmt_t(cnt)} | {fmt_ratio(det / cnt)} | "
+            f"≤ {fmt_t(limit)} | {verdict(det <= limit)} |"
+        )
+        batch = cell(group, "ours-detection-batch", per)
+        if batch is not None:
+            lines.append(
+                f"| … through the batch call, one thread | {fmt_t(batch)} | | | "
+                f"≤ {fmt_t(limit)} | {verdict(batch <= limit)} |"
+            )
+    for family in ("Ih", "Oh"):
+        for k in (3, 4, 5, 6):
+            g = f"{family} 1e{k}"
+            det = median(bench.get((g, "ours-detection")))
+            cnt = median(bench.get((g, "ours-counting")))
+            if det is None or cnt is None:
+                continue
+            n = bench[(g, "ours-detection")]["extra_info"]["n_atoms"]
+            lines.append(
+                f"| {family} cluster, {n:,} atoms | {fmt_t(det)} | {fmt_t(cnt)} | "
+                f"{fmt_ratio(det / cnt)} | ≤ {TARGET_DETECTION_RATIO:.0f}× counting | "
+                f"{verdict(det / cnt <= TARGET_DETECTION_RATIO)} |"
+            )
+    return lines if len(lines) > 2 else ["(not run)"]
+
+
 def rust_table(rust: dict | None) -> list:
     if not rust:
         return ["(not run: cargo missing or the micro-benchmark failed)"]
@@ -467,6 +520,17 @@ def write_page(stamp: str, bench: dict, rerun: dict | None, rust: dict | None) -
             "the point group from the bare coordinates. *ours-counting* is the core's count of "
             "unshifted atoms for the same given operations (see the notes)."
         ),
+        "",
+        "## Detection next to counting (issue 14, part 1)",
+        "",
+        (
+            "*detection* is `_core.find_point_group` from the bare coordinates (every operation "
+            "verified against all atoms up to the verify-all limit, results as numpy arrays); "
+            "*counting* is `_core.count_unshifted` for the operations it found, in the same run. "
+            "`cargo bench --bench detect_kernel` times the same pairs in the core alone."
+        ),
+        "",
+        *detection_table(bench),
         "",
         "## Scaling",
         "",

@@ -3,7 +3,8 @@
 //! Algorithm (all steps rest on operations verified against the atoms, never on inertia
 //! alone):
 //!
-//! 1. Validate; centre on the centre of mass; build the cell grid; reject overlapping atoms.
+//! 1. Validate; centre on the centre of mass; build the cell grid (up to
+//!    `BRUTE_FORCE_MAX` atoms: only when a lookup needs it); reject overlapping atoms.
 //! 2. One atom → K_h, reported through C_M × Ci (M = `linear_n`). Atoms all within tol/2 of one line through the centre (the axis of
 //!    least inertia) → C∞v or D∞h, reported through C_Mv / D_Md (M = `linear_n`).
 //! 3. Otherwise enumerate the whole group directly. Pick a reference atom `a` (among atoms at
@@ -16,7 +17,11 @@
 //!    A candidate is tested on a small probe of atoms with a loose tolerance (3·tol), refitted
 //!    by least squares (Kabsch) on the matches, tested on all atoms (a fixed sample of 1024
 //!    plus the two windows for structures above 4096 atoms) at `tol`, and refitted again.
-//!    Nothing limits n.
+//!    Nothing limits n. This plain search runs only when the pruned search (search.rs)
+//!    gives up: the same reference-atom idea with a second atom whose distance to a is rare
+//!    in its window (|W(a)| · k · 2 candidates), screened on a short probe and accepted
+//!    only when the verified group is exactly the screened set; it starts with an early
+//!    exit for small structures without symmetry.
 //! 4. The operations found must close under multiplication (checked exactly through the
 //!    images of a and b); the group is named from its content (orders of the rotations, number
 //!    of axes of order ≥ 3, σh, mirrors, inversion) by `naming::name_group`, the namer that
@@ -26,7 +31,9 @@
 //!    group's ideal operations in that frame, rotated back to the input frame, so they form a
 //!    group exactly. They are verified against the atoms (all of them when
 //!    n_atoms·order ≤ `verify_all_limit`, otherwise E and the generators), giving the
-//!    permutations and `max_deviation`.
+//!    permutations and `max_deviation`: the generators by lookup, every other operation
+//!    through the permutation composed along its word in the generators, checked atom by
+//!    atom (verify.rs; the same permutations as a lookup per atom would give).
 //! 6. If an ideal operation fails verification at some atom (a defect outside the screening
 //!    sample), steps 3–5 are repeated with that atom screened first (up to 16 such atoms).
 //!    Any other failure while screening on a sample repeats them screening on all atoms; after
@@ -134,11 +141,16 @@ struct Ctx<'a> {
     grid: OnceLock<Grid>,
     tol: f64,
     inertia: Mat3,
-    /// Principal axes of `inertia` (rows, ascending moments).
-    axes: Mat3,
+    /// Principal axes of `inertia` (rows, ascending moments), computed on first use.
+    axes: OnceLock<Mat3>,
 }
 
 impl Ctx<'_> {
+    fn axes(&self) -> &Mat3 {
+        self.axes
+            .get_or_init(|| structure::principal_axes(&self.inertia).1)
+    }
+
     fn grid(&self) -> Result<&Grid> {
         if let Some(g) = self.grid.get() {
             return Ok(g);
@@ -159,6 +171,8 @@ impl Ctx<'_> {
         if !self.brute() {
             return self.grid().ok()?.query_within(q, element, radius);
         }
+        // An atom within tol/2 is the nearest: no two atoms lie within tol of each other.
+        let sure = 0.25 * self.tol * self.tol;
         let mut best = (usize::MAX, radius * radius);
         for (j, p) in self.x.iter().enumerate() {
             if self.species[j] == element {
@@ -166,6 +180,9 @@ impl Ctx<'_> {
                 let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
                 if d2 <= best.1 {
                     best = (j, d2);
+                    if d2 <= sure {
+                        break;
+                    }
                 }
             }
         }
@@ -241,6 +258,28 @@ pub fn find_point_group_with_masses(
     masses: Option<&[f64]>,
     opts: &DetectOptions,
 ) -> Result<Symmetry> {
+    detect(positions, numbers, masses, opts, Search::PrunedThenPlain)
+}
+
+/// Which searches [`detect`] runs for structures that are neither atoms nor linear.
+#[derive(Clone, Copy, PartialEq)]
+#[cfg_attr(not(test), allow(dead_code))]
+enum Search {
+    /// The pruned search, then the plain one if it gives up: what [`find_point_group`] does.
+    PrunedThenPlain,
+    /// The plain search alone (the reference the pruned search is tested against).
+    Plain,
+    /// The pruned search alone; `GroupClosure` where it gives up (for tests).
+    Pruned,
+}
+
+fn detect(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    masses: Option<&[f64]>,
+    opts: &DetectOptions,
+    search: Search,
+) -> Result<Symmetry> {
     structure::validate(positions, numbers)?;
     let tol = opts.tol;
     if !(tol.is_finite() && tol > 0.0) {
@@ -277,21 +316,36 @@ pub fn find_point_group_with_masses(
     if positions.len() == 1 {
         return single_atom(center, opts);
     }
-    let (_, axes) = structure::principal_axes(&inertia);
     let ctx = Ctx {
         x,
         species: &species.codes,
         grid,
         tol,
         inertia,
-        axes,
+        axes: OnceLock::new(),
     };
-    let line = axes[0];
-    let on_line = ctx.x.iter().all(|p| {
-        let t = dot(p, &line);
-        norm(&[p[0] - t * line[0], p[1] - t * line[1], p[2] - t * line[2]]) <= 0.5 * tol
-    });
-    if on_line {
+    let off_line = |line: &Vec3, p: &Vec3| {
+        let t = dot(p, line);
+        norm(&[p[0] - t * line[0], p[1] - t * line[1], p[2] - t * line[2]])
+    };
+    // Atoms within tol/2 of the axis of least inertia are within tol of the line through
+    // the farthest atom (which is within tol/2 of that axis): when some atom is not, the
+    // structure is not linear and the axes are not needed yet.
+    let far = ctx
+        .x
+        .iter()
+        .copied()
+        .max_by(|p, q| dot(p, p).total_cmp(&dot(q, q)));
+    let maybe_linear = far
+        .and_then(|p| crate::ops::normalize(&p))
+        .is_none_or(|u| ctx.x.iter().all(|p| off_line(&u, p) <= tol * (1.0 + 1e-9)));
+    if maybe_linear
+        && ctx
+            .x
+            .iter()
+            .all(|p| off_line(&ctx.axes()[0], p) <= 0.5 * tol)
+    {
+        let line = ctx.axes()[0];
         let m = opts.linear_n;
         for fam in [Family::Dinfh(m), Family::Cinfv(m)] {
             let fr = frame::axial_frame(&line, None);
@@ -300,9 +354,23 @@ pub fn find_point_group_with_masses(
             }
         }
     }
+    if search == Search::Plain {
+        return plain_search(&ctx, center, opts);
+    }
     if let Some(sym) = search::pruned(&ctx, center, opts) {
         return Ok(sym);
     }
+    if search == Search::Pruned {
+        return Err(Error::GroupClosure {
+            reason: "the pruned search gave up".into(),
+        });
+    }
+    plain_search(&ctx, center, opts)
+}
+
+/// The plain search with its retries (module doc, steps 3–6).
+fn plain_search(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Result<Symmetry> {
+    let positions = &ctx.x;
     let mut last = Error::GroupClosure {
         reason: "no candidate operations".into(),
     };
@@ -316,7 +384,7 @@ pub fn find_point_group_with_masses(
     let factors = [1.0, 0.85, 0.7];
     let mut f = 0;
     while f < factors.len() {
-        match detect_general(&ctx, factors[f], &extra, sampled, center, opts) {
+        match detect_general(ctx, factors[f], &extra, sampled, center, opts) {
             Ok(sym) => return Ok(sym),
             Err(Error::NotASymmetry { atom, distance })
                 if extra.len() < MAX_EXTRA && !extra.contains(&atom) =>
@@ -494,8 +562,6 @@ fn classes_from(class_of: &[usize]) -> Vec<Vec<usize>> {
 struct Windows {
     order: Vec<u32>,
     range: Vec<(u32, u32)>,
-    /// Position of each atom in `order`.
-    pos: Vec<u32>,
 }
 
 fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
@@ -512,11 +578,9 @@ fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
     keys.sort_unstable();
     let order: Vec<u32> = keys.iter().map(|&k| k as u32).collect();
     let mut range = vec![(0u32, 0u32); n];
-    let mut pos = vec![0u32; n];
     let (mut lo, mut hi) = (0usize, 0usize);
     for s in 0..n {
         let i = order[s] as usize;
-        pos[i] = s as u32;
         let (z, ri) = (ctx.species[i], r[i]);
         while lo < s {
             let j = order[lo] as usize;
@@ -537,7 +601,7 @@ fn windows(ctx: &Ctx, r: &[f64], w: f64) -> Windows {
         }
         range[i] = (lo as u32, hi as u32 + 1);
     }
-    Windows { order, range, pos }
+    Windows { order, range }
 }
 
 /// Up to `k` evenly spread members of a slice.
@@ -680,20 +744,40 @@ fn enumerate(
     Ok((found, a, b))
 }
 
-/// The first pair (i < j, in (i, j) order) of atoms within `tol` of each other, by brute
-/// force: the answer of `find_overlap` for small structures.
+/// The first pair (i < j, in (i, j) order) of atoms within `tol` of each other, without a
+/// grid: the answer of `find_overlap` for small structures. Two such atoms lie within `tol`
+/// of each other's distance from the centre, so only neighbours in the order of that
+/// distance are compared.
 fn brute_overlap(x: &[Vec3], tol: f64) -> Option<(usize, usize, f64)> {
     let t2 = tol * tol;
-    for (i, p) in x.iter().enumerate() {
-        for (j, q) in x.iter().enumerate().skip(i + 1) {
+    // Distances from the centre are ≥ 0: their bits sort as the numbers do.
+    let mut keys: Vec<u128> = x
+        .iter()
+        .enumerate()
+        .map(|(i, p)| (u128::from(norm(p).to_bits()) << 64) | i as u128)
+        .collect();
+    keys.sort_unstable();
+    let radius = |k: u128| f64::from_bits((k >> 64) as u64);
+    let mut first: Option<(usize, usize, f64)> = None;
+    for (s, &ks) in keys.iter().enumerate() {
+        for &kt in &keys[s + 1..] {
+            // (with a margin for the rounding of the two distances)
+            if radius(kt) - radius(ks) > tol * (1.0 + 1e-9) + 1e-12 * radius(kt) {
+                break;
+            }
+            let (i, j) = (
+                (ks as u64).min(kt as u64) as usize,
+                (ks as u64).max(kt as u64) as usize,
+            );
+            let (p, q) = (&x[i], &x[j]);
             let d = [q[0] - p[0], q[1] - p[1], q[2] - p[2]];
             let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
-            if d2 <= t2 {
-                return Some((i, j, d2.sqrt()));
+            if d2 <= t2 && first.is_none_or(|(a, b, _)| (i, j) < (a, b)) {
+                first = Some((i, j, d2.sqrt()));
             }
         }
     }
-    None
+    first
 }
 
 fn sub(p: &Vec3, q: &Vec3) -> Vec3 {

@@ -169,7 +169,9 @@ impl CellGrid {
         let origin = lo;
         let mut keys = vec![0u64; n];
         let mut dims;
-        let mut counted;
+        // Atoms per cell: a dense array when the box holds few enough cells (kept as the
+        // cell table's prefix sums), otherwise the hash of the occupied cells.
+        let mut counted: std::result::Result<Vec<u32>, (usize, Vec<Slot>)>;
         let mut rounds = 0;
         loop {
             let inv = 1.0 / cell;
@@ -180,64 +182,76 @@ impl CellGrid {
             for (key, p) in keys.iter_mut().zip(positions) {
                 *key = cell_key(p, &origin, inv, &dims);
             }
-            counted = count_cells(&keys);
-            let occupied = counted.1.iter().filter(|s| s.key != EMPTY).count().max(1);
-            let load = n as f64 / occupied as f64;
+            let n_cells = dims.iter().map(|&d| d as f64).product::<f64>();
+            let occupied;
+            if n_cells <= (4 * n + 1024) as f64 {
+                let mut starts = vec![0u32; n_cells as usize + 1];
+                for &k in &keys {
+                    starts[k as usize + 1] += 1;
+                }
+                occupied = starts.iter().filter(|&&c| c > 0).count();
+                counted = Ok(starts);
+            } else {
+                let (mask, slots) = count_cells(&keys);
+                occupied = slots.iter().filter(|s| s.key != EMPTY).count();
+                counted = Err((mask, slots));
+            }
+            let load = n as f64 / occupied.max(1) as f64;
             rounds += 1;
             if !adaptive || load <= 2.5 || cell <= floor * 1.000_001 || rounds >= 8 {
                 break;
             }
             cell = (cell / load.sqrt()).max(floor);
         }
-        let n_cells = dims.iter().map(|&d| d as f64).product::<f64>();
         let mut pos = vec![[0.0; 3]; n];
         let mut num = vec![0i64; n];
         let mut idx = vec![0u32; n];
-        let cells = if n_cells <= (4 * n + 1024) as f64 {
-            let nc = n_cells as usize;
-            let mut starts = vec![0u32; nc + 1];
-            for &k in &keys {
-                starts[k as usize + 1] += 1;
-            }
-            for c in 0..nc {
-                starts[c + 1] += starts[c];
-            }
-            let mut fill = starts.clone();
-            for (i, &k) in keys.iter().enumerate() {
-                let s = fill[k as usize] as usize;
-                fill[k as usize] += 1;
-                pos[s] = positions[i];
-                num[s] = numbers[i];
-                idx[s] = i as u32;
-            }
-            Cells::Dense { starts }
-        } else {
-            let (mask, mut slots) = counted;
-            // Lay the cells out in key order (rows along x), not hash order, so that nearby
-            // cells are nearby in memory.
-            let mut occupied: Vec<(u64, usize)> = slots
-                .iter()
-                .enumerate()
-                .filter(|(_, s)| s.key != EMPTY)
-                .map(|(h, s)| (s.key, h))
-                .collect();
-            occupied.sort_unstable();
-            let mut acc = 0u32;
-            for &(_, h) in &occupied {
-                slots[h].start = acc;
-                acc += slots[h].count;
-            }
-            let mut fill: Vec<u32> = slots.iter().map(|s| s.start).collect();
-            for (i, &k) in keys.iter().enumerate() {
-                if let Some(h) = find_slot(&slots, mask, k) {
-                    let s = fill[h] as usize;
-                    fill[h] += 1;
-                    pos[s] = positions[i];
-                    num[s] = numbers[i];
+        let cells = match counted {
+            Ok(mut starts) => {
+                for c in 1..starts.len() {
+                    starts[c] += starts[c - 1];
+                }
+                // Scatter the indices only, then gather the atoms in storage order: one
+                // random write per atom instead of three.
+                let mut fill = starts.clone();
+                for (i, &k) in keys.iter().enumerate() {
+                    let s = fill[k as usize] as usize;
+                    fill[k as usize] += 1;
                     idx[s] = i as u32;
                 }
+                for ((p, z), &i) in pos.iter_mut().zip(num.iter_mut()).zip(&idx) {
+                    *p = positions[i as usize];
+                    *z = numbers[i as usize];
+                }
+                Cells::Dense { starts }
             }
-            Cells::Hash { mask, slots }
+            Err((mask, mut slots)) => {
+                // Lay the cells out in key order (rows along x), not hash order, so that nearby
+                // cells are nearby in memory.
+                let mut occupied: Vec<(u64, usize)> = slots
+                    .iter()
+                    .enumerate()
+                    .filter(|(_, s)| s.key != EMPTY)
+                    .map(|(h, s)| (s.key, h))
+                    .collect();
+                occupied.sort_unstable();
+                let mut acc = 0u32;
+                for &(_, h) in &occupied {
+                    slots[h].start = acc;
+                    acc += slots[h].count;
+                }
+                let mut fill: Vec<u32> = slots.iter().map(|s| s.start).collect();
+                for (i, &k) in keys.iter().enumerate() {
+                    if let Some(h) = find_slot(&slots, mask, k) {
+                        let s = fill[h] as usize;
+                        fill[h] += 1;
+                        pos[s] = positions[i];
+                        num[s] = numbers[i];
+                        idx[s] = i as u32;
+                    }
+                }
+                Cells::Hash { mask, slots }
+            }
         };
         Ok(CellGrid {
             inv_cell: 1.0 / cell,

@@ -95,7 +95,7 @@ fn missing(what: &str) -> Error {
 
 /// The standard frame of `fam` from the raw operations and the atoms.
 pub(super) fn standard_frame(ctx: &Ctx, fam: Family, raw: &[RawOp]) -> Result<Mat3> {
-    let inertia_axes = ctx.axes;
+    let inertia_axes = *ctx.axes();
     let first = |v: Vec<Vec3>, what: &str| v.first().copied().ok_or_else(|| missing(what));
     let perpendicular_to = |z: Vec3| move |o: &RawOp| dot(&o.op.axis, &z).abs() < 0.1;
     match fam {

@@ -1,36 +1,40 @@
 //! The pruned search (step 3 of the module doc, first attempt): the operations found from
-//! the fewest candidate pairs, screened on a short probe, the group named from them and then
+//! the fewest candidate pairs, few of them screened, the group named from them and then
 //! checked as a whole.
 //!
 //! - The second reference atom b is the one whose distance to a is rarest among the atoms
 //!   of its window: an operation sending a to a' sends b to an atom at |ab| from a', so the
 //!   candidates number |W(a)| · k · 2 with k that multiplicity (k = 1 for C60: 120
 //!   candidates, every one a symmetry; the plain search tries 60 · 60 pairs).
-//! - Candidates are screened on a short probe (a subset of the plain search's probe, far
-//!   atoms first, so wrong candidates fail at their first or second atom) and are not
-//!   refitted or tested on all atoms one by one: orders come from the rotation angles, the
-//!   group is named and put in its standard frame from them, and only the group's ideal
-//!   operations are verified against all atoms ([`super::finish`]).
-//! - The answer is accepted only when the verified group is exactly the set of screened
-//!   candidates, matched by the images of a and b. Every true operation passes the probe
-//!   (it passes the larger probe of the plain search), so the screened set holds all of
-//!   them; a verified group equal to it is the structure's whole group. Anything else (a
-//!   false candidate that passed the probe, a name or frame that cannot be built, an
-//!   operation that fails) repeats the search with the atom that failed screened first, then
-//!   with the full probe, and finally leaves the structure to the plain search.
+//! - A candidate is screened on a short probe (atoms of the plain search's probe, one per
+//!   radius band before the second of any, far ones first: wrong candidates fail at their
+//!   first atoms), refitted to it, and must give the atoms of both windows images. One that
+//!   passes becomes a generator: the images of the windows give every product with it
+//!   without a lookup, and the candidates that are products already are never screened.
+//!   Orders come from those products too; the group is named and put in its standard frame
+//!   from them, and only the group's ideal operations are verified against all atoms
+//!   ([`super::finish`]; the frame is fitted to the atoms first when that fails).
+//! - The answer is accepted only when the verified group is exactly the set found, matched
+//!   by the images of a and b. Every true operation passes the screen (its probe is part of
+//!   the plain search's), so that set holds all of them; a verified group equal to it is the
+//!   structure's whole group. Anything else (a false candidate that passed the probe, a name
+//!   or frame that cannot be built, an operation that fails) repeats the search with the
+//!   atom that failed screened first, then with the full probe, and finally leaves the
+//!   structure to the plain search.
+//! - Small structures without symmetry exit before all this: see
+//!   [`lone_pair_without_mirror`] and [`without_symmetry`].
 
-use super::canonical::{group_data, GroupData};
-use super::{
-    finish, frame, naming, pair_frame, sub, windows, Ctx, DetectOptions, RawOp, Symmetry, Windows,
-};
+use super::canonical::{group_data, Family, GroupData};
+use super::{finish, frame, naming, pair_frame, sub, Ctx, DetectOptions, RawOp, Symmetry};
 use crate::error::Error;
 use crate::ops::{
-    cross, det, dot, mat_mul, mat_vec, norm, rotation_matrix, transpose, Mat3, PointOp, Vec3,
-    IDENTITY,
+    cross, det, dot, fit_orthogonal, mat_mul, mat_vec, norm, rotation_matrix, transpose, Mat3,
+    PointOp, Vec3, IDENTITY,
 };
 
-/// Probe atoms screened by the first attempt (besides a, b and atoms that failed before).
-const SHORT_PROBE: usize = 12;
+/// Probe atoms outside the two windows screened by the first attempt (besides atoms that
+/// failed before).
+const SHORT_PROBE: usize = 8;
 /// Atoms that failed verification, screened first on the next attempt, at most.
 const MAX_RETRIES: usize = 4;
 /// Second reference atoms whose multiplicity is measured, at most.
@@ -39,13 +43,21 @@ const B_CHOICES: usize = 64;
 /// The structure's group by the pruned search, or `None` to leave it to the plain search.
 pub(super) fn pruned(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Option<Symmetry> {
     let r: Vec<f64> = ctx.x.iter().map(norm).collect();
-    let win = windows(ctx, &r, 2.0 * ctx.tol);
-    let (a, b) = choose_pair(ctx, &r, &win)?;
+    let c1 = match lone_pair_without_mirror(ctx, &r) {
+        Some(c1) => c1,
+        None => without_symmetry(ctx, &r),
+    };
+    if c1 {
+        let fr = frame::standard_frame(ctx, Family::C1, &[]).ok()?;
+        return finish(ctx, Family::C1, fr, center, opts).ok();
+    }
+    let sh = Shells::new(ctx.species, &r, 2.0 * ctx.tol);
+    let (a, b) = choose_pair(ctx, &sh)?;
     let mut extra: Vec<usize> = Vec::new();
     let mut full = false;
     for _ in 0..=MAX_RETRIES + 1 {
-        let probe = probe(ctx, &r, &win, a, b, &extra, full);
-        match attempt(ctx, &r, &win, a, b, &probe, center, opts) {
+        let probe = probe(ctx, &sh, a, b, &extra, full);
+        match attempt(ctx, &sh, a, b, &probe, center, opts) {
             Ok(sym) => return Some(sym),
             // An atom screened already that fails again: the structure is at the edge of
             // the tolerance, a case for the plain search.
@@ -58,28 +70,311 @@ pub(super) fn pruned(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Option<Sy
     None
 }
 
-fn size(win: &Windows, i: usize) -> usize {
-    (win.range[i].1 - win.range[i].0) as usize
+/// Atoms grouped by element and radius: bins of width at least the window width w, so that
+/// the atoms of an element within w of a radius lie in its bin and the two next to it
+/// (counting sort, O(n); at most 2n + 64 bins, wider ones for sparse radii).
+struct Shells<'a> {
+    r: &'a [f64],
+    w: f64,
+    /// 1 / bin width.
+    inv: f64,
+    /// Bins per element.
+    per: usize,
+    /// Bin of each atom: element block × `per` + radius bin.
+    bin: Vec<u32>,
+    /// Bin k holds `atoms[start[k]..start[k + 1]]`, ascending.
+    start: Vec<u32>,
+    atoms: Vec<u32>,
 }
 
-fn members(win: &Windows, i: usize) -> &[u32] {
-    &win.order[win.range[i].0 as usize..win.range[i].1 as usize]
+impl<'a> Shells<'a> {
+    fn new(species: &[i64], r: &'a [f64], w: f64) -> Self {
+        let n = r.len();
+        // Block of each atom: its species' rank in order of first appearance (species codes
+        // are element + 1000 × isotope rank, so a dense index is built here).
+        let mut codes: Vec<i64> = Vec::new();
+        let mut last = (i64::MIN, 0u32);
+        let block: Vec<u32> = species
+            .iter()
+            .map(|&z| {
+                if z != last.0 {
+                    let b = match codes.iter().position(|&c| c == z) {
+                        Some(b) => b as u32,
+                        None => {
+                            codes.push(z);
+                            (codes.len() - 1) as u32
+                        }
+                    };
+                    last = (z, b);
+                }
+                last.1
+            })
+            .collect();
+        let blocks = codes.len() as u32;
+        let blocks = blocks.max(1) as usize;
+        let r_max = r.iter().copied().fold(0.0, f64::max);
+        let cap = ((2 * n + 64) / blocks).max(2);
+        let mut width = w;
+        if r_max / width >= (cap - 1) as f64 {
+            width = r_max / (cap - 1) as f64;
+        }
+        let inv = 1.0 / width;
+        let per = (r_max * inv) as usize + 1;
+        let bin: Vec<u32> = (0..n)
+            .map(|i| {
+                let k = ((r[i] * inv) as usize).min(per - 1);
+                (block[i] as usize * per + k) as u32
+            })
+            .collect();
+        let mut start = vec![0u32; blocks * per + 1];
+        for &k in &bin {
+            start[k as usize + 1] += 1;
+        }
+        for k in 1..start.len() {
+            start[k] += start[k - 1];
+        }
+        let mut fill = start.clone();
+        let mut atoms = vec![0u32; n];
+        for (i, &k) in bin.iter().enumerate() {
+            atoms[fill[k as usize] as usize] = i as u32;
+            fill[k as usize] += 1;
+        }
+        Shells {
+            r,
+            w,
+            inv,
+            per,
+            bin,
+            start,
+            atoms,
+        }
+    }
+
+    /// The atoms of the bins that hold i's element within `radius` of its radius.
+    fn span(&self, i: usize, radius: f64) -> &[u32] {
+        let b = self.bin[i] as usize;
+        let base = b - b % self.per;
+        let lo = ((self.r[i] - radius).max(0.0) * self.inv) as usize;
+        let hi = (((self.r[i] + radius) * self.inv) as usize).min(self.per - 1);
+        &self.atoms[self.start[base + lo] as usize..self.start[base + hi + 1] as usize]
+    }
+
+    /// The window of atom i: atoms of its element whose radius is within w of its own.
+    fn window(&self, i: usize) -> Vec<u32> {
+        let ri = self.r[i];
+        self.span(i, self.w)
+            .iter()
+            .copied()
+            .filter(|&j| (self.r[j as usize] - ri).abs() <= self.w)
+            .collect()
+    }
+
+    /// Size of i's window: counted when its bins hold few atoms, else their number (the
+    /// size or a little more).
+    fn size(&self, i: usize) -> usize {
+        let span = self.span(i, self.w);
+        if span.len() > 16 {
+            return span.len();
+        }
+        let ri = self.r[i];
+        span.iter()
+            .filter(|&&j| (self.r[j as usize] - ri).abs() <= self.w)
+            .count()
+    }
+}
+
+/// The first early exit for small structures without symmetry (up to 32 atoms, where the
+/// plain search's probe is every atom): reference atoms a and b, chosen as below, each
+/// alone in its window, so that every operation fixes both and can only be E or the mirror
+/// through the centre, a and b. `Some(true)` when that mirror fails the screen at some
+/// atom (C1), `Some(false)` when it passes, `None` when there are no such a and b.
+fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64]) -> Option<bool> {
+    let (x, n, w) = (&ctx.x, r.len(), 2.0 * ctx.tol);
+    if n > 32 {
+        return None;
+    }
+    // Alone: no other atom of its element within w of its radius (neighbours in the order
+    // of species and radius; radii are ≥ 0, so their bits sort as the numbers do).
+    let mut keys: Vec<u128> = (0..n)
+        .map(|i| {
+            (u128::from(ctx.species[i] as u32) << 96)
+                | (u128::from(r[i].to_bits()) << 32)
+                | i as u128
+        })
+        .collect();
+    keys.sort_unstable();
+    let mut alone = vec![true; n];
+    for pair in keys.windows(2) {
+        let (i, j) = (pair[0] as u32 as usize, pair[1] as u32 as usize);
+        if ctx.species[i] == ctx.species[j] && r[j] - r[i] <= w {
+            alone[i] = false;
+            alone[j] = false;
+        }
+    }
+    let r_max = r.iter().copied().fold(0.0, f64::max);
+    // a: the smallest window among the far atoms (1 when alone), then the largest radius.
+    let (_, a) = (0..n)
+        .filter(|&i| alone[i] && r[i] >= 0.5 * r_max && r[i] > 0.0)
+        .map(|i| (u64::MAX - r[i].to_bits(), i))
+        .min()?;
+    let ua = [x[a][0] / r[a], x[a][1] / r[a], x[a][2] / r[a]];
+    let perp: Vec<f64> = x
+        .iter()
+        .map(|p| {
+            let t = dot(p, &ua);
+            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
+        })
+        .collect();
+    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let (_, b) = (0..n)
+        .filter(|&i| alone[i] && perp[i] >= 0.5 * d_max && perp[i] > 0.0)
+        .map(|i| (u64::MAX - perp[i].to_bits(), i))
+        .min()?;
+    let f = pair_frame(&x[a], &x[b])?;
+    let u = f[2];
+    // Atoms within 1.5·tol of the plane move by at most 3·tol: they pass.
+    Some(x.iter().enumerate().any(|(i, p)| {
+        let t = dot(p, &u);
+        let q = [
+            p[0] - 2.0 * t * u[0],
+            p[1] - 2.0 * t * u[1],
+            p[2] - 2.0 * t * u[2],
+        ];
+        t.abs() > 1.5 * ctx.tol && ctx.nearest(&q, ctx.species[i], 3.0 * ctx.tol).is_none()
+    }))
+}
+
+/// The second early exit for small structures without symmetry (up to 32 atoms):
+/// reference atoms a and b chosen as below (smallest windows), and every candidate pair of
+/// images of them, each screened on all atoms; when no candidate but E passes, the group
+/// is C1.
+fn without_symmetry(ctx: &Ctx, r: &[f64]) -> bool {
+    let (x, n, w, tol) = (&ctx.x, r.len(), 2.0 * ctx.tol, ctx.tol);
+    if n > 32 {
+        return false;
+    }
+    // Atoms in the order of species and radius (radii are ≥ 0: their bits sort as the
+    // numbers do); each window is a run of that order.
+    let mut keys: Vec<u128> = (0..n)
+        .map(|i| {
+            (u128::from(ctx.species[i] as u32) << 96)
+                | (u128::from(r[i].to_bits()) << 32)
+                | i as u128
+        })
+        .collect();
+    keys.sort_unstable();
+    let order: Vec<usize> = keys.iter().map(|&k| k as u32 as usize).collect();
+    let mut at = vec![0usize; n];
+    for (s, &i) in order.iter().enumerate() {
+        at[i] = s;
+    }
+    // The run of atoms of i's element within `band` of its radius.
+    let run = |i: usize, band: f64| -> std::ops::Range<usize> {
+        let near = |s: usize| {
+            let j = order[s];
+            ctx.species[j] == ctx.species[i] && (r[j] - r[i]).abs() <= band
+        };
+        let (mut lo, mut hi) = (at[i], at[i] + 1);
+        while lo > 0 && near(lo - 1) {
+            lo -= 1;
+        }
+        while hi < n && near(hi) {
+            hi += 1;
+        }
+        lo..hi
+    };
+    // Window sizes, by one sweep of the order.
+    let mut size = vec![0u32; n];
+    let (mut lo, mut hi) = (0usize, 0usize);
+    for (s, &i) in order.iter().enumerate() {
+        let same = |t: usize| {
+            let j = order[t];
+            ctx.species[j] == ctx.species[i] && (r[j] - r[i]).abs() <= w
+        };
+        while !same(lo) {
+            lo += 1;
+        }
+        hi = hi.max(s + 1);
+        while hi < n && same(hi) {
+            hi += 1;
+        }
+        size[i] = (hi - lo) as u32;
+    }
+    let r_max = r.iter().copied().fold(0.0, f64::max);
+    let Some((_, _, a)) = (0..n)
+        .filter(|&i| r[i] >= 0.5 * r_max && r[i] > 0.0)
+        .map(|i| (size[i], u64::MAX - r[i].to_bits(), i))
+        .min()
+    else {
+        return false;
+    };
+    let ua = [x[a][0] / r[a], x[a][1] / r[a], x[a][2] / r[a]];
+    let perp: Vec<f64> = x
+        .iter()
+        .map(|p| {
+            let t = dot(p, &ua);
+            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
+        })
+        .collect();
+    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let Some((_, _, b)) = (0..n)
+        .filter(|&i| perp[i] >= 0.5 * d_max && perp[i] > 0.0)
+        .map(|i| (size[i], u64::MAX - perp[i].to_bits(), i))
+        .min()
+    else {
+        return false;
+    };
+    let Some(ref_frame) = pair_frame(&x[a], &x[b]) else {
+        return false;
+    };
+    let d_ab = norm(&sub(&x[a], &x[b]));
+    // Every atom has an image within 3·tol under m (images lie at the atom's radius).
+    let passes = |m: &Mat3| {
+        x.iter().enumerate().all(|(i, p)| {
+            let q = mat_vec(m, p);
+            order[run(i, 3.0 * tol)].iter().any(|&j| {
+                let d = sub(&x[j], &q);
+                dot(&d, &d) <= 9.0 * tol * tol
+            })
+        })
+    };
+    for &ap in &order[run(a, w)] {
+        for &bp in &order[run(b, w)] {
+            if ap == bp || (norm(&sub(&x[ap], &x[bp])) - d_ab).abs() > 2.5 * tol {
+                continue;
+            }
+            let Some(img_frame) = pair_frame(&x[ap], &x[bp]) else {
+                continue;
+            };
+            for proper in [true, false] {
+                if proper && ap == a && bp == b {
+                    continue; // E
+                }
+                let mut f = img_frame;
+                if !proper {
+                    f[2] = [-f[2][0], -f[2][1], -f[2][2]];
+                }
+                if passes(&mat_mul(&transpose(&f), &ref_frame)) {
+                    return false;
+                }
+            }
+        }
+    }
+    true
 }
 
 /// The reference atoms: a as in the plain search (smallest window among the atoms at ≥ half
 /// the largest radius); b among the atoms at ≥ half the largest distance from the line of a,
 /// the one with the fewest atoms of its window at its distance from a.
-fn choose_pair(ctx: &Ctx, r: &[f64], win: &Windows) -> Option<(usize, usize)> {
+fn choose_pair(ctx: &Ctx, sh: &Shells) -> Option<(usize, usize)> {
+    let r = sh.r;
     let n = r.len();
     let r_max = r.iter().copied().fold(0.0, f64::max);
     let a = (0..n)
         .filter(|&i| r[i] >= 0.5 * r_max && r[i] > 0.0)
-        .min_by(|&i, &j| {
-            size(win, i)
-                .cmp(&size(win, j))
-                .then(r[j].total_cmp(&r[i]))
-                .then(i.cmp(&j))
-        })?;
+        .map(|i| (sh.size(i), u64::MAX - r[i].to_bits(), i))
+        .min()?
+        .2;
     let ua = [ctx.x[a][0] / r[a], ctx.x[a][1] / r[a], ctx.x[a][2] / r[a]];
     let perp: Vec<f64> = ctx
         .x
@@ -96,7 +391,7 @@ fn choose_pair(ctx: &Ctx, r: &[f64], win: &Windows) -> Option<(usize, usize)> {
     // (window size, farthest from the line first, index) as one integer key.
     let mut eligible: Vec<(u32, u64, u32)> = eligible
         .into_iter()
-        .map(|i| (size(win, i) as u32, u64::MAX - perp[i].to_bits(), i as u32))
+        .map(|i| (sh.size(i) as u32, u64::MAX - perp[i].to_bits(), i as u32))
         .collect();
     if eligible.len() > B_CHOICES {
         eligible.select_nth_unstable(B_CHOICES - 1);
@@ -107,7 +402,7 @@ fn choose_pair(ctx: &Ctx, r: &[f64], win: &Windows) -> Option<(usize, usize)> {
     let band = 2.5 * ctx.tol;
     let multiplicity = |b: usize| -> usize {
         let d_ab = norm(&sub(&ctx.x[a], &ctx.x[b]));
-        members(win, b)
+        sh.window(b)
             .iter()
             .filter(|&&j| (norm(&sub(&ctx.x[a], &ctx.x[j as usize])) - d_ab).abs() <= band)
             .count()
@@ -126,22 +421,16 @@ fn choose_pair(ctx: &Ctx, r: &[f64], win: &Windows) -> Option<(usize, usize)> {
 }
 
 /// Probe atoms in screening order: atoms that failed before, then far atoms of the plain
-/// search's probe (the first `SHORT_PROBE` of them unless `full`), then a and b.
-fn probe(
-    ctx: &Ctx,
-    r: &[f64],
-    win: &Windows,
-    a: usize,
-    b: usize,
-    extra: &[usize],
-    full: bool,
-) -> Vec<usize> {
+/// search's probe outside the windows of a and b (which are screened in full), the first
+/// `SHORT_PROBE` of them unless `full`.
+fn probe(ctx: &Ctx, sh: &Shells, a: usize, b: usize, extra: &[usize], full: bool) -> Vec<usize> {
+    let r = sh.r;
     let n = ctx.x.len();
     let all: Vec<u32> = (0..n as u32).collect();
-    let pool: Vec<usize> = super::spread(members(win, a), 16)
-        .chain(super::spread(members(win, b), 16))
-        .chain(super::spread(&all, 32))
-        .filter(|&i| i != a && i != b && !extra.contains(&i))
+    let (wa, wb) = (sh.window(a), sh.window(b));
+    let pool: Vec<usize> = super::spread(&all, 32)
+        .filter(|&i| !wa.contains(&(i as u32)) && !wb.contains(&(i as u32)))
+        .filter(|i| !extra.contains(i))
         .collect();
     // Far atoms first (radii are ≥ 0: their bits sort as the numbers do), one per window
     // before the second of any: atoms of one shell may share symmetries the rest lacks.
@@ -155,7 +444,7 @@ fn probe(
     let mut ranked: Vec<(u32, u32)> = keyed
         .iter()
         .map(|&(_, i)| {
-            let w = win.range[i as usize].0;
+            let w = sh.bin[i as usize];
             let rank = match seen.iter_mut().find(|(v, _)| *v == w) {
                 Some((_, c)) => {
                     *c += 1;
@@ -176,59 +465,42 @@ fn probe(
     }
     let mut out: Vec<usize> = extra.to_vec();
     out.extend(pool);
-    out.push(a);
-    out.push(b);
     out
 }
 
-/// Nearest atom of `element` within `radius` of `q`, where `q` is an image of atom `i` (so
-/// at its radius): the atoms of i's element within `radius` of its radius, from the sorted
-/// windows when they are few, else the grid (or brute force).
-fn nearest_image(
-    ctx: &Ctx,
-    r: &[f64],
-    win: &Windows,
-    i: usize,
-    q: &Vec3,
-    radius: f64,
-) -> Option<(usize, f64)> {
-    const FEW: usize = 12;
-    let z = ctx.species[i];
-    let p = win.pos[i] as usize;
-    let same = |s: usize| {
-        let j = win.order[s] as usize;
-        ctx.species[j] == z && (r[j] - r[i]).abs() <= radius
-    };
-    let mut lo = p;
-    while lo > 0 && p - lo < FEW && same(lo - 1) {
-        lo -= 1;
+/// Nearest atom of i's element within `radius` of `q`, an image of atom i (so at its
+/// radius), with its squared distance: a scan of the atoms of its shells when they are few, else the grid (or brute
+/// force).
+fn nearest_image(ctx: &Ctx, sh: &Shells, i: usize, q: &Vec3, radius: f64) -> Option<(usize, f64)> {
+    const FEW: usize = 16;
+    let span = sh.span(i, radius);
+    if span.len() > FEW {
+        return ctx
+            .nearest(q, ctx.species[i], radius)
+            .map(|(j, d)| (j, d * d));
     }
-    let mut hi = p + 1;
-    while hi < win.order.len() && hi - lo < 2 * FEW && same(hi) {
-        hi += 1;
-    }
-    if (lo > 0 && same(lo - 1)) || (hi < win.order.len() && same(hi)) {
-        return ctx.nearest(q, z, radius);
-    }
+    // An atom within tol/2 is the nearest: no two atoms lie within tol of each other.
+    let sure = 0.25 * ctx.tol * ctx.tol;
     let mut best = (usize::MAX, radius * radius);
-    for &j in &win.order[lo..hi] {
+    for &j in span {
         let x = &ctx.x[j as usize];
         let d = [x[0] - q[0], x[1] - q[1], x[2] - q[2]];
         let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
         if d2 <= best.1 {
             best = (j as usize, d2);
+            if d2 <= sure {
+                break;
+            }
         }
     }
-    (best.0 != usize::MAX).then(|| (best.0, best.1.sqrt()))
+    (best.0 != usize::MAX).then_some(best)
 }
 
 /// One pass of the pruned search: `Err(Some(atom))` when verification failed at an atom,
 /// `Err(None)` for any other reason.
-#[allow(clippy::too_many_arguments)]
 fn attempt(
     ctx: &Ctx,
-    r: &[f64],
-    win: &Windows,
+    sh: &Shells,
     a: usize,
     b: usize,
     probe: &[usize],
@@ -240,89 +512,207 @@ fn attempt(
     let ref_frame = pair_frame(&x[a], &x[b]).ok_or(None)?;
     let d_ab = norm(&sub(&x[a], &x[b]));
     let radius = 3.0 * tol;
-    let (wa, wb) = (members(win, a), members(win, b));
-    // Operations are keyed by the images of a and b (members of their windows) and their
-    // handedness: slot of (ia, ib, proper) in a dense table.
-    let (ra, rb) = (win.range[a].0 as usize, win.range[b].0 as usize);
-    let slot = |ia: usize, ib: usize, proper: bool| -> Option<usize> {
-        let (pa, pb) = (win.pos[ia] as usize, win.pos[ib] as usize);
-        let (ka, kb) = (pa.checked_sub(ra)?, pb.checked_sub(rb)?);
-        (ka < wa.len() && kb < wb.len()).then(|| 2 * (ka * wb.len() + kb) + usize::from(proper))
+    let (wa, wb) = (sh.window(a), sh.window(b));
+    let (na, nb) = (wa.len(), wb.len());
+    // Position of an atom in a window.
+    let place = |w: &[u32]| {
+        let mut v: Vec<(u32, u32)> = w.iter().enumerate().map(|(k, &j)| (j, k as u32)).collect();
+        v.sort_unstable();
+        v
     };
-    let mut seen: Vec<u32> = vec![u32::MAX; 2 * wa.len() * wb.len()];
-    let mut found: Vec<RawOp> = Vec::new();
-    // Largest probe residual: over the lever arm of a (≥ half the largest radius), a bound
-    // on the candidates' angular error.
+    let (pla, plb) = (place(&wa), place(&wb));
+    let find = |v: &[(u32, u32)], j: usize| -> Option<usize> {
+        let k = v
+            .binary_search_by_key(&(j as u32), |&(atom, _)| atom)
+            .ok()?;
+        Some(v[k].1 as usize)
+    };
+    let (ka0, kb0) = (find(&pla, a).ok_or(None)?, find(&plb, b).ok_or(None)?);
+    // An operation is known by the images of a and b (positions in their windows) and its
+    // handedness: its slot in a dense table. A generator keeps the images of every atom of
+    // both windows (positions in the same window, W(a) then W(b); `OUT` for an image outside
+    // it: a window is a band of radii, not an orbit), so a generator times any element needs
+    // no lookup; every other element is a generator times an element found before it.
+    const OUT: u32 = u32::MAX;
+    let slot = |ka: u32, kb: u32, proper: bool| -> Option<usize> {
+        (ka != OUT && kb != OUT).then(|| 2 * (ka as usize * nb + kb as usize) + usize::from(proper))
+    };
+    struct Element {
+        m: Mat3,
+        proper: bool,
+        /// Images of a and b (positions in their windows).
+        ka: u32,
+        kb: u32,
+        /// (generator, element) whose product this is; `None` for E and the generators.
+        parent: Option<(usize, usize)>,
+        /// Generators: the images of both windows.
+        img: Vec<u32>,
+    }
+    let mut index: Vec<u32> = vec![u32::MAX; 2 * na * nb];
+    let mut els: Vec<Element> = vec![Element {
+        m: IDENTITY,
+        proper: true,
+        ka: ka0 as u32,
+        kb: kb0 as u32,
+        parent: None,
+        img: Vec::new(),
+    }];
+    let identity = slot(ka0 as u32, kb0 as u32, true).ok_or(None)?;
+    index[identity] = 0;
+    let mut gens: Vec<usize> = Vec::new();
+    // Largest screening residual: whether the frame needs a fit to the atoms.
     let mut slack = 0.0_f64;
-    let mut screen = |m: &Mat3, proper: bool| -> Option<RawOp> {
-        let (mut ia, mut ib) = (usize::MAX, usize::MAX);
+    // A candidate passes when every probe atom and every atom of both windows has an image
+    // within 3·tol (the windows' images are kept where they lie in the same window); it is
+    // then refitted to those images (least squares).
+    let screen = |m: &mut Mat3, proper: bool, slack: &mut f64| -> Option<Vec<u32>> {
         let mut worst = 0.0_f64;
+        let mut h = [[0.0; 3]; 3];
         for &i in probe {
-            let q = mat_vec(m, &x[i]);
-            let (j, d) = nearest_image(ctx, r, win, i, &q, radius)?;
-            worst = worst.max(d);
-            if i == a {
-                ia = j;
-            } else if i == b {
-                ib = j;
+            let (j, d2) = nearest_image(ctx, sh, i, &mat_vec(m, &x[i]), radius)?;
+            worst = worst.max(d2);
+            super::add_outer(&mut h, &x[i], &x[j]);
+        }
+        let mut img = Vec::with_capacity(na + nb);
+        for (w, pl) in [(&wa, &pla), (&wb, &plb)] {
+            for &i in w.iter() {
+                let i = i as usize;
+                let (j, d2) = nearest_image(ctx, sh, i, &mat_vec(m, &x[i]), radius)?;
+                worst = worst.max(d2);
+                super::add_outer(&mut h, &x[i], &x[j]);
+                img.push(find(pl, j).map_or(OUT, |k| k as u32));
             }
         }
-        slack = slack.max(worst);
-        Some(RawOp {
-            m: *m,
-            proper,
-            ia,
-            ib,
-            op: PointOp::from_matrix(*m),
-            order: 0,
-        })
+        if worst > 1e-20 * tol * tol {
+            *m = fit_orthogonal(&h, proper);
+        }
+        *slack = slack.max(worst.sqrt());
+        Some(img)
     };
-    for &ap in wa {
+    for (kap, &ap) in wa.iter().enumerate() {
         let ap = ap as usize;
-        for &bp in wb {
+        for (kbp, &bp) in wb.iter().enumerate() {
             let bp = bp as usize;
-            if ap == bp {
-                continue;
-            }
-            if (norm(&sub(&x[ap], &x[bp])) - d_ab).abs() > 2.5 * tol {
+            if ap == bp || (norm(&sub(&x[ap], &x[bp])) - d_ab).abs() > 2.5 * tol {
                 continue;
             }
             let Some(img_frame) = pair_frame(&x[ap], &x[bp]) else {
                 continue;
             };
             for proper in [true, false] {
-                let op = if ap == a && bp == b && proper {
-                    Some(RawOp {
-                        m: IDENTITY,
-                        proper,
-                        ia: a,
-                        ib: b,
-                        op: PointOp::from_matrix(IDENTITY),
-                        order: 1,
-                    })
-                } else {
-                    let mut f = img_frame;
-                    if !proper {
-                        f[2] = [-f[2][0], -f[2][1], -f[2][2]];
-                    }
-                    screen(&mat_mul(&transpose(&f), &ref_frame), proper)
+                if slot(kap as u32, kbp as u32, proper).is_some_and(|k| index[k] != u32::MAX) {
+                    continue; // a product of operations found already
+                }
+                let mut f = img_frame;
+                if !proper {
+                    f[2] = [-f[2][0], -f[2][1], -f[2][2]];
+                }
+                let mut m = mat_mul(&transpose(&f), &ref_frame);
+                let Some(img) = screen(&mut m, proper, &mut slack) else {
+                    continue;
                 };
-                if let Some(op) = op {
-                    let k = slot(op.ia, op.ib, op.proper).ok_or(None)?;
-                    if seen[k] == u32::MAX {
-                        seen[k] = found.len() as u32;
-                        found.push(op);
+                let (ka, kb) = (img[ka0], img[na + kb0]);
+                let Some(k) = slot(ka, kb, proper) else {
+                    continue;
+                };
+                if index[k] != u32::MAX {
+                    continue;
+                }
+                let new = els.len();
+                index[k] = new as u32;
+                gens.push(new);
+                els.push(Element {
+                    m,
+                    proper,
+                    ka,
+                    kb,
+                    parent: None,
+                    img,
+                });
+                // Close under the generators: the elements found so far times the new
+                // generator, new elements times every generator.
+                let mut queue: std::collections::VecDeque<(usize, bool)> =
+                    (0..els.len()).map(|q| (q, false)).collect();
+                while let Some((q, every)) = queue.pop_front() {
+                    let by: &[usize] = if every { &gens } else { &[new] };
+                    for &g in by {
+                        let (eg, eq) = (&els[g], &els[q]);
+                        let (ka, kb) = match (eq.ka, eq.kb) {
+                            (OUT, _) | (_, OUT) => (OUT, OUT),
+                            (ka, kb) => (eg.img[ka as usize], eg.img[na + kb as usize]),
+                        };
+                        let proper = eg.proper == eq.proper;
+                        let k = slot(ka, kb, proper).ok_or(None)?;
+                        if index[k] == u32::MAX {
+                            let m = mat_mul(&eg.m, &eq.m);
+                            index[k] = els.len() as u32;
+                            queue.push_back((els.len(), true));
+                            els.push(Element {
+                                m,
+                                proper,
+                                ka,
+                                kb,
+                                parent: Some((g, q)),
+                                img: Vec::new(),
+                            });
+                        }
                     }
                 }
             }
         }
     }
-    let h = found.len();
-    // Orders from the angles, to within the candidates' accuracy (generous: a wrong order
-    // only makes the group fail its checks below).
-    let angle_tol = (8.0 * slack / (0.5 * norm(&x[a]))).to_degrees().max(1e-7);
-    for o in &mut found {
-        o.order = o.op.order_within(h.max(1), angle_tol).ok_or(None)?;
+    let h = els.len();
+    // Orders from the products: the smallest k with eᵏ = E. Left multiplication by each
+    // generator as a table; e·x is then x multiplied by the generators of e's chain.
+    let ng = gens.len();
+    let mut times: Vec<u32> = vec![0; h * ng];
+    for (q, eq) in els.iter().enumerate() {
+        for (gi, &g) in gens.iter().enumerate() {
+            let eg = &els[g];
+            let (ka, kb) = match (eq.ka, eq.kb) {
+                (OUT, _) | (_, OUT) => (OUT, OUT),
+                (ka, kb) => (eg.img[ka as usize], eg.img[na + kb as usize]),
+            };
+            let k = slot(ka, kb, eg.proper == eq.proper).ok_or(None)?;
+            if index[k] == u32::MAX {
+                return Err(None);
+            }
+            times[q * ng + gi] = index[k];
+        }
+    }
+    let gen_no = |g: usize| gens.iter().position(|&x| x == g).unwrap_or(0);
+    let mut found: Vec<RawOp> = Vec::with_capacity(h);
+    let mut chain: Vec<usize> = Vec::new();
+    for (e, el) in els.iter().enumerate() {
+        // e = g1·g2·…·gd (E or a generator last).
+        chain.clear();
+        let mut root = e;
+        while let Some((g, q)) = els[root].parent {
+            chain.push(gen_no(g));
+            root = q;
+        }
+        if root != 0 {
+            chain.push(gen_no(root));
+        }
+        let mut power = e;
+        let mut order = 1;
+        while power != 0 {
+            for &gi in chain.iter().rev() {
+                power = times[power * ng + gi] as usize;
+            }
+            order += 1;
+            if order > h {
+                return Err(None);
+            }
+        }
+        found.push(RawOp {
+            m: el.m,
+            proper: el.proper,
+            ia: wa[el.ka as usize] as usize,
+            ib: wb[el.kb as usize] as usize,
+            op: PointOp::from_matrix(el.m),
+            order,
+        });
     }
     let elems: Vec<naming::Element> = found
         .iter()
@@ -336,15 +726,23 @@ fn attempt(
     if data.ops.len() != h {
         return Err(None);
     }
-    let mut fr = frame::standard_frame(ctx, fam, &found).map_err(|_| None)?;
-    // Exact candidates give an exact frame; otherwise fit it to the atoms.
-    if slack > 1e-9 * tol {
-        fr = refine_frame(ctx, r, win, fr, &data).ok_or(None)?;
-    }
-    let sym = finish(ctx, fam, fr, center, opts).map_err(|e| match e {
+    let fr = frame::standard_frame(ctx, fam, &found).map_err(|_| None)?;
+    let failed_at = |e: Error| match e {
         Error::NotASymmetry { atom, .. } => Some(atom),
         _ => None,
-    })?;
+    };
+    // The frame comes from operations fitted to the probe; when the ideal operations miss
+    // an atom in it and the candidates did not hit their images exactly, the frame is fitted
+    // to the atoms and verified once more.
+    let sym = match finish(ctx, fam, fr, center, opts) {
+        Ok(sym) => sym,
+        Err(Error::NotASymmetry { atom, .. }) if slack <= 1e-9 * tol => return Err(Some(atom)),
+        Err(Error::NotASymmetry { .. }) => {
+            let fr = refine_frame(ctx, sh, fr, &data).ok_or(None)?;
+            finish(ctx, fam, fr, center, opts).map_err(failed_at)?
+        }
+        Err(e) => return Err(failed_at(e)),
+    };
     // The verified group must be the screened set: the images of a and b of every
     // operation, composed through the words when only the generators were verified.
     let mut images: Vec<Option<(usize, usize)>> = vec![None; h];
@@ -367,7 +765,8 @@ fn attempt(
     let mut matched = vec![false; h];
     for (k, img) in images.iter().enumerate() {
         let (ia, ib) = img.ok_or(None)?;
-        let idx = seen[slot(ia, ib, sym.ops[k].proper).ok_or(None)?];
+        let (ka, kb) = (find(&pla, ia).ok_or(None)?, find(&plb, ib).ok_or(None)?);
+        let idx = index[slot(ka as u32, kb as u32, sym.ops[k].proper).ok_or(None)?];
         if idx == u32::MAX || std::mem::replace(&mut matched[idx as usize], true) {
             return Err(None);
         }
@@ -378,29 +777,34 @@ fn attempt(
 /// The frame rotated by a least-squares step (twice) so that the group's ideal generators
 /// map the atoms onto their images as closely as possible: for a small rotation ω of the
 /// frame an ideal operation M becomes M + [ω]×M − M[ω]×, which moves the image y = M·x by
-/// −[y]×(1 − det(M)·M)·ω. Images are found once, within 3·tol.
-fn refine_frame(ctx: &Ctx, r: &[f64], win: &Windows, fr: Mat3, data: &GroupData) -> Option<Mat3> {
+/// −[y]×(1 − det(M)·M)·ω. Images are found once, within 3·tol, for all atoms or (large
+/// structures) an evenly spread sample of `REFINE_SAMPLE`.
+fn refine_frame(ctx: &Ctx, sh: &Shells, fr: Mat3, data: &GroupData) -> Option<Mat3> {
+    const REFINE_SAMPLE: usize = 4096;
     let x = &ctx.x;
+    let all: Vec<u32> = (0..x.len() as u32).collect();
+    let atoms: Vec<usize> = super::spread(&all, REFINE_SAMPLE).collect();
     let mut fr = fr;
     let ideal = |fr: &Mat3, g: usize| mat_mul(&transpose(fr), &mat_mul(&data.ops[g], fr));
     let mut images: Vec<Vec<u32>> = Vec::with_capacity(data.generators.len());
     for &g in &data.generators {
         let m = ideal(&fr, g);
-        let perm = (0..x.len())
-            .map(|i| {
-                nearest_image(ctx, r, win, i, &mat_vec(&m, &x[i]), 3.0 * ctx.tol)
-                    .map(|(j, _)| j as u32)
+        let perm = atoms
+            .iter()
+            .map(|&i| {
+                nearest_image(ctx, sh, i, &mat_vec(&m, &x[i]), 3.0 * ctx.tol).map(|(j, _)| j as u32)
             })
             .collect::<Option<Vec<u32>>>()?;
         images.push(perm);
     }
     // Σ (|x|² 1 − x xᵀ): rotated by M it is the same sum over the images y = M·x.
     let mut s0 = [[0.0; 3]; 3];
-    for p in x {
+    for &i in &atoms {
+        let p = &x[i];
         let p2 = dot(p, p);
-        for i in 0..3 {
-            for j in 0..3 {
-                s0[i][j] += if i == j { p2 } else { 0.0 } - p[i] * p[j];
+        for a in 0..3 {
+            for b in 0..3 {
+                s0[a][b] += if a == b { p2 } else { 0.0 } - p[a] * p[b];
             }
         }
     }
@@ -418,7 +822,7 @@ fn refine_frame(ctx: &Ctx, r: &[f64], win: &Windows, fr: Mat3, data: &GroupData)
             }
             let sy = mat_mul(&m, &mat_mul(&s0, &transpose(&m)));
             let mut c = [0.0; 3];
-            for (i, &j) in perm.iter().enumerate() {
+            for (&i, &j) in atoms.iter().zip(perm) {
                 let w = cross(&mat_vec(&m, &x[i]), &x[j as usize]);
                 c = [c[0] + w[0], c[1] + w[1], c[2] + w[2]];
             }

@@ -103,13 +103,44 @@ fn composed(
                 continue;
             }
             let (g, j) = data.words[k];
-            let (pg, pj) = (&perms[g], &perms[j]);
-            let mut perm: Vec<u32> = pj.iter().map(|&t| pg[t as usize]).collect();
-            dev = dev.max(check(ctx, &ops[k].matrix, &mut perm)?);
+            let (perm, d) = check_composed(ctx, &ops[k].matrix, &perms[g], &perms[j])?;
+            dev = dev.max(d);
             perms[k] = perm;
         }
     }
     Some((perms, dev))
+}
+
+/// The permutation π_g ∘ π_j (atom i goes to π_g(π_j(i))) checked as the operation `m`
+/// (see [`check`]), composed and checked in one pass; with its largest image distance.
+fn check_composed(ctx: &Ctx, m: &Mat3, pg: &[u32], pj: &[u32]) -> Option<(Vec<u32>, f64)> {
+    let half2 = 0.25 * ctx.tol * ctx.tol;
+    let x = &ctx.x;
+    let n = pj.len();
+    let mut perm = vec![0u32; n];
+    let parts = parallel::map_chunks_mut(&mut perm, PARALLEL_MIN_ATOMS, |start, out| {
+        let mut worst = 0.0_f64;
+        let mut far = false;
+        for (k, slot) in out.iter_mut().enumerate() {
+            let i = start + k;
+            let j = pg[pj[i] as usize];
+            *slot = j;
+            let d2 = dist2(m, &x[i], &x[j as usize]);
+            far |= d2.is_nan() || d2 > half2;
+            worst = worst.max(d2);
+        }
+        (worst, far)
+    });
+    let (mut worst, mut far) = (0.0_f64, false);
+    for (w, f) in parts {
+        worst = worst.max(w);
+        far |= f;
+    }
+    if !far {
+        return Some((perm, worst.sqrt()));
+    }
+    let d = check(ctx, m, &mut perm)?;
+    Some((perm, d))
 }
 
 /// Squared distance from R·x_i to atom j, as the lookup measures it.
