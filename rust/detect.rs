@@ -121,6 +121,8 @@ pub struct Symmetry {
     pub verified: Vec<usize>,
     /// One permutation per entry of `verified`: atom i → atom perm[i].
     pub permutations: Vec<Vec<u32>>,
+    /// Largest image distance of each entry of `verified` (its atoms to their images), Å.
+    pub deviations: Vec<f64>,
     /// Largest image distance over the verified operations, Å.
     pub max_deviation: f64,
 }
@@ -466,6 +468,7 @@ fn single_atom(center: Vec3, opts: &DetectOptions) -> Result<Symmetry> {
         class_of: data.class_of.clone(),
         generators: data.generators.clone(),
         permutations: vec![vec![0]; verified.len()],
+        deviations: vec![0.0; verified.len()],
         verified,
         max_deviation: 0.0,
     })
@@ -526,6 +529,7 @@ fn finish(
     let verify::Verified {
         verified,
         permutations,
+        deviations,
         max_deviation,
     } = verify::verify(ctx, &ops, &data, all)?;
     Ok(Symmetry {
@@ -539,6 +543,7 @@ fn finish(
         generators,
         verified,
         permutations,
+        deviations,
         max_deviation,
     })
 }

@@ -28,6 +28,7 @@ class Detection:
     generators: I64  # indices of a generating set
     verified: I64  # (k,) operations verified against the atoms (all, or E + generators)
     permutations: I64  # (k, n_atoms) atom i -> permutations[j, i] under verified[j]
+    deviations: F64  # (k,) largest image distance under verified[j], Å (0 for E)
     max_deviation: float  # largest image distance over the verified operations, Å
 
 class XyzFrames:

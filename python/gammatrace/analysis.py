@@ -376,10 +376,7 @@ class Analysis:
             "order": self.order,
             "tolerance": self.tol,
             "max_deviation": float(self.max_deviation),
-            "classes": [
-                {"label": c.label, "size": c.size, "proper": c.proper, "angle": float(c.angle)}
-                for c in self.classes
-            ],
+            "classes": self.table.class_dicts(),
             "representations": {},
         }
         for spec in bases:

@@ -124,10 +124,14 @@ def rotational_freedom(table) -> int:
 
 
 def external_characters(table) -> np.ndarray:
-    """Characters of Γ_trans + Γ_rot per class (see :func:`rotational_freedom`).
+    """Characters of Γ_trans + Γ_rot per class (see :func:`rotational_freedom`), read-only.
 
     Γ_vib = Γ_3N − this; shared by single analyses, batches and the site-symmetry route.
     """
+    return _facts(table).external
+
+
+def _external_characters(table) -> np.ndarray:
     trans = np.asarray(table.vector_characters, dtype=np.float64)
     free = rotational_freedom(table)
     if free == 0:
@@ -138,6 +142,48 @@ def external_characters(table) -> np.ndarray:
         rz = [ir for ir in table.irreps if "Rz" in ir.functions]
         rot = rot - np.asarray(rz[0].characters, dtype=np.float64)
     return trans + rot
+
+
+@dataclass(frozen=True)
+class _TableFacts:
+    """What the vibrational analysis reads from one table, prepared once per table."""
+
+    labels: tuple
+    dims: np.ndarray
+    external: np.ndarray
+    ir_mask: np.ndarray
+    raman_mask: np.ndarray
+    totally_symmetric: str
+    centrosymmetric: bool
+
+
+#: id(table) -> (table, facts); the table is kept so that its id is never reused.
+_FACTS: dict[int, tuple[Any, _TableFacts]] = {}
+
+
+def _facts(table) -> _TableFacts:
+    hit = _FACTS.get(id(table))
+    if hit is not None and hit[0] is table:
+        return hit[1]
+    labels = tuple(ir.label for ir in table.irreps)
+    ir_set, raman_set = table.ir_active_irreps, table.raman_active_irreps
+    arrays = (
+        np.asarray([ir.dim for ir in table.irreps], dtype=np.int64),
+        _external_characters(table),
+        np.array([lab in ir_set for lab in labels], dtype=bool),
+        np.array([lab in raman_set for lab in labels], dtype=bool),
+    )
+    for a in arrays:
+        a.setflags(write=False)
+    facts = _TableFacts(
+        labels,
+        *arrays,
+        totally_symmetric(table),
+        any(c.label == "i" for c in table.classes),
+    )
+    if len(_FACTS) < 4096:
+        _FACTS[id(table)] = (table, facts)
+    return facts
 
 
 def vibration_count(table, n_atoms) -> np.ndarray:
@@ -169,11 +215,12 @@ def reduce_vibrations(table, chars_3n, n_atoms):
     chars : numpy.ndarray, shape (k, n_classes)
         Γ_vib characters.
     """
-    chars = np.asarray(chars_3n, dtype=np.float64) - external_characters(table)[None, :]
+    facts = _facts(table)
+    chars = np.asarray(chars_3n, dtype=np.float64) - facts.external[None, :]
     modes = vibration_count(table, n_atoms)
     raw = table.raw_multiplicities(chars)
     mult = np.rint(raw).astype(np.int64)
-    dims = np.asarray([ir.dim for ir in table.irreps], dtype=np.int64)
+    dims = facts.dims
     ok = (
         (np.abs(raw - mult).max(axis=1, initial=0.0) <= 1e-6)
         & (mult >= 0).all(axis=1)
@@ -184,12 +231,8 @@ def reduce_vibrations(table, chars_3n, n_atoms):
 
 def activity_masks(table) -> tuple[np.ndarray, np.ndarray]:
     """Boolean masks over the table's irreps: IR-active, Raman-active."""
-    ir_set, raman_set = table.ir_active_irreps, table.raman_active_irreps
-    labels = [ir.label for ir in table.irreps]
-    return (
-        np.array([lab in ir_set for lab in labels], dtype=bool),
-        np.array([lab in raman_set for lab in labels], dtype=bool),
-    )
+    facts = _facts(table)
+    return facts.ir_mask, facts.raman_mask
 
 
 def vibrations(sym: SymmetryData, cartesian_characters=None) -> Vibrations:
@@ -221,23 +264,24 @@ def vibrations(sym: SymmetryData, cartesian_characters=None) -> Vibrations:
             f"{plural(int(modes[0]), 'mode')}: "
             f"characters {chars[0].tolist()} give {parts}"
         )
-    labels = [ir.label for ir in table.irreps]
-    irreps = {lab: int(v) for lab, v in zip(labels, mult[0]) if v}
-    ir_mask, raman_mask = activity_masks(table)
-    ir = {lab: int(v) for lab, v, a in zip(labels, mult[0], ir_mask) if v and a}
-    raman = {lab: int(v) for lab, v, a in zip(labels, mult[0], raman_mask) if v and a}
-    centro = any(c.label == "i" for c in table.classes)
-    a1 = totally_symmetric(table)
+    facts = _facts(table)
+    counts = mult[0].tolist()
+    irreps = {lab: v for lab, v in zip(facts.labels, counts) if v}
+    ir = {lab: v for lab, v, a in zip(facts.labels, counts, facts.ir_mask.tolist()) if v and a}
+    raman = {
+        lab: v for lab, v, a in zip(facts.labels, counts, facts.raman_mask.tolist()) if v and a
+    }
+    a1 = facts.totally_symmetric
     polarised = {a1: irreps[a1]} if a1 in irreps and a1 in raman else {}
     return Vibrations(
         irreps,
         int(modes[0]),
         ir,
         raman,
-        int(sum(irreps.values())),
-        int(sum(ir.values())),
-        int(sum(raman.values())),
-        centro,
+        sum(irreps.values()),
+        sum(ir.values()),
+        sum(raman.values()),
+        facts.centrosymmetric,
         chars[0],
         polarised,
     )

@@ -1161,3 +1161,31 @@ fn test_isotopologues_are_told_apart_by_mass() {
 fn ch4_s4_about_z() -> Mat3 {
     [[0.0, 1.0, 0.0], [-1.0, 0.0, 0.0], [0.0, 0.0, -1.0]]
 }
+
+#[test]
+fn test_deviation_of_each_verified_operation_is_its_mapping_distance() {
+    // Each verified operation's deviation is what mapping it atom by atom measures, in both
+    // verification modes (all operations, or E + the generators), and their largest is
+    // max_deviation.
+    let mut rng = Rng(29);
+    for (atoms, name) in [(benzene(), "D6h"), (c60(), "Ih"), (sf6(), "Oh")] {
+        let (p, z) = perturb(&atoms, &mut rng);
+        for limit in [DetectOptions::default().verify_all_limit, 0] {
+            let opts = DetectOptions {
+                verify_all_limit: limit,
+                ..DetectOptions::default()
+            };
+            let s = find_point_group(&p, &z, &opts).unwrap();
+            assert_eq!(s.point_group, name);
+            assert_eq!(s.deviations.len(), s.verified.len());
+            assert_eq!(s.deviations[0], 0.0);
+            let mats: Vec<Mat3> = s.verified.iter().map(|&k| s.ops[k].matrix).collect();
+            let (_, devs) = map_operations(&p, &z, None, s.center, &mats, opts.tol).unwrap();
+            for (k, (a, b)) in s.deviations.iter().zip(&devs).enumerate() {
+                assert!((a - b).abs() < 1e-12, "{name}, operation {k}: {a} vs {b}");
+            }
+            let largest = s.deviations.iter().copied().fold(0.0, f64::max);
+            assert_eq!(largest, s.max_deviation);
+        }
+    }
+}

@@ -24,6 +24,8 @@ pub(super) struct Verified {
     pub verified: Vec<usize>,
     /// One permutation per entry of `verified`.
     pub permutations: Vec<Vec<u32>>,
+    /// Largest image distance of each entry of `verified`, Å (0 for E).
+    pub deviations: Vec<f64>,
     /// Largest image distance over the verified operations, Å.
     pub max_deviation: f64,
 }
@@ -39,15 +41,18 @@ pub(super) fn verify(ctx: &Ctx, ops: &[PointOp], data: &GroupData, all: bool) ->
             .collect()
     };
     match composed(ctx, ops, data, all) {
-        Some((mut perms, dev)) => {
+        Some((mut perms, devs)) => {
             let permutations = verified
                 .iter()
                 .map(|&k| std::mem::take(&mut perms[k]))
                 .collect();
+            let deviations: Vec<f64> = verified.iter().map(|&k| devs[k]).collect();
+            let max_deviation = deviations.iter().copied().fold(0.0, f64::max);
             Ok(Verified {
                 verified,
                 permutations,
-                max_deviation: dev,
+                deviations,
+                max_deviation,
             })
         }
         None => plain(ctx, ops, verified),
@@ -58,43 +63,48 @@ pub(super) fn verify(ctx: &Ctx, ops: &[PointOp], data: &GroupData, all: bool) ->
 fn plain(ctx: &Ctx, ops: &[PointOp], verified: Vec<usize>) -> Result<Verified> {
     let n = ctx.x.len();
     let mut permutations = Vec::with_capacity(verified.len());
+    let mut deviations = Vec::with_capacity(verified.len());
     let mut max_deviation = 0.0_f64;
     for &k in &verified {
         if k == 0 {
             // E maps every atom onto itself at distance 0.
             permutations.push((0..n as u32).collect());
+            deviations.push(0.0);
             continue;
         }
         let grid = ctx.grid()?;
         let (perm, dev) = map_atoms(grid, &ctx.x, ctx.species, &ops[k].matrix, ctx.tol)?;
         max_deviation = max_deviation.max(dev);
         permutations.push(perm);
+        deviations.push(dev);
     }
     Ok(Verified {
         verified,
         permutations,
+        deviations,
         max_deviation,
     })
 }
 
 /// Permutations of the generators (and of every operation when `all`) with the largest image
-/// distance, or `None` when any check fails (the caller then maps by lookup for the error).
+/// distance of each (indexed by operation; 0 where not verified), or `None` when any check
+/// fails (the caller then maps by lookup for the error).
 fn composed(
     ctx: &Ctx,
     ops: &[PointOp],
     data: &GroupData,
     all: bool,
-) -> Option<(Vec<Vec<u32>>, f64)> {
+) -> Option<(Vec<Vec<u32>>, Vec<f64>)> {
     let n = ctx.x.len();
     let h = ops.len();
     let mut perms: Vec<Vec<u32>> = vec![Vec::new(); h];
     perms[0] = (0..n as u32).collect();
-    let mut dev = 0.0_f64;
+    let mut dev = vec![0.0_f64; h];
     for &g in &data.generators {
         if perms[g].is_empty() {
             let (perm, d) = map_nearest(ctx, &ops[g].matrix)?;
             perms[g] = perm;
-            dev = dev.max(d);
+            dev[g] = d;
         }
     }
     if all {
@@ -104,7 +114,7 @@ fn composed(
             }
             let (g, j) = data.words[k];
             let (perm, d) = check_composed(ctx, &ops[k].matrix, &perms[g], &perms[j])?;
-            dev = dev.max(d);
+            dev[k] = d;
             perms[k] = perm;
         }
     }

@@ -30,6 +30,7 @@ pub(super) struct Detection {
     generators: Py<PyArray1<i64>>,
     verified: Py<PyArray1<i64>>,
     permutations: Py<PyArray2<i64>>,
+    deviations: Py<PyArray1<f64>>,
     max_deviation: f64,
 }
 
@@ -117,6 +118,7 @@ pub(super) fn find_point_group(
         generators: index_array(py, &sym.generators),
         verified: index_array(py, &sym.verified),
         permutations: index_rows(py, &sym.permutations, n)?.unbind(),
+        deviations: Array1::from(sym.deviations).into_pyarray(py).unbind(),
         max_deviation: sym.max_deviation,
     })
 }

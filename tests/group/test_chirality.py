@@ -69,3 +69,33 @@ def test_margin_does_not_depend_on_orientation(seed):
     assert (a.improper_within is None) == (b.improper_within is None)
     if a.improper_within is not None:
         assert abs(a.improper_within - b.improper_within) < 1e-6
+
+
+def test_margin_is_the_best_improper_deviation_and_bounded_when_only_generators_are_verified(
+    monkeypatch,
+):
+    # The margin of an achiral structure is the deviation of its best improper operation,
+    # measured atom by atom (map every improper operation again here: the reference). A
+    # huge structure, where detection verifies E and the generators only, reports its best
+    # verified improper generator: never below the exact value, never above the tolerance.
+    from gammatrace import _core
+    from gammatrace import analysis as analysis_module
+
+    symbols, pos = benzene(0.0005, seed=3)
+    exact = gt.analyze(symbols, pos)
+    assert exact.point_group == "D6h" and exact.symmetry.all_verified
+    s = exact.structure
+    improper = ~np.asarray(exact.symmetry.proper)
+    _, devs = _core.map_operations(
+        s.positions,
+        s.numbers,
+        tuple(exact.symmetry.center),
+        np.ascontiguousarray(exact.symmetry.operations[improper]),
+        exact.tol,
+        None,
+    )
+    assert exact.improper_within == pytest.approx(devs.min(), abs=1e-12)
+    monkeypatch.setattr(analysis_module, "VERIFY_ALL_LIMIT", 0)
+    few = gt.analyze(symbols, pos)
+    assert few.point_group == "D6h" and not few.symmetry.all_verified
+    assert devs.min() - 1e-12 <= few.improper_within <= few.tol

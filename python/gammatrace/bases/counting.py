@@ -77,7 +77,7 @@ class Representation:
 
     def to_dict(self) -> dict:
         """``{"characters": [...], "irreps": {...}}`` as in shared/INTERFACE.md."""
-        return {"characters": [json_number(c) for c in self.characters], "irreps": self.irreps}
+        return {"characters": json_numbers(self.characters), "irreps": dict(self.irreps)}
 
     def worked_table(self) -> str:
         """The per-class table a practitioner writes by hand.
@@ -122,6 +122,15 @@ def json_number(x: float) -> int | float:
     if abs(xf - r) < 1e-9:
         return int(r)
     return round(xf, 10)
+
+
+def json_numbers(values: np.ndarray) -> list:
+    """:func:`json_number` of each value (one pass when they are all integral)."""
+    arr = np.asarray(values, dtype=np.float64)
+    r = np.rint(arr)
+    if np.all(np.abs(arr - r) < 1e-9):
+        return r.astype(np.int64).tolist()
+    return [json_number(x) for x in arr.tolist()]
 
 
 def format_number(x: float) -> str:
@@ -248,11 +257,14 @@ def build_representation(sym: SymmetryData, resolved: ResolvedBasis) -> Represen
             "rotations about one axis, which cannot tell how every rotation moves the vectors"
         )
     chars_op, unshifted_op = count_characters(sym, resolved)
-    labels = tuple(c.label for c in sym.table.classes)
+    labels = sym.table.class_labels
     what = f"basis '{basis.name}'"
     first = sym.class_representatives
     chars = per_class(chars_op, sym.op_class, labels, what, first=first)
-    unshifted = per_class(unshifted_op, sym.op_class, labels, what, first=first)
+    if basis.kind == "atoms":  # the characters are the unshifted counts
+        unshifted = chars
+    else:
+        unshifted = per_class(unshifted_op, sym.op_class, labels, what, first=first)
     # Each unshifted bond vector or π centre adds +1 or -1: the items agree exactly when the
     # character per item is ±1. Otherwise the items of a class contribute alike when they are
     # all of one kind: always for a uniform basis; for orbitals of several kinds, when one
@@ -264,10 +276,9 @@ def build_representation(sym: SymmetryData, resolved: ResolvedBasis) -> Represen
         kinds = np.stack([per_class(g, sym.op_class, labels, "unshifted") for g in by_group])
         single_kind = (kinds > 0).sum(axis=0) <= 1
     contributions: list = []
-    for k in range(len(labels)):
-        n = unshifted[k]
-        per_item = chars[k] / n if n else 0.0
-        if not single_kind[k] or (signed and n and abs(abs(per_item) - 1) > 1e-9):
+    for n, chi, one_kind in zip(unshifted.tolist(), chars.tolist(), single_kind.tolist()):
+        per_item = chi / n if n else 0.0
+        if not one_kind or (signed and n and abs(abs(per_item) - 1) > 1e-9):
             contributions.append(None)
         else:
             contributions.append(per_item)

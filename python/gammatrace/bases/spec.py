@@ -129,6 +129,8 @@ class Basis:
             object.__setattr__(self, "elements", _normalise_elements(self.elements))
         elif self.elements:
             raise BasisError(f"{self.kind}: takes no element list")
+        # every field is final (arrays read-only): the identity is computed once
+        object.__setattr__(self, "_identity", self._make_key())
 
     # ------------------------------------------------------------------ constructors
     @classmethod
@@ -218,6 +220,9 @@ class Basis:
         return resolve(self, structure, center=center, tol=tol)
 
     def _key(self) -> tuple:
+        return self._identity
+
+    def _make_key(self) -> tuple:
         pairs = None if self.pairs is None else (self.pairs.shape, self.pairs.tobytes())
         vectors = None if self.vectors is None else (self.vectors.shape, self.vectors.tobytes())
         scale = self.bond_scale if self.kind in _BOND_KINDS and self.pairs is None else None
@@ -389,6 +394,21 @@ def parse_basis(spec: Any) -> Basis:
         return Basis.orbitals(spec)
     if not isinstance(spec, str):
         raise BasisError(f"basis: expected a Basis or a string, got {type(spec).__name__}")
+    known = _PARSED.get(spec)
+    if known is None:
+        known = _parse_text(spec)
+        if len(_PARSED) < _MAX_PARSED:
+            _PARSED[spec] = known
+    return known
+
+
+#: Spec strings already parsed -> their (immutable) Basis; bounded.
+_PARSED: dict[str, Basis] = {}
+_MAX_PARSED = 1024
+
+
+def _parse_text(spec: str) -> Basis:
+    """The Basis a spec string names (see :func:`parse_basis`)."""
     kind, _, opts = spec.strip().partition(":")
     kind = kind.strip().lower().replace("-", "_")
     if kind == "orbitals":

@@ -53,12 +53,25 @@ def _best_improper(structure, center, ops, proper, tol) -> float | None:
     return float(np.min(devs))
 
 
+def _best_verified_improper(proper, verified, deviations) -> float | None:
+    """The smallest deviation among the improper operations detection verified (each
+    measured as mapping it atom by atom does), or None when it verified none (or, for a
+    hand-built SymmetryData, measured nothing)."""
+    if deviations is None:
+        return None
+    devs = np.asarray(deviations)[~np.asarray(proper)[verified]]
+    return float(devs.min()) if len(devs) else None
+
+
 def improper_within(sym: SymmetryData) -> float | None:
     """The smallest tolerance (Å) at which the structure has an improper operation.
 
-    For an achiral structure it is at most ``sym.tol`` (the deviation of its best improper
-    operation); for a chiral one the group is searched again at tolerances up to
-    ``SEARCH_FACTOR`` × ``sym.tol``; ``None`` when no improper operation appears there.
+    For an achiral structure it is at most ``sym.tol``: the deviation of its best improper
+    operation, as detection measured it (exact when detection verified every operation; for
+    huge structures, where it verifies E and the generators only, the best verified improper
+    generator: an upper bound, at which that operation does hold); for a chiral one the
+    group is searched again at tolerances up to ``SEARCH_FACTOR`` × ``sym.tol``; ``None``
+    when no improper operation appears there.
 
     Examples
     --------
@@ -70,6 +83,9 @@ def improper_within(sym: SymmetryData) -> float | None:
     """
     s = sym.structure
     if not sym.chiral:
+        best = _best_verified_improper(sym.proper, sym.verified_operations, sym.deviations)
+        if best is not None:
+            return best
         return _best_improper(s, sym.center, sym.operations, sym.proper, sym.tol)
     for t in tolerance_ladder(sym.tol, SEARCH_FACTOR * sym.tol)[1:]:
         raw = _core.find_point_group(
@@ -77,5 +93,8 @@ def improper_within(sym: SymmetryData) -> float | None:
         )
         if raw.proper.all():
             continue
+        best = _best_verified_improper(raw.proper, raw.verified, raw.deviations)
+        if best is not None:
+            return best
         return _best_improper(s, raw.center, raw.operations, raw.proper, t)
     return None

@@ -7,11 +7,15 @@ from dataclasses import dataclass
 import numpy as np
 
 from .. import _core
+from ..io.elements import SYMBOLS
 from ..tables.subgroups import identify_group
 from .stabilisers import atom_images
 from .symmetry import SymmetryData
 
 __all__ = ["Orbit", "environments", "orbit_sets", "orbits", "site_group_names"]
+
+#: Up to this many atoms the sets are gathered in a Python loop (cheaper than numpy calls).
+_FEW_ATOMS = 256
 
 
 @dataclass(frozen=True)
@@ -57,11 +61,17 @@ def orbits(sym: SymmetryData) -> list[Orbit]:
     ]
 
 
+def _orbit_ids(sym: SymmetryData) -> np.ndarray:
+    """Orbit of each atom (``int64 (N,)``), orbits numbered in order of their first atom:
+    one union-find pass over the verified permutations in the core."""
+    perms = np.ascontiguousarray(sym.generator_permutations)
+    return np.asarray(_core.orbits(sym.n_atoms, perms), dtype=np.int64)
+
+
 def orbit_sets(sym: SymmetryData) -> list[np.ndarray]:
     """The sets of symmetry-equivalent atoms (ascending indices), in order of their first
     atom: one union-find pass over the verified permutations in the core, no site groups."""
-    perms = np.ascontiguousarray(sym.generator_permutations)
-    ids = np.asarray(_core.orbits(sym.n_atoms, perms), dtype=np.int64)
+    ids = _orbit_ids(sym)
     order = np.argsort(ids, kind="stable")
     counts = np.bincount(ids)
     return np.split(order, np.cumsum(counts)[:-1])
@@ -100,8 +110,22 @@ def environments(sym: SymmetryData) -> dict[str, list]:
     (a rotating methyl group, ring flips) can make more atoms equivalent on the NMR time
     scale than the symmetry of one geometry does.
     """
-    symbols = sym.structure.species_symbols
+    s = sym.structure
+    ids = _orbit_ids(sym)
+    if len(ids) <= _FEW_ATOMS:
+        sets: dict[int, list] = {}
+        for i, k in enumerate(ids.tolist()):
+            sets.setdefault(k, []).append(i)
+        members = list(sets.values())
+    else:
+        members = [a.tolist() for a in orbit_sets(sym)]
+    firsts = [m[0] for m in members]
+    if s.masses is None:  # every atom of its element's standard mass: the element symbols
+        symbols = [SYMBOLS[z] for z in s.numbers[firsts].tolist()]
+    else:
+        every = s.species_symbols
+        symbols = [every[i] for i in firsts]
     out: dict[str, list] = {}
-    for atoms in orbit_sets(sym):
-        out.setdefault(symbols[int(atoms[0])], []).append(atoms.tolist())
+    for symbol, atoms in zip(symbols, members):
+        out.setdefault(symbol, []).append(atoms)
     return out

@@ -182,6 +182,7 @@ class SymmetryData:
             canonical_index=_frozen(canon),
             verified_operations=_frozen(np.arange(h, dtype=np.int64)),
             generator_permutations=_frozen(perms),
+            deviations=None,  # not measured: users bring their own operations
             max_deviation=0.0,
         )
 
@@ -216,6 +217,7 @@ class SymmetryData:
             canonical_index=raw.canonical_index,
             verified_operations=raw.verified,
             generator_permutations=raw.permutations,
+            deviations=raw.deviations,
             max_deviation=float(raw.max_deviation),
         )
         return self

@@ -61,4 +61,15 @@ def get_table(name: str) -> CharacterTable:
     >>> t.decompose_product("E", "E")
     {'A1': 1, 'A2': 1, 'E': 1}
     """
-    return _build(parse_group_name(name).name)
+    table = _BY_NAME.get(name)
+    if table is None:
+        table = _build(parse_group_name(name).name)
+        if len(_BY_NAME) < _MAX_NAMES:
+            _BY_NAME[name] = table
+    return table
+
+
+#: Names as given -> their table: a lookup skips parsing the name again (bounded, so that
+#: arbitrary spellings cannot grow it without end).
+_BY_NAME: dict[str, CharacterTable] = {}
+_MAX_NAMES = 4096

@@ -120,6 +120,23 @@ class CharacterTable:
         return f"CharacterTable({self.name!r}, {len(self.classes)} classes)"
 
     @cached_property
+    def class_labels(self) -> tuple:
+        """The class labels, in print order (``("E", "2C3", "3σv")``)."""
+        return tuple(c.label for c in self.classes)
+
+    @cached_property
+    def _class_records(self) -> tuple:
+        return tuple((c.label, c.size, bool(c.proper), float(c.angle)) for c in self.classes)
+
+    def class_dicts(self) -> list:
+        """The classes as the JSON objects of shared/INTERFACE.md (fresh dicts each call):
+        ``{"label", "size", "proper", "angle"}``."""
+        return [
+            {"label": lab, "size": size, "proper": proper, "angle": angle}
+            for lab, size, proper, angle in self._class_records
+        ]
+
+    @cached_property
     def class_representatives(self) -> np.ndarray:
         """``int64 (n_classes,)``: the first canonical operation of each class."""
         out = np.unique(self.operation_class, return_index=True)[1].astype(np.int64)
@@ -293,8 +310,21 @@ class CharacterTable:
         leading shape. For callers that check integrality themselves (batches flag bad rows
         instead of raising); :meth:`reduce` and :meth:`reduce_many` use it.
         """
-        arr = np.asarray(chars, dtype=np.float64)
-        return arr @ (self.character_matrix * self._factor).T / (self._h * self._kappa)
+        return np.asarray(chars, dtype=np.float64) @ self._reduction
+
+    @cached_property
+    def _reduction(self) -> np.ndarray:
+        """``(n_classes, n_irreps)``: characters @ this = the raw multiplicities (prepared
+        once per table)."""
+        m = np.ascontiguousarray((self.character_matrix * self._factor).T / (self._h * self._kappa))
+        m.setflags(write=False)
+        return m
+
+    @cached_property
+    def _spans_class_functions(self) -> bool:
+        """True when every set of characters is a combination of the rows (as many irreps as
+        classes, nothing outside the table's reach): then the back-check cannot fail."""
+        return not self._unresolved and len(self.irreps) == len(self.classes)
 
     def _unresolved_rows(self, arr: np.ndarray, raw: np.ndarray) -> np.ndarray:
         """Rows (of ``arr``, 2-D) that Σ_i n_i χ_i, with the raw multiplicities, misses.
@@ -304,6 +334,8 @@ class CharacterTable:
         angular momentum above l = 5 is present. The tolerance per class, 1e-6 (1 + Σ_i
         |χ_i(c)|), leaves room for rounding in the characters.
         """
+        if self._spans_class_functions:
+            return np.zeros(len(arr), dtype=bool)
         back = raw @ self.character_matrix
         tol = _INTEGER_TOL * (1.0 + np.abs(self.character_matrix).sum(axis=0))
         return (np.abs(back - arr) > tol).any(axis=1)
@@ -498,10 +530,7 @@ class CharacterTable:
         out = {
             "group": self.name,
             "order": self.order,
-            "classes": [
-                {"label": c.label, "size": c.size, "proper": c.proper, "angle": c.angle}
-                for c in self.classes
-            ],
+            "classes": self.class_dicts(),
             "irreps": [
                 {
                     "label": ir.label,
