@@ -39,10 +39,8 @@ import warnings
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.linalg
-from scipy.optimize import linear_sum_assignment
 
-from .bases.matrices import SymmetryData, symmetry_adapted_basis
+from .group.symmetry import SymmetryData
 from .errors import InputError, SymmetryBreakingWarning, SymmetryError
 from .io.hessian import HessianFile, read_hessian, validate_hessian
 from .text import plural
@@ -293,6 +291,8 @@ class _Adapted:
 
 
 def _adapted(sym: SymmetryData) -> _Adapted:
+    from .bases.matrices import symmetry_adapted_basis  # scipy loads on first use only
+
     sab = symmetry_adapted_basis(sym, "cartesian")
     xs = sab.matrix.tocsr()
     out = []
@@ -346,6 +346,8 @@ def _external_vectors(sym: SymmetryData, masses) -> tuple[np.ndarray, np.ndarray
         free = 2
     else:
         free = 3
+    import scipy.linalg  # scipy loads on first use only (start-up of the command line)
+
     u, _, _ = scipy.linalg.svd(rr.T, full_matrices=False)
     return t, u[:, :free].T
 
@@ -720,6 +722,8 @@ def _label_hessian(sym, h, hw, mvec, unit, tolerance, mass_weighted):
         )
         mu, v = np.linalg.eigh(y @ hw @ y.T)
         overlap = (vib_vectors @ y.T @ v) ** 2
+        from scipy.optimize import linear_sum_assignment  # loads on first use only
+
         rows, cols = linear_sum_assignment(-overlap)
         match = np.empty(n_vib, dtype=np.int64)
         match[rows] = cols
@@ -825,6 +829,8 @@ def _label_vectors(sym, vectors, freqs, mvec, mass_weighted):
         slots = None
     if slots is not None:
         owner = np.repeat(np.arange(len(parts)), slots)
+        from scipy.optimize import linear_sum_assignment  # loads on first use only
+
         rows, cols = linear_sum_assignment(-weights[:, owner])
         choice = np.empty(n_modes, dtype=np.int64)
         choice[rows] = owner[cols]
