@@ -35,6 +35,15 @@ pub struct BatchSummary {
     pub unshifted: Vec<u64>,
     /// The error of each failed structure.
     pub errors: Vec<Option<Error>>,
+    /// With details only: the orbit of every atom (all structures concatenated, numbered per
+    /// structure in order of first atom, as [`count::orbits`]); atoms of a failed structure
+    /// are absent, so structure k's ids start where the atoms of the structures before it
+    /// that succeeded end.
+    pub orbit_ids: Vec<u32>,
+    /// With details only: the smallest tolerance at which an improper operation holds, Å
+    /// ([`improper_within`]); NaN when none does up to the last tolerance of the ladder (and
+    /// for a failed structure).
+    pub improper_within: Vec<f64>,
 }
 
 struct One {
@@ -43,6 +52,8 @@ struct One {
     frame: [[f64; 3]; 3],
     ops: Vec<crate::ops::PointOp>,
     unshifted: Vec<u64>,
+    orbit_ids: Vec<u32>,
+    improper_within: f64,
 }
 
 fn analyse_one(
@@ -50,17 +61,92 @@ fn analyse_one(
     numbers: &[i64],
     masses: Option<&[f64]>,
     opts: &DetectOptions,
+    details: Option<&[f64]>,
 ) -> Result<One> {
     let sym = detect::find_point_group_with_masses(positions, numbers, masses, opts)?;
     let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
     let unshifted = count::count_unshifted(positions, sym.center, &mats, opts.tol);
+    let (orbit_ids, improper) = match details {
+        Some(ladder) => (
+            count::orbits(positions.len(), &sym.permutations)?,
+            improper_within(positions, numbers, masses, opts, &sym, ladder)?.unwrap_or(f64::NAN),
+        ),
+        None => (Vec::new(), f64::NAN),
+    };
     Ok(One {
         point_group: sym.point_group,
         max_deviation: sym.max_deviation,
         frame: sym.frame,
         ops: sym.ops,
         unshifted,
+        orbit_ids,
+        improper_within: improper,
     })
+}
+
+/// The smallest deviation among the improper operations of `sym` that detection verified,
+/// or, when it verified none, among all its improper operations mapped atom by atom; `None`
+/// for a group without improper operations.
+fn best_improper(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    masses: Option<&[f64]>,
+    sym: &detect::Symmetry,
+    tol: f64,
+) -> Result<Option<f64>> {
+    let verified = sym
+        .verified
+        .iter()
+        .zip(&sym.deviations)
+        .filter(|(&k, _)| !sym.ops[k].proper)
+        .map(|(_, &d)| d)
+        .fold(f64::INFINITY, f64::min);
+    if verified.is_finite() {
+        return Ok(Some(verified));
+    }
+    let improper: Vec<[[f64; 3]; 3]> = sym
+        .ops
+        .iter()
+        .filter(|o| !o.proper)
+        .map(|o| o.matrix)
+        .collect();
+    if improper.is_empty() {
+        return Ok(None);
+    }
+    let (_, devs) = detect::map_operations(positions, numbers, masses, sym.center, &improper, tol)?;
+    Ok(Some(devs.iter().copied().fold(f64::INFINITY, f64::min)))
+}
+
+/// The smallest tolerance at which the structure has an improper operation (a mirror, the
+/// inversion or an S_n): the deviation of its best improper operation when `sym` has one,
+/// else the same at the first tolerance of `ladder` (ascending, above `opts.tol`) where
+/// detection finds one; `None` when none does. The rule of
+/// `gammatrace.group.chirality.improper_within`, which passes its ladder in.
+///
+/// # Errors
+/// Those of detection at a ladder tolerance.
+pub fn improper_within(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    masses: Option<&[f64]>,
+    opts: &DetectOptions,
+    sym: &detect::Symmetry,
+    ladder: &[f64],
+) -> Result<Option<f64>> {
+    if sym.ops.iter().any(|o| !o.proper) {
+        return best_improper(positions, numbers, masses, sym, opts.tol);
+    }
+    for &t in ladder {
+        let at = DetectOptions {
+            tol: t,
+            ..opts.clone()
+        };
+        let wider = detect::find_point_group_with_masses(positions, numbers, masses, &at)?;
+        if wider.ops.iter().any(|o| !o.proper) {
+            return best_improper(positions, numbers, masses, &wider, t);
+        }
+    }
+    Ok(None)
 }
 
 fn panic_message(payload: &(dyn std::any::Any + Send)) -> String {
@@ -88,6 +174,23 @@ pub fn summarize_batch(
     offsets: &[usize],
     opts: &DetectOptions,
     n_threads: usize,
+) -> Result<BatchSummary> {
+    summarize_batch_with(positions, numbers, masses, offsets, opts, n_threads, None)
+}
+
+/// [`summarize_batch`], with `details` = `Some(ladder)` adding each structure's orbits and
+/// [`improper_within`] (searched over the tolerances of `ladder`).
+///
+/// # Errors
+/// As [`summarize_batch`].
+pub fn summarize_batch_with(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    masses: Option<&[f64]>,
+    offsets: &[usize],
+    opts: &DetectOptions,
+    n_threads: usize,
+    details: Option<&[f64]>,
 ) -> Result<BatchSummary> {
     if positions.len() != numbers.len() {
         return Err(Error::LengthMismatch {
@@ -150,6 +253,7 @@ pub fn summarize_batch(
                         &numbers[a..b],
                         masses.map(|m| &m[a..b]),
                         opts,
+                        details,
                     )
                 });
                 match std::panic::catch_unwind(run) {
@@ -182,6 +286,8 @@ pub fn summarize_batch(
                     out.angle.push(o.angle);
                 }
                 out.unshifted.extend_from_slice(&one.unshifted);
+                out.orbit_ids.extend_from_slice(&one.orbit_ids);
+                out.improper_within.push(one.improper_within);
                 out.errors.push(None);
             }
             Err(e) => {
@@ -190,6 +296,7 @@ pub fn summarize_batch(
                 out.max_deviation.push(f64::NAN);
                 out.n_proper.push(0);
                 out.frames.push([[0.0; 3]; 3]);
+                out.improper_within.push(f64::NAN);
                 out.errors.push(Some(e));
             }
         }

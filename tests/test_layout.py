@@ -172,6 +172,7 @@ LAYERS = {
     "modes": 5,
     "symmetrize": 5,
     "pictures": 5,
+    "summary": 5,
     "analysis": 6,
     "descent": 7,
     "batch": 7,

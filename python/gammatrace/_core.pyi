@@ -56,6 +56,9 @@ class BatchResult:
     angle: F64  # (total_ops,)
     unshifted: npt.NDArray[np.uint64]  # (total_ops,) atoms each operation leaves unshifted
     errors: list[tuple[str, str] | None]
+    # with improper_ladder only (else empty / NaN):
+    orbit_ids: npt.NDArray[np.uint32]  # orbit of each atom of each structure that succeeded
+    improper_within: F64  # (n,) Å, NaN for none within the ladder (and for failures)
 
 class GroupData:
     """A group's canonical operations (standard frame) and their arithmetic (frozen)."""
@@ -182,5 +185,8 @@ def find_point_groups_batch(
     linear_n: int,
     n_threads: int,
     masses: F64 | None = None,
+    improper_ladder: F64 | None = None,
 ) -> BatchResult:
-    """Detect many structures (ragged arrays) in parallel; per-structure errors."""
+    """Detect many structures (ragged arrays) in parallel; per-structure errors. With
+    ``improper_ladder`` (the tolerances above ``tol`` to search, ascending) also each
+    structure's orbits and improper_within (the rule of group.chirality.improper_within)."""

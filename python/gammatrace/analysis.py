@@ -44,6 +44,7 @@ from .io import (
 from .render import write_html, write_latex, write_markdown
 from .render.results import analysis_blocks
 from .spectroscopy import Vibrations, binary_bands, fermi_resonances, format_irreps, vibrations
+from .summary import summary_rows
 from .tables import LINEAR_SUBGROUP_N
 from .text import format_length, plural
 
@@ -59,6 +60,8 @@ __all__ = [
 #: Smallest and largest tolerance accepted, Å.
 MIN_TOL, MAX_TOL = 1e-6, 10.0
 DEFAULT_BASES = ("atoms", "cartesian")
+#: The bases whose JSON :func:`gammatrace.summary.summary_rows` builds.
+_SUMMARY_BASES = (parse_basis("atoms"), parse_basis("cartesian"))
 
 
 @dataclass(frozen=True)
@@ -368,6 +371,12 @@ class Analysis:
         measure
             Group names whose measure ``near_symmetry`` also lists (once per group).
         """
+        sym = self.symmetry
+        # the group-dependent keys as the many-frame path builds them (gammatrace.summary);
+        # None when something does not reduce: the objects below then raise the error
+        (row,) = summary_rows(
+            sym.table, sym.unshifted_atoms[None], sym.proper[None], sym.angle[None], [sym.n_atoms]
+        )
         out: dict[str, Any] = {
             "source": self.structure.source,
             "index": self.structure.index,
@@ -376,13 +385,17 @@ class Analysis:
             "order": self.order,
             "tolerance": self.tol,
             "max_deviation": float(self.max_deviation),
-            "classes": self.table.class_dicts(),
+            "classes": sym.table.class_dicts(),
             "representations": {},
         }
+        reps = out["representations"]
         for spec in bases:
             b = parse_basis(spec)
-            out["representations"][b.name] = self.representation(b).to_dict()
-        out["vibrations"] = self.vibrations().to_dict()
+            if row is not None and b in _SUMMARY_BASES:
+                reps[b.name] = row["representations"][b.name]
+            else:
+                reps[b.name] = self.representation(b).to_dict()
+        out["vibrations"] = self.vibrations().to_dict() if row is None else row["vibrations"]
         out["symmetry_number"] = self.symmetry_number
         out["chiral"] = self.chiral
         iw = self.improper_within

@@ -24,12 +24,16 @@ pub(super) struct BatchResult {
     angle: Py<PyArray1<f64>>,
     unshifted: Py<PyArray1<u64>>,
     errors: Py<PyList>,
+    orbit_ids: Py<PyArray1<u32>>,
+    improper_within: Py<PyArray1<f64>>,
 }
 
 /// Detect many structures at once (ragged: concatenated positions + offsets), in parallel;
-/// `masses` (concatenated like the numbers, u) make isotopes different species.
+/// `masses` (concatenated like the numbers, u) make isotopes different species;
+/// `improper_ladder` (tolerances, ascending) asks for each structure's orbits and
+/// improper_within as well.
 #[pyfunction]
-#[pyo3(signature = (positions, numbers, offsets, tol, linear_n, n_threads, masses=None))]
+#[pyo3(signature = (positions, numbers, offsets, tol, linear_n, n_threads, masses=None, improper_ladder=None))]
 #[allow(clippy::too_many_arguments)]
 pub(super) fn find_point_groups_batch<'py>(
     py: Python<'py>,
@@ -40,6 +44,7 @@ pub(super) fn find_point_groups_batch<'py>(
     linear_n: usize,
     n_threads: usize,
     masses: Option<PyReadonlyArray1<'py, f64>>,
+    improper_ladder: Option<PyReadonlyArray1<'py, f64>>,
 ) -> PyResult<BatchResult> {
     let pos = coords(&positions, "positions")?;
     let num = slice1(&numbers, "numbers")?;
@@ -59,8 +64,12 @@ pub(super) fn find_point_groups_batch<'py>(
         linear_n,
         ..Default::default()
     };
+    let ladder = improper_ladder
+        .as_ref()
+        .map(|l| slice1(l, "improper_ladder"))
+        .transpose()?;
     let res = py
-        .detach(|| batch::summarize_batch(pos, num, mass, &off, &opts, n_threads))
+        .detach(|| batch::summarize_batch_with(pos, num, mass, &off, &opts, n_threads, ladder))
         .map_err(CoreError)?;
     let n_struct = res.frames.len();
     let flat: Vec<f64> = res.frames.iter().flatten().flatten().copied().collect();
@@ -87,5 +96,7 @@ pub(super) fn find_point_groups_batch<'py>(
         angle: Array1::from(res.angle).into_pyarray(py).unbind(),
         unshifted: Array1::from(res.unshifted).into_pyarray(py).unbind(),
         errors: PyList::new(py, &errors)?.unbind(),
+        orbit_ids: Array1::from(res.orbit_ids).into_pyarray(py).unbind(),
+        improper_within: Array1::from(res.improper_within).into_pyarray(py).unbind(),
     })
 }

@@ -3,16 +3,25 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
 from .. import _core
 from ..io.elements import SYMBOLS
+from ..io.elements import species
 from ..tables.subgroups import identify_group
 from .stabilisers import atom_images
 from .symmetry import SymmetryData
 
-__all__ = ["Orbit", "environments", "orbit_sets", "orbits", "site_group_names"]
+__all__ = [
+    "Orbit",
+    "environment_sets",
+    "environments",
+    "orbit_sets",
+    "orbits",
+    "site_group_names",
+]
 
 #: Up to this many atoms the sets are gathered in a Python loop (cheaper than numpy calls).
 _FEW_ATOMS = 256
@@ -111,19 +120,27 @@ def environments(sym: SymmetryData) -> dict[str, list]:
     scale than the symmetry of one geometry does.
     """
     s = sym.structure
-    ids = _orbit_ids(sym)
+    return environment_sets(_orbit_ids(sym), s.numbers, s.masses)
+
+
+def environment_sets(ids: np.ndarray, numbers: np.ndarray, masses: Any = None) -> dict:
+    """:func:`environments` from the orbit of each atom (``ids``, numbered in order of first
+    atom, as ``_core.orbits`` gives them), the atomic numbers and the masses (None for the
+    standard ones): species symbol -> the sets of equivalent atoms."""
     if len(ids) <= _FEW_ATOMS:
         sets: dict[int, list] = {}
         for i, k in enumerate(ids.tolist()):
             sets.setdefault(k, []).append(i)
         members = list(sets.values())
     else:
-        members = [a.tolist() for a in orbit_sets(sym)]
+        ids = np.asarray(ids, dtype=np.int64)
+        order = np.argsort(ids, kind="stable")
+        members = [a.tolist() for a in np.split(order, np.cumsum(np.bincount(ids))[:-1])]
     firsts = [m[0] for m in members]
-    if s.masses is None:  # every atom of its element's standard mass: the element symbols
-        symbols = [SYMBOLS[z] for z in s.numbers[firsts].tolist()]
+    if masses is None:  # every atom of its element's standard mass: the element symbols
+        symbols = [SYMBOLS[z] for z in np.asarray(numbers)[firsts].tolist()]
     else:
-        every = s.species_symbols
+        every = species(np.ascontiguousarray(numbers), np.ascontiguousarray(masses))[1]
         symbols = [every[i] for i in firsts]
     out: dict[str, list] = {}
     for symbol, atoms in zip(symbols, members):

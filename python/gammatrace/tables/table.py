@@ -414,6 +414,17 @@ class CharacterTable:
             raise ReductionError(self._residual_message(what, chars, raw))
         return {lab: int(v) for lab, v in zip(self._labels, n) if v != 0}
 
+    def reduce_rows(self, chars) -> tuple[np.ndarray, np.ndarray]:
+        """Reduce many representations, flagging instead of raising: ``(mult, ok)`` with
+        ``mult`` ``int64 (k, n_irreps)`` and ``ok`` False for a row that :meth:`reduce` would
+        refuse (not integers within 1e-6, negative, or outside what the table resolves)."""
+        arr = np.asarray(chars, dtype=np.float64)
+        raw = self.raw_multiplicities(arr)
+        n = np.rint(raw)
+        ok = (np.abs(raw - n).max(axis=1, initial=0.0) <= _INTEGER_TOL) & (n >= 0).all(axis=1)
+        ok &= ~self._unresolved_rows(arr, raw)
+        return n.astype(np.int64), ok
+
     def reduce_many(self, chars) -> np.ndarray:
         """Reduce many representations at once.
 
