@@ -120,11 +120,12 @@ fn best_improper(
 /// The smallest tolerance at which the structure has an improper operation (a mirror, the
 /// inversion or an S_n): the deviation of its best improper operation when `sym` has one,
 /// else the same at the first tolerance of `ladder` (ascending, above `opts.tol`) where
-/// detection finds one; `None` when none does. The rule of
-/// `gammatrace.group.chirality.improper_within`, which passes its ladder in.
+/// detection finds one (a tolerance where detection fails finds none). `None` when
+/// detection at the last tolerance of the ladder (the search bound, tried first) finds none.
+/// The rule of `gammatrace.group.chirality.improper_within`, which passes its ladder in.
 ///
 /// # Errors
-/// Those of detection at a ladder tolerance.
+/// Those of mapping improper operations atom by atom (when detection verified none).
 pub fn improper_within(
     positions: &[[f64; 3]],
     numbers: &[i64],
@@ -136,13 +137,25 @@ pub fn improper_within(
     if sym.ops.iter().any(|o| !o.proper) {
         return best_improper(positions, numbers, masses, sym, opts.tol);
     }
-    for &t in ladder {
+    // Detection at a ladder tolerance that fails (a structure at the edge of that
+    // tolerance) finds nothing there; the search goes on.
+    let improper_at = |t: f64| -> Option<detect::Symmetry> {
         let at = DetectOptions {
             tol: t,
             ..opts.clone()
         };
-        let wider = detect::find_point_group_with_masses(positions, numbers, masses, &at)?;
-        if wider.ops.iter().any(|o| !o.proper) {
+        detect::find_point_group_with_masses(positions, numbers, masses, &at)
+            .ok()
+            .filter(|wider| wider.ops.iter().any(|o| !o.proper))
+    };
+    // Nothing improper at the bound (tried first): the search stops there, so one detection
+    // settles most chiral structures.
+    match ladder.last() {
+        Some(&bound) if improper_at(bound).is_some() => {}
+        _ => return Ok(None),
+    }
+    for &t in ladder {
+        if let Some(wider) = improper_at(t) {
             return best_improper(positions, numbers, masses, &wider, t);
         }
     }

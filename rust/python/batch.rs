@@ -100,3 +100,37 @@ pub(super) fn find_point_groups_batch<'py>(
         improper_within: Array1::from(res.improper_within).into_pyarray(py).unbind(),
     })
 }
+
+/// The smallest tolerance at which a structure has an improper operation (see
+/// `batch::improper_within`): detection at `tol`, then the tolerances of `ladder`
+/// (ascending, the search bound last). None when none holds.
+#[pyfunction]
+#[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit, ladder, masses=None))]
+#[allow(clippy::too_many_arguments)]
+pub(super) fn improper_within(
+    py: Python<'_>,
+    positions: PyReadonlyArray2<'_, f64>,
+    numbers: PyReadonlyArray1<'_, i64>,
+    tol: f64,
+    linear_n: usize,
+    verify_all_limit: usize,
+    ladder: PyReadonlyArray1<'_, f64>,
+    masses: Option<PyReadonlyArray1<'_, f64>>,
+) -> PyResult<Option<f64>> {
+    let pos = coords(&positions, "positions")?;
+    let num = slice1(&numbers, "numbers")?;
+    let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
+    let lad = slice1(&ladder, "ladder")?;
+    let opts = detect::DetectOptions {
+        tol,
+        linear_n,
+        verify_all_limit,
+    };
+    py.detach(|| {
+        super::guarded(|| {
+            let sym = detect::find_point_group_with_masses(pos, num, mass, &opts)?;
+            batch::improper_within(pos, num, mass, &opts, &sym, lad)
+        })
+    })
+    .map_err(|e| CoreError(e).into())
+}

@@ -111,6 +111,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(species::nuclides, m)?)?;
     m.add_function(wrap_pyfunction!(species::species, m)?)?;
     m.add_function(wrap_pyfunction!(batch::find_point_groups_batch, m)?)?;
+    m.add_function(wrap_pyfunction!(batch::improper_within, m)?)?;
     m.add_function(wrap_pyfunction!(detect::canonical_group, m)?)?;
     m.add_function(wrap_pyfunction!(detect::locate_operations, m)?)?;
     m.add_function(wrap_pyfunction!(detect::identify_group, m)?)?;

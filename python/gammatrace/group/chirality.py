@@ -69,9 +69,12 @@ def improper_within(sym: SymmetryData) -> float | None:
     For an achiral structure it is at most ``sym.tol``: the deviation of its best improper
     operation, as detection measured it (exact when detection verified every operation; for
     huge structures, where it verifies E and the generators only, the best verified improper
-    generator: an upper bound, at which that operation does hold); for a chiral one the
-    group is searched again at tolerances up to ``SEARCH_FACTOR`` × ``sym.tol``; ``None``
-    when no improper operation appears there.
+    generator: an upper bound, at which that operation does hold). For a chiral one the
+    core detects the group again on the ladder of tolerances up to ``SEARCH_FACTOR`` ×
+    ``sym.tol`` (:func:`tolerance_ladder`): first at that bound, where finding no improper
+    operation gives ``None``, then upwards from the bottom to the first tolerance with one
+    (a tolerance at which detection fails counts as none). Batches apply the same rule in
+    the core (``_core.find_point_groups_batch`` with ``improper_ladder``).
 
     Examples
     --------
@@ -87,14 +90,7 @@ def improper_within(sym: SymmetryData) -> float | None:
         if best is not None:
             return best
         return _best_improper(s, sym.center, sym.operations, sym.proper, sym.tol)
-    for t in tolerance_ladder(sym.tol, SEARCH_FACTOR * sym.tol)[1:]:
-        raw = _core.find_point_group(
-            s.positions, s.numbers, t, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT, s.masses
-        )
-        if raw.proper.all():
-            continue
-        best = _best_verified_improper(raw.proper, raw.verified, raw.deviations)
-        if best is not None:
-            return best
-        return _best_improper(s, raw.center, raw.operations, raw.proper, t)
-    return None
+    ladder = np.asarray(tolerance_ladder(sym.tol, SEARCH_FACTOR * sym.tol)[1:])
+    return _core.improper_within(
+        s.positions, s.numbers, sym.tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT, ladder, s.masses
+    )
