@@ -64,8 +64,7 @@ fn analyse_one(
     details: Option<&[f64]>,
 ) -> Result<One> {
     let sym = detect::find_point_group_with_masses(positions, numbers, masses, opts)?;
-    let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
-    let unshifted = count::count_unshifted(positions, sym.center, &mats, opts.tol);
+    let unshifted = unshifted_atoms(positions, &sym, opts.tol);
     let (orbit_ids, improper) = match details {
         Some(ladder) => (
             count::orbits(positions.len(), &sym.permutations)?,
@@ -82,6 +81,25 @@ fn analyse_one(
         orbit_ids,
         improper_within: improper,
     })
+}
+
+/// Atoms each operation of `sym` leaves unshifted. Every operation is counted when detection
+/// verified every one; otherwise (huge structures) the first operation of each class is
+/// counted and stands for its class, as verification stands on the generators.
+pub fn unshifted_atoms(positions: &[[f64; 3]], sym: &detect::Symmetry, tol: f64) -> Vec<u64> {
+    if sym.verified.len() == sym.ops.len() {
+        let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
+        return count::count_unshifted(positions, sym.center, &mats, tol);
+    }
+    let firsts: Vec<[[f64; 3]; 3]> = sym.classes.iter().map(|c| sym.ops[c[0]].matrix).collect();
+    let per_class = count::count_unshifted(positions, sym.center, &firsts, tol);
+    let mut out = vec![0u64; sym.ops.len()];
+    for (class, &n) in sym.classes.iter().zip(&per_class) {
+        for &k in class {
+            out[k] = n;
+        }
+    }
+    out
 }
 
 /// The smallest deviation among the improper operations of `sym` that detection verified,

@@ -177,6 +177,18 @@ def nuclides(symbols: list[str]) -> tuple[I64, F64]:
 def species(numbers: I64, masses: F64 | None = None) -> tuple[I64, list[str]]:
     """Species codes (equal = same element and mass) and species symbols (C, D, 13C)."""
 
+def improper_within(
+    positions: F64,
+    numbers: I64,
+    tol: float,
+    linear_n: int,
+    verify_all_limit: int,
+    ladder: F64,
+    masses: F64 | None = None,
+) -> float | None:
+    """Smallest tolerance (Å) at which an improper operation holds: detection at tol, then at
+    the ladder's tolerances (ascending; the last, the bound, tried first). None for none."""
+
 def find_point_groups_batch(
     positions: F64,
     numbers: I64,

@@ -74,3 +74,23 @@ def test_a_row_whose_characters_disagree_within_a_class_is_left_to_the_objects()
     )
     assert rows[0] is not None and rows[1] is None
     assert rows[0]["representations"]["atoms"]["irreps"] == {"A1": 2, "E": 1}
+
+
+@pytest.mark.parametrize("name", ["C60-like Ih", "SF6"])
+def test_huge_structure_rule_counts_one_operation_per_class_and_agrees(name, monkeypatch):
+    # Above the verify-all limit detection verifies the generators and counting takes the
+    # first operation of each class for its class: on an exact structure the object must be
+    # the one of counting every operation. The limit is lowered here to make a small
+    # structure "huge"; the batch path (core) follows the same rule.
+    from gammatrace import analysis as analysis_module
+
+    atoms = _built("Ih", 1) if name != "SF6" else octahedral("S", "F", 1.56)
+    full = gt.analyze(*atoms).to_dict()
+    monkeypatch.setattr(analysis_module, "VERIFY_ALL_LIMIT", 0)
+    few = gt.analyze(*atoms)
+    assert not few.symmetry.all_verified
+    got = few.to_dict()
+    # fewer operations verified: the largest deviation and the improper margin are over them
+    assert got.pop("max_deviation") <= full.pop("max_deviation")
+    assert got.pop("improper_within") >= full.pop("improper_within")
+    assert got == full

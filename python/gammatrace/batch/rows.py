@@ -132,9 +132,11 @@ def _environment_counts(data: Ragged, orbit_ids: np.ndarray, ok: np.ndarray) -> 
     if len(atom_index) == 0:
         return {}
     owner = np.repeat(np.arange(len(counts)), counts)[atom_index]
-    n_orbits = np.zeros(len(counts), dtype=np.int64)
     ids = np.asarray(orbit_ids, dtype=np.int64)
-    np.maximum.at(n_orbits, owner, ids + 1)
+    # each structure's orbits are 0 … m − 1: m is its largest id + 1
+    starts = np.concatenate([[0], np.cumsum(counts[ok])[:-1]])
+    n_orbits = np.zeros(len(counts), dtype=np.int64)
+    n_orbits[ok] = np.maximum.reduceat(ids, starts) + 1
     base = np.concatenate([[0], np.cumsum(n_orbits)[:-1]])
     g = ids + base[owner]  # orbits numbered over the chunk, still in order of first atom
     first = np.flatnonzero(g == np.maximum.accumulate(np.concatenate([[-1], g[:-1]])) + 1)

@@ -98,6 +98,11 @@ def dump(obj: Any) -> str:
     return orjson.dumps(obj, option=orjson.OPT_SERIALIZE_NUMPY).decode()
 
 
+def dump_bytes(obj: Any) -> bytes:
+    """:func:`dump` as UTF-8 bytes, ready for ``sys.stdout.buffer``."""
+    return orjson.dumps(obj, option=orjson.OPT_SERIALIZE_NUMPY)
+
+
 def fail(exc: BaseException, show_traceback: bool, where: str = "") -> None:
     """The one stderr line of a failure (``--traceback`` adds the full story)."""
     if show_traceback:

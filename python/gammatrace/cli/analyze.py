@@ -6,8 +6,11 @@ import argparse
 import os
 import sys
 
-from ..analysis import analyze_many
+from .._progress import progress
+from ..analysis import DEFAULT_BASES, analyze_many
 from ..bases import parse_basis
+from ..batch.rows import analysis_rows
+from ..batch.run import ragged_from_file
 from ..errors import GammatraceError
 from ..group.chirality import SEARCH_FACTOR
 from ..group.measure import EXTENDED_BOUND
@@ -15,9 +18,21 @@ from ..io import FrameError
 from ..pictures import draw_stereogram, draw_symmetry
 from ..render.grid import LATEX_END, LATEX_PREAMBLE
 from ..tables import get_table
-from ._shared import add_cell, add_format, add_tolerance, dump, fail, watched, write
+from ._shared import (
+    add_cell,
+    add_format,
+    add_tolerance,
+    dump,
+    dump_bytes,
+    fail,
+    watched,
+    write,
+)
 
 __all__ = ["register", "run"]
+
+#: Frames per call into the core on the batch path (rows are written and flushed per chunk).
+CHUNK = 4096
 
 
 def run(args: argparse.Namespace) -> int:
@@ -36,7 +51,62 @@ def run(args: argparse.Namespace) -> int:
     document = args.format == "latex" and args.latex_document
     if document:
         write(LATEX_PREAMBLE)
-    for result in watched(analyze_many(args.paths, tol=args.tol, cell=args.cell)):
+    plain_json = (
+        args.format == "json"
+        and len(bases) == len(DEFAULT_BASES)
+        and not (args.orbits or args.near or named or args.draw)
+    )
+    for path in args.paths:
+        if plain_json and _is_xyz_file(path):
+            status |= _json_rows_of_file(path, args)
+        else:
+            status |= _results_of(path, args, bases, named)
+    if document:
+        write(LATEX_END)
+    return status
+
+
+def _is_xyz_file(path: str) -> bool:
+    """A file (not standard input) of the XYZ family, which the batch path reads."""
+    return path != "-" and os.path.splitext(path)[1].lower() in (".xyz", ".extxyz", "")
+
+
+def _json_rows_of_file(path: str, args: argparse.Namespace) -> int:
+    """JSON Lines of every frame of one XYZ file through the batch path (the same objects
+    as one structure at a time, without a Python object per frame); the one-structure path
+    when the file cannot be read as a whole or holds no frame, for its error."""
+    try:
+        data = ragged_from_file(path, args.cell)
+    except GammatraceError:
+        data = None
+    if data is None or len(data) == 0:  # unreadable or empty: the error as reported there
+        return _results_of(path, args, list(DEFAULT_BASES), [])
+    status = 0
+    out = sys.stdout.buffer
+    with progress(len(data), enabled=not sys.stdout.isatty() and sys.stderr.isatty()) as bar:
+        for a in range(0, len(data), CHUNK):
+            b = min(a + CHUNK, len(data))
+            lines = []
+            for row in analysis_rows(data.slice(a, b), tol=args.tol, chunk_size=CHUNK):
+                if "error" in row:
+                    status = 1
+                    err = row["error"]
+                    print(
+                        f"gammatrace: {err['type']}: {row['source']} [frame {row['index']}]: "
+                        f"{err['message']}",
+                        file=sys.stderr,
+                    )
+                lines.append(dump_bytes(row))
+            out.write(b"\n".join(lines) + b"\n")
+            out.flush()
+            bar.update(b - a)
+    return status
+
+
+def _results_of(path: str, args: argparse.Namespace, bases: list, named: list) -> int:
+    """Every structure of one input through the one-structure path, in the chosen format."""
+    status = 0
+    for result in watched(analyze_many([path], tol=args.tol, cell=args.cell)):
         if isinstance(result, FrameError):
             status = 1
             if args.format == "json":
@@ -81,8 +151,6 @@ def run(args: argparse.Namespace) -> int:
                 write(dump(err.to_dict()) + "\n")
             fail(exc, args.traceback)
         sys.stdout.flush()
-    if document:
-        write(LATEX_END)
     return status
 
 

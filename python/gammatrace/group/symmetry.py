@@ -326,11 +326,19 @@ class SymmetryData:
     # ------------------------------------------------------------------ counting
     @cached_property
     def unshifted_atoms(self) -> np.ndarray:
-        """Atoms each operation leaves unshifted (``float64 (h,)``), counted once in the core."""
-        counts = _core.count_unshifted(
-            self.positions, tuple(self.center), self.operations, self.tol
-        )
-        return _frozen(counts.astype(np.float64))
+        """Atoms each operation leaves unshifted (``float64 (h,)``), counted once in the core:
+        every operation when detection verified every one; otherwise (huge structures) the
+        first operation of each class, standing for its class (the rule of the batch core,
+        ``batch::unshifted_atoms``)."""
+        if self.all_verified:
+            ops = self.operations
+        else:
+            ops = np.ascontiguousarray(self.operations[self.class_representatives])
+        counts = _core.count_unshifted(self.positions, tuple(self.center), ops, self.tol)
+        counts = counts.astype(np.float64)
+        if not self.all_verified:
+            counts = counts[self.op_class]
+        return _frozen(counts)
 
     def __repr__(self) -> str:
         return (
