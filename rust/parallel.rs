@@ -99,6 +99,21 @@ where
     }
 }
 
+/// Runs `f` on each item, consuming the items (so an item may hold a mutable part of an
+/// output), as [`map_items`]; results in item order.
+pub fn map_owned<U, T, F>(items: Vec<U>, threshold: usize, f: F) -> Vec<T>
+where
+    U: Send,
+    T: Send,
+    F: Fn(U) -> T + Sync + Send,
+{
+    if items.len() > threshold {
+        items.into_par_iter().map(f).collect()
+    } else {
+        items.into_iter().map(f).collect()
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -1,5 +1,8 @@
 """Typed signatures of the compiled core (private; use the gammatrace package)."""
 
+from collections.abc import Iterator
+from typing import ClassVar, Generic, TypeVar, overload
+
 import numpy as np
 import numpy.typing as npt
 from typing_extensions import TypeAlias
@@ -12,6 +15,8 @@ LINEAR_SUBGROUP_N: int  # M of the C_Mv / D_Md that stand for C∞v / D∞h
 VERIFY_ALL_LIMIT: int  # verify every operation while n_atoms * order stays below this
 PI_ALIGNMENT: float  # smallest |(R n)·n| at a π centre that R leaves in place
 MASS_TOLERANCE: float  # u: masses of one element closer than this are one species
+
+_T = TypeVar("_T")
 
 class Detection:
     """The point group of one structure as detection found it (frozen; arrays moved, not copied)."""
@@ -31,16 +36,36 @@ class Detection:
     deviations: F64  # (k,) largest image distance under verified[j], Å (0 for E)
     max_deviation: float  # largest image distance over the verified operations, Å
 
+class FrameColumn(Generic[_T]):
+    """One value per frame of an XyzFrames, made when asked for (a read-only sequence: len,
+    indexing with negative indices, slices as lists, iteration, ``==`` with a list, a tuple
+    or another column; unhashable)."""
+
+    def __len__(self) -> int: ...
+    @overload
+    def __getitem__(self, key: int) -> _T: ...
+    @overload
+    def __getitem__(self, key: slice) -> list[_T]: ...
+    def __iter__(self) -> Iterator[_T]: ...
+    def __eq__(self, other: object) -> bool: ...
+    def __ne__(self, other: object) -> bool: ...
+    __hash__: ClassVar[None]  # type: ignore[assignment]
+
 class XyzFrames:
-    """Every frame of an XYZ file as ragged arrays (frozen; the reader's buffers, not copied)."""
+    """Every frame of an XYZ file as ragged arrays (frozen; the reader's buffers, not copied).
+
+    Per frame only two offsets are held (atoms and comment line): the comment lines share
+    one buffer, ``info`` is parsed from a comment line when asked for, and only the frames
+    that failed keep an error.
+    """
 
     positions: F64  # (total_atoms, 3) Å
     numbers: I64  # (total_atoms,) atomic numbers
     masses: F64  # (total_atoms,) u, NaN for the standard weight; empty when no atom has its own
     offsets: I64  # (n_frames + 1,) frame f is offsets[f]..offsets[f + 1]
-    comments: list[str]
-    info: list[list[tuple[str, str]]]  # extended-XYZ key=value pairs of each comment line
-    errors: list[tuple[str, str] | None]  # (error type, message) of a frame that failed
+    comments: FrameColumn[str]  # the comment line of each frame ("" for a bad count line)
+    info: FrameColumn[list[tuple[str, str]]]  # extended-XYZ key=value pairs of each comment
+    errors: FrameColumn[tuple[str, str] | None]  # (error type, message) of a frame that failed
 
 class BatchResult:
     """What a batch found, one entry per structure (frozen; operations ragged by op_offsets)."""

@@ -118,6 +118,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<detect::Detection>()?;
     m.add_class::<detect::GroupData>()?;
     m.add_class::<io::XyzFrames>()?;
+    m.add_class::<io::FrameColumn>()?;
     m.add_class::<batch::BatchResult>()?;
     m.add("DEFAULT_TOLERANCE", crate::detect::DEFAULT_TOLERANCE)?;
     m.add("LINEAR_SUBGROUP_N", crate::detect::LINEAR_SUBGROUP_N)?;

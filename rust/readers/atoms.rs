@@ -1,4 +1,5 @@
-//! Atom lines: the comment line of each frame and the parallel parse of its atom lines.
+//! Atom lines: the layout of each frame and the parse of its atom lines (run in parallel
+//! over units of work).
 
 use super::extxyz::{layout_from_properties, parse_info, Layout, STANDARD};
 use super::lines::{find_newline, show, skip_spaces, token_end};
@@ -17,34 +18,52 @@ pub(super) struct Segment {
     pub(super) first_line: usize,
 }
 
-#[derive(Default)]
-pub(super) struct UnitOut {
-    pub(super) positions: Vec<[f64; 3]>,
-    pub(super) numbers: Vec<i64>,
+/// Where a unit of work writes its atoms: its own stretch of the output arrays, filled in
+/// file order (a frame that fails leaves its stretch to be dropped when the frames are
+/// assembled).
+pub(super) struct Sink<'a> {
+    pub(super) positions: &'a mut [[f64; 3]],
+    pub(super) numbers: &'a mut [i64],
     /// Empty until an atom of the unit has a mass of its own; from then on parallel to
     /// `positions` (NaN = the standard atomic weight).
     pub(super) masses: Vec<f64>,
-    /// Per segment: (frame, atoms pushed, first error).
-    pub(super) results: Vec<(usize, usize, Option<Error>)>,
+    /// Index of the next atom.
+    pub(super) at: usize,
 }
 
-pub(super) struct Header {
-    pub(super) comment: String,
-    pub(super) info: Vec<(String, String)>,
-    pub(super) layout: std::result::Result<Layout, Error>,
+impl Sink<'_> {
+    /// One atom: position, atomic number and mass (NaN = the standard atomic weight).
+    #[inline]
+    fn push(&mut self, xyz: [f64; 3], z: i64, mass: f64) {
+        if !mass.is_nan() {
+            if self.masses.is_empty() {
+                self.masses = vec![f64::NAN; self.positions.len()];
+            }
+            self.masses[self.at] = mass;
+        }
+        self.positions[self.at] = xyz;
+        self.numbers[self.at] = z;
+        self.at += 1;
+    }
 }
 
-pub(super) fn parse_header(data: &[u8], span: &Span, frame: usize, source: &str) -> Header {
-    let bytes = &data[span.comment.clone()];
-    let comment = match std::str::from_utf8(bytes) {
-        Ok(text) => text.to_owned(),
-        Err(_) => String::from_utf8_lossy(bytes).into_owned(),
-    };
-    let info = parse_info(&comment).unwrap_or_default();
-    let props = info
+/// The column layout a frame's comment line gives (`Properties`), or the error that makes
+/// the frame a bad one (reported on the comment line).
+pub(super) fn frame_layout(
+    comment: &str,
+    span: &Span,
+    frame: usize,
+    source: &str,
+) -> std::result::Result<Layout, Error> {
+    // a list of key=value pairs has at least one '='
+    if !comment.contains('=') {
+        return Ok(STANDARD);
+    }
+    let info = parse_info(comment).unwrap_or_default();
+    match info
         .iter()
-        .find(|(k, _)| k.eq_ignore_ascii_case("properties"));
-    let layout = match props {
+        .find(|(k, _)| k.eq_ignore_ascii_case("properties"))
+    {
         None => Ok(STANDARD),
         Some((_, v)) => layout_from_properties(v).map_err(|reason| Error::MalformedXyz {
             source: source.to_string(),
@@ -52,23 +71,6 @@ pub(super) fn parse_header(data: &[u8], span: &Span, frame: usize, source: &str)
             line: span.count_line + 1,
             reason,
         }),
-    };
-    Header {
-        comment,
-        info,
-        layout,
-    }
-}
-
-impl UnitOut {
-    /// One atom: position, atomic number and mass (NaN = the standard atomic weight).
-    fn push(&mut self, xyz: [f64; 3], z: i64, mass: f64) {
-        if !mass.is_nan() || !self.masses.is_empty() {
-            self.masses.resize(self.positions.len(), f64::NAN);
-            self.masses.push(mass);
-        }
-        self.positions.push(xyz);
-        self.numbers.push(z);
     }
 }
 
@@ -135,7 +137,7 @@ pub(super) fn parse_segment(
     n_atoms: usize,
     layout: &Layout,
     elements: &mut Elements,
-    out: &mut UnitOut,
+    out: &mut Sink,
     source: &str,
 ) -> Option<Error> {
     let mut pos = seg.start;

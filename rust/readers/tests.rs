@@ -35,8 +35,17 @@ fn frame_positions(f: &XyzFrames, k: usize) -> &[[f64; 3]] {
     &f.positions[f.offsets[k]..f.offsets[k + 1]]
 }
 
+/// Every frame's error (`None` for a frame that was read), as a list.
+fn errors(f: &XyzFrames) -> Vec<Option<Error>> {
+    (0..f.n_frames()).map(|k| f.error(k).cloned()).collect()
+}
+
+fn comments(f: &XyzFrames) -> Vec<&str> {
+    f.comments.iter().collect()
+}
+
 fn reason(f: &XyzFrames, k: usize) -> (usize, usize, String) {
-    match &f.errors[k] {
+    match f.error(k) {
         Some(Error::MalformedXyz {
             frame,
             line,
@@ -58,11 +67,11 @@ const WATER: &str = "3\nwater\nO 0.0 0.0 0.1173\nH 0.0 0.7572 -0.4692\nH 0.0 -0.
 fn reads_one_standard_frame() {
     let f = read(WATER);
     assert_eq!(f.n_frames(), 1);
-    assert_eq!(f.errors, vec![None]);
+    assert_eq!(errors(&f), vec![None]);
     assert_eq!(f.offsets, vec![0, 3]);
     assert_eq!(f.numbers, vec![8, 1, 1]);
-    assert_eq!(f.comments, vec!["water".to_string()]);
-    assert!(f.info[0].is_empty());
+    assert_eq!(comments(&f), vec!["water"]);
+    assert!(f.info(0).is_empty());
     assert_eq!(f.positions[1], [0.0, 0.7572, -0.4692]);
 }
 
@@ -92,11 +101,11 @@ fn round_trip_is_exact_for_many_frames() {
         want_off.push(want_pos.len());
     }
     let f = read(&text);
-    assert!(f.errors.iter().all(Option::is_none));
+    assert!(f.errors.is_empty());
     assert_eq!(f.positions, want_pos);
     assert_eq!(f.numbers, want_num);
     assert_eq!(f.offsets, want_off);
-    assert_eq!(f.comments[199], "frame 199");
+    assert_eq!(f.comments.get(199).unwrap(), "frame 199");
 }
 
 #[test]
@@ -104,16 +113,13 @@ fn tolerates_crlf_tabs_spaces_extra_columns_and_trailing_blanks() {
     let text = "  2 \r\ncomment with spaces \r\n\tC\t1.0\t2.0\t3.0\t0.5 extra\r\n   H 1 2 4\r\n\
                 1\n\nO 0 0 0\n\n  \n\t\n";
     let f = read(text);
-    assert_eq!(f.errors, vec![None, None]);
+    assert_eq!(errors(&f), vec![None, None]);
     assert_eq!(f.offsets, vec![0, 2, 3]);
     assert_eq!(
         f.positions,
         vec![[1.0, 2.0, 3.0], [1.0, 2.0, 4.0], [0.0; 3]]
     );
-    assert_eq!(
-        f.comments,
-        vec!["comment with spaces ".to_string(), String::new()]
-    );
+    assert_eq!(comments(&f), vec!["comment with spaces ", ""]);
     // No newline at the very end.
     let f = read("1\nx\nH 0 0 1");
     assert_eq!(f.positions, vec![[0.0, 0.0, 1.0]]);
@@ -122,7 +128,7 @@ fn tolerates_crlf_tabs_spaces_extra_columns_and_trailing_blanks() {
 #[test]
 fn accepts_atomic_numbers_and_fortran_exponents() {
     let f = read("2\n\n6 1.5D+00 -2.0d-1 3E2\n1 0 0 0\n");
-    assert_eq!(f.errors, vec![None]);
+    assert_eq!(errors(&f), vec![None]);
     assert_eq!(f.numbers, vec![6, 1]);
     assert_eq!(f.positions[0], [1.5, -0.2, 300.0]);
     let f = read("1\n\n0 0 0 0\n");
@@ -140,13 +146,14 @@ fn honours_extended_xyz_properties() {
                 C 9 9 9 1.0 2.0 3.0\nO 9 9 9 4.0 5.0 6.0 extra\n\
                 1\nProperties=Z:I:1:pos:R:3\n8 0.5 0.5 0.5\n";
     let f = read(text);
-    assert_eq!(f.errors, vec![None, None]);
+    assert_eq!(errors(&f), vec![None, None]);
     assert_eq!(
         f.positions,
         vec![[1.0, 2.0, 3.0], [4.0, 5.0, 6.0], [0.5; 3]]
     );
     assert_eq!(f.numbers, vec![6, 8, 8]);
-    let info: Vec<(&str, &str)> = f.info[0]
+    let pairs = f.info(0);
+    let info: Vec<(&str, &str)> = pairs
         .iter()
         .map(|(k, v)| (k.as_str(), v.as_str()))
         .collect();
@@ -175,8 +182,8 @@ fn honours_extended_xyz_properties() {
     assert!(why.contains("no pos:R:3 column"), "{why}");
     // A plain comment that merely contains '=' is a comment, not info.
     let f = read("1\nenergy = -76.4 hartree\nH 0 0 0\n");
-    assert_eq!(f.errors, vec![None]);
-    assert!(f.info[0].is_empty());
+    assert_eq!(errors(&f), vec![None]);
+    assert!(f.info(0).is_empty());
 }
 
 #[test]
@@ -215,8 +222,8 @@ fn reports_each_malformed_case_and_keeps_reading() {
         let text = format!("{WATER}{bad}{WATER}");
         let f = read(&text);
         assert_eq!(f.n_frames(), 3, "{want}");
-        assert_eq!(f.errors[0], None);
-        assert_eq!(f.errors[2], None, "{want}");
+        assert_eq!(errors(&f)[0], None);
+        assert_eq!(errors(&f)[2], None, "{want}");
         let (frame, l, why) = reason(&f, 1);
         assert_eq!((frame, l, why.as_str()), (1, line + 5, *want));
         assert_eq!(f.offsets, vec![0, 3, 3, 6], "{want}");
@@ -235,7 +242,7 @@ fn bad_count_lines_resynchronise() {
         reason(&f, 1),
         (1, 6, "atom count 'abc' is not a whole number".to_string())
     );
-    assert_eq!(f.errors[2], None);
+    assert_eq!(errors(&f)[2], None);
     assert_eq!(f.offsets, vec![0, 3, 3, 6]);
     // A negative count.
     let f = read(&format!("-3\nw\nO 0 0 0\nH 0 1 0\nH 0 -1 0\n{WATER}"));
@@ -243,7 +250,7 @@ fn bad_count_lines_resynchronise() {
         reason(&f, 0),
         (0, 1, "atom count '-3' is negative".to_string())
     );
-    assert_eq!(f.errors[1], None);
+    assert_eq!(errors(&f)[1], None);
     // A count that claims too many atoms: the next frame is not swallowed.
     let f = read(&format!("5\nw\nO 0 0 0\nH 0 1 0\nH 0 -1 0\n{WATER}{WATER}"));
     assert_eq!(f.n_frames(), 3);
@@ -253,7 +260,7 @@ fn bad_count_lines_resynchronise() {
         why.contains("says 5 atoms") && why.contains("line 6"),
         "{why}"
     );
-    assert_eq!(f.errors[1..], [None, None]);
+    assert_eq!(errors(&f)[1..], [None, None]);
     assert_eq!(f.offsets, vec![0, 0, 3, 6]);
     // A count that claims too few atoms: the frame is bad, the next one is read.
     let f = read(&format!("2\nw\nO 0 0 0\nH 0 1 0\nH 0 -1 0\n{WATER}"));
@@ -264,8 +271,9 @@ fn bad_count_lines_resynchronise() {
         why.contains("says 2 atoms") && why.contains("line 5"),
         "{why}"
     );
-    assert_eq!(f.errors[1], None);
+    assert_eq!(errors(&f)[1], None);
     assert_eq!(f.offsets, vec![0, 0, 3]);
+    assert_eq!(comments(&f), vec!["", "water"]);
     // A blank line between frames names its line.
     let f = read(&format!("{WATER}\n{WATER}"));
     assert_eq!(f.n_frames(), 3);
@@ -277,8 +285,52 @@ fn bad_count_lines_resynchronise() {
             "blank line where an atom count was expected".to_string()
         )
     );
-    assert_eq!(f.errors[2], None);
+    assert_eq!(errors(&f)[2], None);
     assert_eq!(f.offsets, vec![0, 3, 3, 6]);
+}
+
+#[test]
+fn a_big_frame_found_bad_after_its_atom_lines_leaves_nothing_behind() {
+    // the scan takes the frame (and its runs of atom lines) first, then finds one atom
+    // line too many: no atom, comment or run of it may remain
+    let n = CHUNK_LINES * 2 + 5;
+    let mut text = format!("{n}\nbig\n");
+    for i in 0..=n {
+        text.push_str(&format!("C {i} 0 0\n"));
+    }
+    text.push_str(WATER);
+    let f = read(&text);
+    assert_eq!(f.n_frames(), 2);
+    let (_, line, why) = reason(&f, 0);
+    assert_eq!(line, 1);
+    assert!(why.contains("atom lines continue"), "{why}");
+    assert_eq!(comments(&f), vec!["", "water"]);
+    assert_eq!(f.offsets, vec![0, 0, 3]);
+    assert_eq!(f.numbers, vec![8, 1, 1]);
+}
+
+#[test]
+fn the_first_error_of_a_big_frame_wins_and_drops_all_its_atoms() {
+    let n = CHUNK_LINES * 3;
+    let mut text = String::from(WATER);
+    text.push_str(&format!("{n}\nbig\n"));
+    for i in 0..n {
+        let bad = i == CHUNK_LINES + 7 || i == 2 * CHUNK_LINES + 1;
+        text.push_str(if bad { "C 0 zz 0\n" } else { "C 1 2 3\n" });
+    }
+    text.push_str(WATER);
+    for threads in [1, 3] {
+        let f = crate::parallel::install(threads, || read(&text)).unwrap();
+        assert_eq!(f.n_frames(), 3);
+        // atom i of the big frame is on line 8 + i
+        let (frame, line, why) = reason(&f, 1);
+        assert_eq!((frame, line), (1, 8 + CHUNK_LINES + 7));
+        assert_eq!(why, "coordinate 'zz' is not a number");
+        assert_eq!(f.errors.len(), 1);
+        assert_eq!(f.offsets, vec![0, 3, 3, 6]);
+        assert_eq!(frame_positions(&f, 2), frame_positions(&f, 0));
+        assert_eq!(f.positions.len(), 6);
+    }
 }
 
 #[test]
@@ -305,7 +357,7 @@ fn truncated_file_and_trailing_text() {
             "unexpected text after the last frame: 'end of data'".to_string()
         )
     );
-    assert_eq!(f.errors[0], None);
+    assert_eq!(errors(&f)[0], None);
 }
 
 #[test]
@@ -314,7 +366,7 @@ fn empty_and_blank_inputs_have_no_frames() {
     assert_eq!(read("\n\n  \r\n").n_frames(), 0);
     let f = read("0\nnothing here\n");
     assert_eq!(
-        (f.n_frames(), f.offsets.clone(), f.errors.clone()),
+        (f.n_frames(), f.offsets.clone(), errors(&f)),
         (1, vec![0, 0], vec![None])
     );
 }
@@ -358,12 +410,12 @@ fn results_are_identical_for_any_thread_count() {
         .iter()
         .enumerate()
         .all(|(i, p)| p[0] == i as f64));
-    let n_bad = one.errors.iter().filter(|e| e.is_some()).count();
+    let n_bad = one.errors.len();
     assert_eq!(n_bad, 12);
     assert_eq!(one.n_frames(), 3001);
     // Small frames keep their order: frame k+1 has comment "small k" where good.
-    assert_eq!(one.comments[1], "small 0");
-    assert_eq!(one.comments[3000], "small 2999");
+    assert_eq!(one.comments.get(1).unwrap(), "small 0");
+    assert_eq!(one.comments.get(3000).unwrap(), "small 2999");
 }
 
 #[test]
@@ -531,7 +583,7 @@ fn nuclide_symbols_and_a_masses_column_give_atoms_their_masses() {
     assert!(f.masses.is_empty());
     // D through the lookup; the H atoms keep NaN (standard weight).
     let f = read("3\nHDO\nO 0 0 0.1\nD 0 0.76 -0.47\nH 0 -0.76 -0.47\n");
-    assert_eq!(f.errors, vec![None]);
+    assert_eq!(errors(&f), vec![None]);
     assert_eq!(f.numbers, vec![8, 1, 1]);
     assert_eq!(f.masses.len(), 3);
     assert!(f.masses[0].is_nan() && f.masses[2].is_nan());
@@ -542,13 +594,13 @@ fn nuclide_symbols_and_a_masses_column_give_atoms_their_masses() {
                 2\nProperties=species:S:1:pos:R:3:masses:R:1 pbc=\"F F F\"\n\
                 H 0 0 0 3.016\nD 0 0 1 1.008\n";
     let f = read(text);
-    assert_eq!(f.errors, vec![None, None]);
+    assert_eq!(errors(&f), vec![None, None]);
     assert_eq!(f.offsets, vec![0, 1, 3]);
     assert!(f.masses[0].is_nan());
     assert_eq!(&f.masses[1..], &[3.016, 1.008]);
     // The mass column may come before the position.
     let f = read("1\nProperties=masses:R:1:species:S:1:pos:R:3\n2.014 H 1 2 3\n");
-    assert_eq!(f.errors, vec![None]);
+    assert_eq!(errors(&f), vec![None]);
     assert_eq!(
         (f.masses.clone(), f.positions[0]),
         (vec![2.014], [1.0, 2.0, 3.0])

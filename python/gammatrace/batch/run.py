@@ -175,9 +175,13 @@ def ragged_from_file(path: str | os.PathLike, cell: str | None = None) -> Ragged
     errors = list(raw.errors)
     dropped = np.zeros(n, dtype=bool)
     copied = False
-    for k, info in enumerate(raw.info):
-        # only frames with a cell key are looked at (plain XYZ frames have no info)
-        if errors[k] is not None or not any(key.lower() in ("pbc", "lattice") for key, _ in info):
+    for k, comment in enumerate(raw.comments):
+        # only frames with a cell key are looked at; a key is part of the comment line, so
+        # the line is parsed (raw.info) only when it holds one of the names
+        if errors[k] is not None or not ("pbc" in (low := comment.lower()) or "lattice" in low):
+            continue
+        info = raw.info[k]
+        if not any(key.lower() in ("pbc", "lattice") for key, _ in info):
             continue
         a, b = int(offsets[k]), int(offsets[k + 1])
         where = f"{source} [frame {k}]"

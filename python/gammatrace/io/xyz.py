@@ -90,7 +90,9 @@ def read_xyz_raw(path: str | os.PathLike) -> _core.XyzFrames:
     """The reader's ragged arrays (positions, numbers, masses, offsets, comments, info, errors).
 
     ``masses`` is empty when no atom of the file has a mass of its own, else parallel to
-    ``numbers`` with NaN where the standard atomic weight applies.
+    ``numbers`` with NaN where the standard atomic weight applies. ``comments``, ``info``
+    (the ``key=value`` pairs of each comment line) and ``errors`` (``None`` or the error type
+    and message of each frame) are read-only sequences whose items are made when asked for.
 
     For batches: no per-frame Python objects are made.
     """
