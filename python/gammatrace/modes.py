@@ -40,8 +40,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .group.symmetry import SymmetryData
 from .errors import InputError, SymmetryBreakingWarning, SymmetryError
+from .group.symmetry import SymmetryData
 from .io.hessian import HessianFile, read_hessian, validate_hessian
 from .text import plural
 

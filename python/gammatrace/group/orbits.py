@@ -8,8 +8,7 @@ from typing import Any
 import numpy as np
 
 from .. import _core
-from ..io.elements import SYMBOLS
-from ..io.elements import species
+from ..io.elements import SYMBOLS, species
 from ..tables.subgroups import identify_group
 from .stabilisers import atom_images
 from .symmetry import SymmetryData
