@@ -86,17 +86,20 @@ def summary_rows(
         np.ascontiguousarray(np.asarray(angle, dtype=np.float64).reshape(-1)),
         1,
     ).reshape(k, h)
-    chi_3n = u * per_atom
-    atoms, cart = u[:, first], chi_3n[:, first]
-    ok = _class_spread_ok(u, atoms, op_class) & _class_spread_ok(chi_3n, cart, op_class)
-    m_atoms, ok_atoms = table.reduce_rows(atoms)
-    m_cart, ok_cart = table.reduce_rows(cart)
+    # Γ(atoms) in rows 0 … k − 1, Γ_3N in rows k … 2k − 1: one pass for both
+    per_op = np.concatenate([u, u * per_atom])
+    chars = per_op[:, first]
+    spread_ok = _class_spread_ok(per_op, chars, op_class)
+    mult, reduced = table.reduce_rows(chars)
+    cart = chars[k:]
     m_vib, modes, ok_vib, _ = reduce_vibrations(table, cart, n_atoms)
-    ok &= ok_atoms & ok_cart & ok_vib
+    ok = spread_ok[:k] & spread_ok[k:] & reduced[:k] & reduced[k:] & ok_vib
     facts = _facts(table)
     labels = facts.labels
-    atoms_json, cart_json = _json_rows(atoms), _json_rows(cart)
-    atoms_irreps, cart_irreps = _irrep_dicts(labels, m_atoms), _irrep_dicts(labels, m_cart)
+    as_json = _json_rows(chars)
+    as_irreps = _irrep_dicts(labels, mult)
+    atoms_json, cart_json = as_json[:k], as_json[k:]
+    atoms_irreps, cart_irreps = as_irreps[:k], as_irreps[k:]
     ir_mask, raman_mask = facts.ir_mask.tolist(), facts.raman_mask.tolist()
     a1 = facts.totally_symmetric
     sigma = int(table.symmetry_number)
