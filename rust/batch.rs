@@ -197,24 +197,11 @@ fn panic_message(payload: &(dyn std::any::Any + Send)) -> String {
 /// `offsets[k]..offsets[k+1]`. Atoms are matched by species, as in
 /// [`detect::find_point_group_with_masses`]. `n_threads = 0` uses all cores. Errors:
 /// `InvalidArgument` when the offsets or masses do not describe the arrays (the whole call
-/// fails); per-structure problems land in `errors` and the rest go on.
+/// fails); per-structure problems land in `errors` and the rest go on. `details` =
+/// `Some(ladder)` adds each structure's orbits and [`improper_within`] (searched over the
+/// tolerances of `ladder`).
+#[allow(clippy::too_many_arguments)]
 pub fn summarize_batch(
-    positions: &[[f64; 3]],
-    numbers: &[i64],
-    masses: Option<&[f64]>,
-    offsets: &[usize],
-    opts: &DetectOptions,
-    n_threads: usize,
-) -> Result<BatchSummary> {
-    summarize_batch_with(positions, numbers, masses, offsets, opts, n_threads, None)
-}
-
-/// [`summarize_batch`], with `details` = `Some(ladder)` adding each structure's orbits and
-/// [`improper_within`] (searched over the tolerances of `ladder`).
-///
-/// # Errors
-/// As [`summarize_batch`].
-pub fn summarize_batch_with(
     positions: &[[f64; 3]],
     numbers: &[i64],
     masses: Option<&[f64]>,
@@ -360,8 +347,16 @@ mod tests {
         pos.extend(p2);
         num.extend(n2);
         let offsets = [0, 3, 4, 7];
-        let res =
-            summarize_batch(&pos, &num, None, &offsets, &DetectOptions::default(), 2).unwrap();
+        let res = summarize_batch(
+            &pos,
+            &num,
+            None,
+            &offsets,
+            &DetectOptions::default(),
+            2,
+            None,
+        )
+        .unwrap();
         assert_eq!(
             res.point_group,
             vec!["C2v".to_string(), String::new(), "C2v".into()]
@@ -386,8 +381,26 @@ mod tests {
             num.extend(n.iter().copied());
             offsets.push(pos.len());
         }
-        let a = summarize_batch(&pos, &num, None, &offsets, &DetectOptions::default(), 1).unwrap();
-        let b = summarize_batch(&pos, &num, None, &offsets, &DetectOptions::default(), 2).unwrap();
+        let a = summarize_batch(
+            &pos,
+            &num,
+            None,
+            &offsets,
+            &DetectOptions::default(),
+            1,
+            None,
+        )
+        .unwrap();
+        let b = summarize_batch(
+            &pos,
+            &num,
+            None,
+            &offsets,
+            &DetectOptions::default(),
+            2,
+            None,
+        )
+        .unwrap();
         assert_eq!(a.point_group, b.point_group);
         assert_eq!(a.unshifted, b.unshifted);
         assert_eq!(a.op_offsets, b.op_offsets);
@@ -426,11 +439,20 @@ mod tests {
             &[0, 5, 10],
             &DetectOptions::default(),
             2,
+            None,
         )
         .unwrap();
         assert_eq!(res.point_group, vec!["Td".to_string(), "C2v".into()]);
-        let plain =
-            summarize_batch(&pos, &num, None, &[0, 5, 10], &DetectOptions::default(), 1).unwrap();
+        let plain = summarize_batch(
+            &pos,
+            &num,
+            None,
+            &[0, 5, 10],
+            &DetectOptions::default(),
+            1,
+            None,
+        )
+        .unwrap();
         assert_eq!(plain.point_group, vec!["Td".to_string(), "Td".into()]);
         assert!(summarize_batch(
             &pos,
@@ -438,17 +460,59 @@ mod tests {
             Some(&masses[..9]),
             &[0, 5, 10],
             &DetectOptions::default(),
-            1
+            1,
+            None,
         )
         .is_err());
     }
 
     #[test]
+    fn details_give_orbits_and_the_improper_margin() {
+        // water twice (C2v: O alone, the two H together, a mirror within 0 Å), then a
+        // tetrahedral centre with four different substituents (CHFClBr): chiral, and no
+        // improper operation at any tolerance (every atom its own species)
+        let (mut p, mut n) = water();
+        let (w, wn) = water();
+        p.extend_from_slice(&w);
+        n.extend_from_slice(&wn);
+        p.extend_from_slice(&[
+            [0.0, 0.0, 0.0],
+            [0.63, 0.63, 0.63],
+            [-0.78, -0.78, 0.78],
+            [-1.02, 1.02, -1.02],
+            [1.11, -1.11, -1.11],
+        ]);
+        n.extend_from_slice(&[6, 1, 9, 17, 35]);
+        let ladder = [0.02, 0.05, 0.1];
+        let res = summarize_batch(
+            &p,
+            &n,
+            None,
+            &[0, 3, 6, 11],
+            &DetectOptions::default(),
+            1,
+            Some(&ladder),
+        )
+        .unwrap();
+        assert_eq!(res.orbit_ids, vec![0, 1, 1, 0, 1, 1, 0, 1, 2, 3, 4]);
+        assert!(res.improper_within[0] < 1e-9 && res.improper_within[1] < 1e-9);
+        assert_eq!(res.point_group[2], "C1");
+        assert!(res.improper_within[2].is_nan());
+        let plain = summarize_batch(&p, &n, None, &[0, 3], &DetectOptions::default(), 1, None);
+        let plain = plain.unwrap();
+        assert!(plain.orbit_ids.is_empty());
+    }
+
+    #[test]
     fn offsets_are_checked() {
         let (p, n) = water();
-        assert!(summarize_batch(&p, &n, None, &[0, 5], &DetectOptions::default(), 1).is_err());
-        assert!(summarize_batch(&p, &n, None, &[2, 1], &DetectOptions::default(), 1).is_err());
-        let empty = summarize_batch(&p, &n, None, &[], &DetectOptions::default(), 1).unwrap();
+        assert!(
+            summarize_batch(&p, &n, None, &[0, 5], &DetectOptions::default(), 1, None).is_err()
+        );
+        assert!(
+            summarize_batch(&p, &n, None, &[2, 1], &DetectOptions::default(), 1, None).is_err()
+        );
+        let empty = summarize_batch(&p, &n, None, &[], &DetectOptions::default(), 1, None).unwrap();
         assert!(empty.point_group.is_empty());
     }
 }

@@ -69,7 +69,7 @@ pub(super) fn find_point_groups_batch<'py>(
         .map(|l| slice1(l, "improper_ladder"))
         .transpose()?;
     let res = py
-        .detach(|| batch::summarize_batch_with(pos, num, mass, &off, &opts, n_threads, ladder))
+        .detach(|| batch::summarize_batch(pos, num, mass, &off, &opts, n_threads, ladder))
         .map_err(CoreError)?;
     let n_struct = res.frames.len();
     let flat: Vec<f64> = res.frames.iter().flatten().flatten().copied().collect();

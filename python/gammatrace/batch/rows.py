@@ -16,7 +16,6 @@ from typing import Any
 
 import numpy as np
 
-from .. import _core
 from ..analysis import _check_tol, analyze_structure
 from ..errors import GammatraceError
 from ..group import DEFAULT_TOL
@@ -24,8 +23,8 @@ from ..group.chirality import SEARCH_FACTOR, tolerance_ladder
 from ..io import FrameError, Structure
 from ..io.elements import SYMBOLS, species
 from ..summary import summary_rows
-from ..tables import LINEAR_SUBGROUP_N, get_table
-from .run import DEFAULT_CHUNK, Ragged
+from ..tables import get_table
+from .run import DEFAULT_CHUNK, Ragged, detect_chunk
 
 __all__ = ["analysis_rows"]
 
@@ -54,16 +53,7 @@ def _error_row(data: Ragged, k: int, kind: str, message: str) -> dict:
 
 def _chunk_rows(data: Ragged, tol: float, ladder: np.ndarray, n_threads: int) -> list:
     n = len(data)
-    raw = _core.find_point_groups_batch(
-        data.positions,
-        data.numbers,
-        np.ascontiguousarray(data.offsets),
-        tol,
-        LINEAR_SUBGROUP_N,
-        int(n_threads),
-        None if data.masses is None else np.ascontiguousarray(data.masses),
-        ladder,
-    )
+    raw = detect_chunk(data, tol, n_threads, ladder)
     offsets = data.offsets
     n_atoms = np.diff(offsets)
     groups = list(raw.point_group)

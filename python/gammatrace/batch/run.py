@@ -301,21 +301,28 @@ def _reduce_group(group: str, rows: np.ndarray, raw: dict, n_atoms: np.ndarray, 
         )
 
 
+def detect_chunk(chunk: Ragged, tol: float, n_threads: int, improper_ladder=None):
+    """The core's batch detection of one chunk (``_core.BatchResult``); with
+    ``improper_ladder`` also each structure's orbits and improper_within."""
+    return _core.find_point_groups_batch(
+        chunk.positions,
+        chunk.numbers,
+        np.ascontiguousarray(chunk.offsets),
+        tol,
+        LINEAR_SUBGROUP_N,
+        int(n_threads),
+        None if chunk.masses is None else np.ascontiguousarray(chunk.masses),
+        improper_ladder,
+    )
+
+
 def _run_chunk(chunk: Ragged, tol: float, n_threads: int) -> dict:
     n = len(chunk)
     cols = _empty_columns(n)
     cols["source"] = np.asarray(chunk.sources, dtype=object)
     cols["index"] = chunk.indices.copy()
     cols["n_atoms"] = np.diff(chunk.offsets)
-    raw = _core.find_point_groups_batch(
-        chunk.positions,
-        chunk.numbers,
-        np.ascontiguousarray(chunk.offsets),
-        tol,
-        LINEAR_SUBGROUP_N,
-        n_threads,
-        None if chunk.masses is None else np.ascontiguousarray(chunk.masses),
-    )
+    raw = detect_chunk(chunk, tol, n_threads)
     groups = np.asarray(raw.point_group, dtype=object)
     cols["max_deviation"] = np.asarray(raw.max_deviation, dtype=np.float64)
     for g in np.unique(groups[groups != ""]):
