@@ -56,6 +56,9 @@ def pytest_configure(config):
     config.addinivalue_line(
         "markers", "headline: the workloads re-run when the machine was busy (scripts/bench.sh)"
     )
+    config.addinivalue_line(
+        "markers", "big: the 10⁶-atom workloads (-m 'not big' for a quick run without them)"
+    )
 
 
 def _git(path: Path, *args: str) -> str:
@@ -118,3 +121,7 @@ def pytest_benchmark_update_machine_info(config, machine_info):
 
 def pytest_benchmark_update_json(config, benchmarks, output_json):
     output_json["loadavg_at_end"] = load_average()
+    # --benchmark-json always writes every round's time (stats.data): megabytes for the
+    # microbenchmarks, and the report reads only the summary statistics
+    for b in output_json.get("benchmarks", []):
+        b.get("stats", {}).pop("data", None)

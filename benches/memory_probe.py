@@ -5,8 +5,10 @@ tracemalloc does not see the Rust core's allocations, so the probe reads the ker
 /proc/self/clear_refs where allowed). Run by ``benches/test_memory.py``::
 
     python -m benches.memory_probe positions.npy numbers.npy --workload ours
+    python -m benches.memory_probe frames.xyz --workload read-raw
 
-Prints one JSON object.
+``read-raw`` reads a multi-frame XYZ file with ``gammatrace.io.read_xyz_raw`` (the reader's
+ragged arrays, no per-frame Python objects). Prints one JSON object.
 """
 
 from __future__ import annotations
@@ -36,9 +38,9 @@ def _reset_peak() -> bool:
 
 def main(argv=None) -> None:
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    p.add_argument("positions")
-    p.add_argument("numbers")
-    p.add_argument("--workload", choices=("ours", "kdtree"), default="ours")
+    p.add_argument("positions", help="positions .npy, or the XYZ file for read-raw")
+    p.add_argument("numbers", nargs="?", help="atomic numbers .npy (not for read-raw)")
+    p.add_argument("--workload", choices=("ours", "kdtree", "read-raw"), default="ours")
     p.add_argument("--tol", type=float, default=0.01)
     args = p.parse_args(argv)
 
@@ -46,6 +48,9 @@ def main(argv=None) -> None:
 
     from . import baselines
 
+    if args.workload == "read-raw":
+        _read_raw(args.positions)
+        return
     positions = np.load(args.positions)
     numbers = np.load(args.numbers)
     # warm-up on a small structure: imports, tables and the thread pool are not counted
@@ -76,6 +81,35 @@ def main(argv=None) -> None:
                 "n_atoms": len(positions),
                 "point_group": group,
                 "coordinate_bytes": int(positions.nbytes),
+                "rss_before_kb": rss_before,
+                "hwm_after_kb": hwm_after,
+                "peak_reset": reset,
+                "peak_extra_bytes": (hwm_after - rss_before) * 1024,
+            }
+        )
+    )
+
+
+def _read_raw(path: str) -> None:
+    from gammatrace.io import read_xyz_raw
+
+    # no warm-up read: memory freed by one would be reused by the measured read, below the
+    # high-water mark (as in tests/reliability/test_hostile_sizes.py, imports come first)
+    gc.collect()
+    rss_before = _status_kb("VmRSS")
+    reset = _reset_peak()
+    raw = read_xyz_raw(path)
+    hwm_after = _status_kb("VmHWM")
+    n_frames = len(raw.offsets) - 1
+    n_atoms = int(raw.offsets[-1])
+    print(
+        json.dumps(
+            {
+                "workload": "read-raw",
+                "n_atoms": n_atoms,
+                "n_frames": n_frames,
+                "point_group": None,
+                "coordinate_bytes": 24 * n_atoms,
                 "rss_before_kb": rss_before,
                 "hwm_after_kb": hwm_after,
                 "peak_reset": reset,

@@ -48,6 +48,32 @@ DETECTION_TARGETS = (
     ("detect C1 30 atoms x100", "C1 conformer, 30 atoms (per structure)", 3e-6, 100),
 )
 TARGET_DETECTION_RATIO = 2.0
+# Targets of issue 14, parts 2–4: the per-structure path, the command line, many tiny frames.
+TARGET_ANALYZE_OVERHEAD_S = 60e-6  # analyze(...).to_dict() minus the core's detection
+PER_STRUCTURE_GROUPS = ("Td", "D3h", "C2v", "C1")  # groups "analyze 30 atoms <name>"
+TARGET_CLI_ANALYZE_PER_S = 10_000
+TARGET_CLI_SCREEN_PER_S = 40_000
+TARGET_CLI_CLUSTER_S = 0.6
+TARGET_CLI_CLUSTER_RATIO = 25.0
+TARGET_TINY_FRAME_BYTES = 200.0
+#: "Before" figures shown next to every run's own. Sources: the text of issue 14 ("issue"),
+#: and, marked with their commit, runs of the benches of this page on the code before parts
+#: 2–4 (the per-structure rows: benches/test_per_structure.py, run of 2026-12-02 16:26 UTC on
+#: gammatrace 2495067, branch bench, 1-minute load 4.1–4.5; the batch row: the recorded run
+#: 20261202T155620Z-02aa233; the tiny-frames row: tests/reliability/test_hostile_sizes.py).
+BEFORE = {
+    # (analyze(...).to_dict(), detection) medians, seconds, at 2495067
+    "analyze Td": (339e-6, 29.3e-6),
+    "analyze D3h": (313e-6, 17.8e-6),
+    "analyze C2v": (277e-6, 12.9e-6),
+    "analyze C1": (555e-6, 4.2e-6),
+    "analyze issue": "≈ 180–290 µs per analyze(...).to_dict() (water, benzene; issue)",
+    "cli analyze": "880/s (issue); 1,908/s at 2495067 (load 4.4)",
+    "cli screen": "14,000/s (issue); 10,212/s at 2495067 (load 4.5)",
+    "batch": "89,600/s (2 threads, run 20261202T155620Z-02aa233)",
+    "cli cluster": "1.6–1.8 s (issue); ≈ 5.7 s on main; 15.9 s at 2495067 (load 5)",
+    "tiny frames": "≈ 460–500 B/frame (test_hostile_sizes.py xfail note; 461 B at 2495067)",
+}
 
 
 def _git(*args: str, cwd: Path = ROOT) -> str:
@@ -260,6 +286,15 @@ def make_plot(bench: dict, path: Path) -> None:
             if pts:
                 xs, ys = zip(*pts)
                 ax.loglog(xs, ys, style, label=label, markersize=6)
+        cli = bench.get((f"cli {family} 1e6", "ours-analyze-json"))
+        if cli is not None:
+            ax.loglog(
+                [cli["extra_info"]["n_atoms"]],
+                [cli["stats"]["median"]],
+                "*",
+                label="gammatrace analyze --format json (command line, end to end)",
+                markersize=10,
+            )
         ax.set_title(
             f"{family} clusters ({'Mackay icosahedra' if family == 'Ih' else 'fcc spheres'})"
         )
@@ -447,6 +482,155 @@ def detection_table(bench: dict) -> list:
     return lines if len(lines) > 2 else ["(not run)"]
 
 
+def _per_s(x: float | None) -> str:
+    return "—" if x is None else f"{x:,.0f}/s"
+
+
+def _fmt_us(x: float | None) -> str:
+    return "—" if x is None else f"{x * 1e6:.0f} µs"
+
+
+def per_structure_table(runs: list) -> list:
+    """Targets of issue 14, parts 2–4, with the "before" figures and same-run references.
+
+    ``runs``: ``[(label, bench), ...]``, the main run first (references come from it); a
+    target's verdict takes the better of the runs that have it.
+    """
+    labels = [label for label, _ in runs]
+    lines = [
+        "| target | before | " + " | ".join(labels) + " | reference (same run) | verdict |",
+        "|---" * (4 + len(runs)) + "|",
+    ]
+    main = runs[0][1]
+
+    def med(bench, group, name):
+        return median(bench.get((group, name)))
+
+    def row(title, before, values, fmt, reference, ok):
+        cells = " | ".join(fmt(v) for v in values)
+        lines.append(f"| {title} | {before} | {cells} | {reference} | {verdict(ok)} |")
+
+    # 2a: the per-structure path above detection
+    for name in PER_STRUCTURE_GROUPS:
+        g = f"analyze 30 atoms {name}"
+        diffs = []
+        for _, bench in runs:
+            full, det = med(bench, g, "ours-analyze-to-dict"), med(bench, g, "ours-detection")
+            diffs.append(None if full is None or det is None else full - det)
+        if all(d is None for d in diffs):
+            continue
+        full, det = med(main, g, "ours-analyze-to-dict"), med(main, g, "ours-detection")
+        b_full, b_det = BEFORE[f"analyze {name}"]
+        got = [d for d in diffs if d is not None]
+        row(
+            f"`analyze(symbols, positions).to_dict()` − detection, 30 atoms {name}, "
+            f"≤ {_fmt_us(TARGET_ANALYZE_OVERHEAD_S)}",
+            f"{_fmt_us(b_full - b_det)} ({_fmt_us(b_full)} − {_fmt_us(b_det)})",
+            diffs,
+            _fmt_us,
+            "—" if full is None else f"to_dict {_fmt_us(full)}, detection {det * 1e6:.1f} µs",
+            min(got) <= TARGET_ANALYZE_OVERHEAD_S,
+        )
+
+    # 2b, 2c: the command line on the conformer ensemble
+    g = "cli 20k conformers"
+    start, imp = med(main, g, "python-startup"), med(main, g, "cli-import")
+    startup = (
+        "—"
+        if start is None or imp is None
+        else f"bare interpreter {fmt_s(start)}, `import gammatrace.cli` {fmt_s(imp)}"
+    )
+    for name, title, limit, before in (
+        (
+            "ours-analyze-json",
+            "`gammatrace analyze --format json`, 20,000 conformers, end to end",
+            TARGET_CLI_ANALYZE_PER_S,
+            BEFORE["cli analyze"],
+        ),
+        (
+            "ours-screen",
+            "`gammatrace screen` to JSON Lines, same file, end to end",
+            TARGET_CLI_SCREEN_PER_S,
+            BEFORE["cli screen"],
+        ),
+    ):
+        vals = [
+            (bench.get((g, name)) or {}).get("extra_info", {}).get("per_second")
+            for _, bench in runs
+        ]
+        if all(v is None for v in vals):
+            continue
+        row(
+            f"{title} ≥ {limit:,}/s",
+            before,
+            vals,
+            _per_s,
+            startup,
+            max(v for v in vals if v is not None) >= limit,
+        )
+
+    # 2d: the batch API
+    vals = [headline_numbers(bench)["batch"] for _, bench in runs]
+    if any(v is not None for v in vals):
+        loop = (main.get(("batch 1e4 conformers", "kdtree-loop")) or {}).get("extra_info", {})
+        row(
+            f"batch API, 10⁴ conformers, best of 1 and {os.cpu_count()} threads "
+            f"≥ {GOAL_BATCH_PER_S:,}/s",
+            BEFORE["batch"],
+            vals,
+            _per_s,
+            f"KD-tree loop {_per_s(loop.get('per_second'))}",
+            max(v for v in vals if v is not None) >= GOAL_BATCH_PER_S,
+        )
+
+    # 3: the 10⁶-atom cluster from the command line
+    g = "cli Ih 1e6"
+    times = [med(bench, g, "ours-analyze-json") for _, bench in runs]
+    if any(t is not None for t in times):
+        kd = med(main, g, "kdtree")
+        row(
+            f"`gammatrace analyze FILE --format json`, Ih 1,025,235 atoms, end to end "
+            f"≤ {TARGET_CLI_CLUSTER_S} s",
+            BEFORE["cli cluster"],
+            times,
+            fmt_s,
+            f"numpy.loadtxt + cKDTree (b) {fmt_s(kd)}",
+            min(t for t in times if t is not None) <= TARGET_CLI_CLUSTER_S,
+        )
+        ratios = [
+            None if t is None or (k := med(bench, g, "kdtree")) is None else k / t
+            for t, (_, bench) in zip(times, runs)
+        ]
+        got = [r for r in ratios if r is not None]
+        row(
+            f"… ≥ {TARGET_CLI_CLUSTER_RATIO:.0f}× faster than that baseline",
+            "—",
+            ratios,
+            fmt_ratio,
+            "baseline given the operations, untimed",
+            max(got) >= TARGET_CLI_CLUSTER_RATIO if got else None,
+        )
+
+    # 4: many tiny frames
+    vals = [
+        (bench.get(("peak memory", "tiny-frames-1e6-read")) or {})
+        .get("extra_info", {})
+        .get("bytes_per_frame")
+        for _, bench in runs
+    ]
+    if any(v is not None for v in vals):
+        row(
+            f"`read_xyz_raw`, 10⁶ one-atom frames: peak memory ≤ "
+            f"{TARGET_TINY_FRAME_BYTES:.0f} B per frame",
+            BEFORE["tiny frames"],
+            vals,
+            lambda x: "—" if x is None else f"{x:.0f} B",
+            "file: 12 B per frame; coordinates + number: 32 B",
+            min(v for v in vals if v is not None) <= TARGET_TINY_FRAME_BYTES,
+        )
+    return lines if len(lines) > 2 else ["(not run)"]
+
+
 def rust_table(rust: dict | None) -> list:
     if not rust:
         return ["(not run: cargo missing or the micro-benchmark failed)"]
@@ -532,6 +716,21 @@ def write_page(stamp: str, bench: dict, rerun: dict | None, rust: dict | None) -
         "",
         *detection_table(bench),
         "",
+        "## Per-structure path, command line, tiny frames (issue 14, parts 2–4)",
+        "",
+        (
+            "*before*: figures from the text of issue 14 and from runs of these benches on the "
+            "code before parts 2–4 (commit named; constants `BEFORE` in benches/report.py). "
+            "The command-line rows run one fresh interpreter per round (start-up, imports, "
+            "reading, analysis, writing), with `PYTHONPATH` set to the checkout under test; the "
+            "per-structure rows subtract the median of the core's detection "
+            "(`_core.find_point_group` with `analyze`'s arguments) from that of "
+            "`analyze(symbols, positions).to_dict()`, both from the same run. Verdicts take the "
+            "better run."
+        ),
+        "",
+        *per_structure_table(runs),
+        "",
         "## Scaling",
         "",
         "![time against number of atoms](benches/results/scaling.png)",
@@ -544,7 +743,18 @@ def write_page(stamp: str, bench: dict, rerun: dict | None, rust: dict | None) -
             if rows:
                 n = next(b["extra_info"]["n_atoms"] for (gg, _), b in _rows(bench) if gg == g)
                 out += [f"### {g} ({n:,} atoms)", "", *rows, ""]
+    for name in PER_STRUCTURE_GROUPS:
+        g = f"analyze 30 atoms {name}"
+        rows = group_table(bench, g)
+        if rows:
+            out += [f"### {g}", "", *rows, ""]
     for title, g, ref in (
+        (
+            "Command line: 20,000 conformers (one process per round)",
+            "cli 20k conformers",
+            None,
+        ),
+        ("Command line: Ih cluster, 1,025,235 atoms", "cli Ih 1e6", "ours-analyze-json"),
         ("Batch: 10⁴ conformers of a 30-atom molecule", "batch 1e4 conformers", _best_batch(bench)),
         ("Reading a ~50 MB multi-frame XYZ file", "read 50 MB xyz", "ours"),
         ("Reading 10⁶ one-atom frames (fresh process)", "read 1e6 tiny frames", None),
@@ -553,7 +763,7 @@ def write_page(stamp: str, bench: dict, rerun: dict | None, rust: dict | None) -
         rows = group_table(bench, g, (ref,) if ref else ())
         out += [f"### {title}", ""]
         if not rows:
-            out += ["Not run (skipped: see the pytest output; issue 6 not merged).", ""]
+            out += ["Not run (deselected or skipped: see the pytest output).", ""]
             continue
         out += [*rows, ""]
         extra = []
@@ -573,19 +783,22 @@ def write_page(stamp: str, bench: dict, rerun: dict | None, rust: dict | None) -
                     f"- {name}: {e['mb_per_s']:.0f} MB/s ({e['file_bytes'] / 1e6:.1f} MB, "
                     f"{e['n_frames']:,} frames)"
                 )
-        out += [*extra, ""]
+        if extra:
+            out += [*extra, ""]
     mem = [(n, b["extra_info"]) for (g, n), b in _rows(bench) if g == "peak memory"]
     if mem:
         out += [
             "### Peak memory (fresh process, VmHWM after − VmRSS before)",
             "",
-            "| workload | atoms | coordinates | peak extra | ratio |",
-            "|---|---|---|---|---|",
+            "| workload | atoms | coordinates | peak extra | ratio | per frame |",
+            "|---|---|---|---|---|---|",
         ]
         for name, e in sorted(mem):
+            per_frame = e.get("bytes_per_frame")
             out.append(
                 f"| {name} | {e['n_atoms']:,} | {e['coordinate_bytes'] / 1e6:.1f} MB | "
-                f"{e['peak_extra_bytes'] / 1e6:.1f} MB | {e['ratio_to_coordinates']:.1f}× |"
+                f"{e['peak_extra_bytes'] / 1e6:.1f} MB | {e['ratio_to_coordinates']:.1f}× | "
+                f"{'—' if per_frame is None else f'{per_frame:.0f} B'} |"
             )
         out.append("")
     out += ["## Lookup kernel (Rust)", "", *rust_table(rust), ""]

@@ -38,6 +38,8 @@ def _params():
         marks = [pytest.mark.timeout(3600)]
         if family == "Ih" and k == 6:
             marks.append(pytest.mark.headline)
+        if k == 6:
+            marks.append(pytest.mark.big)
         out.append(pytest.param(family, k, id=ident, marks=marks))
     return out
 

@@ -4,6 +4,9 @@ Each test runs ``benches.memory_probe`` in a fresh process (the time recorded is
 whole process, start-up included; the numbers that matter are in ``extra_info``):
 ``peak_extra_bytes`` = VmHWM after the analysis − VmRSS before it, and its ratio to the
 ``(n_atoms, 3)`` float64 coordinate array (target: ≤ 10×).
+
+``tiny-frames-1e6-read``: ``gammatrace.io.read_xyz_raw`` on 10⁶ one-atom frames (12 bytes
+each); ``bytes_per_frame`` = peak extra bytes / frames (target of issue 14, part 4: ≤ 200 B).
 """
 
 from __future__ import annotations
@@ -60,4 +63,41 @@ def test_peak_memory(benchmark, tmp_path, family, k, workload):
     note(benchmark, family=family, kind=f"memory-{workload}", ratio_to_coordinates=ratio, **res)
     assert res["n_atoms"] == cluster(family, k).n_atoms
     assert res["workload"] != "ours" or res["point_group"] == family
+    assert res["peak_extra_bytes"] >= 0
+
+
+TINY_FRAME = b"1\n\nXe 0 0 0\n"  # the smallest useful frame, as in tests/reliability
+TINY_FRAMES = 1_000_000
+
+
+def _probe_tiny(tmp_path):
+    path = tmp_path / "tiny.xyz"
+    path.write_bytes(TINY_FRAME * TINY_FRAMES)
+    out = subprocess.run(
+        [sys.executable, "-m", "benches.memory_probe", str(path), "--workload", "read-raw"],
+        check=False,
+        cwd=ROOT,
+        capture_output=True,
+        text=True,
+        timeout=600,
+    )
+    path.unlink()
+    if out.returncode != 0:
+        raise RuntimeError(f"memory probe failed:\n{out.stderr}")
+    return json.loads(out.stdout.strip().splitlines()[-1])
+
+
+@pytest.mark.timeout(600)
+def test_peak_memory_tiny_frames(benchmark, tmp_path):
+    benchmark.group = "peak memory"
+    benchmark.name = "tiny-frames-1e6-read"
+    res = benchmark.pedantic(_probe_tiny, args=(tmp_path,), rounds=1, iterations=1)
+    note(
+        benchmark,
+        kind="memory-read-raw",
+        ratio_to_coordinates=res["peak_extra_bytes"] / res["coordinate_bytes"],
+        bytes_per_frame=res["peak_extra_bytes"] / res["n_frames"],
+        **res,
+    )
+    assert res["n_frames"] == TINY_FRAMES
     assert res["peak_extra_bytes"] >= 0

@@ -7,6 +7,9 @@
 - A multi-frame XYZ file of about 50 MB made of such conformers.
 - Single molecules for detection next to counting: benzene, C60, a 2057-atom Mackay
   icosahedron, and C1 conformers (the distorted half of the conformers above).
+- For the per-structure path: the three 30-atom parents in a random orientation and one C1
+  conformer; a 20,000-frame conformer ensemble file for the command line; the 1,025,235-atom
+  Mackay icosahedron as an XYZ file.
 """
 
 from __future__ import annotations
@@ -32,6 +35,8 @@ CONFORMER_ATOMS = 30
 XYZ_TARGET_BYTES = 50_000_000
 #: Mackay shells of the 2057-atom icosahedron.
 ICO_2057_SHELLS = 8
+#: Frames of the conformer ensemble given to the command line (half C1, half Td/D3h/C2v).
+ENSEMBLE_FRAMES = 20_000
 
 
 @functools.cache
@@ -150,3 +155,23 @@ def c1_conformers(n: int = 100) -> tuple:
     if len(picked) != n:
         raise RuntimeError(f"only {len(picked)} C1 conformers among {4 * n}")
     return tuple(picked)
+
+
+@functools.cache
+def molecule30(name: str) -> Structure:
+    """A 30-atom molecule: the ``"Td"``, ``"D3h"`` or ``"C2v"`` parent in a random orientation,
+    or ``"C1"``, the first of :func:`c1_conformers`."""
+    if name == "C1":
+        return c1_conformers()[0]
+    par = dict(parents())
+    if name not in par:
+        raise ValueError(f"molecule30: expected 'Td', 'D3h', 'C2v' or 'C1', got {name!r}")
+    return _rotated(par[name], SEED + 30 + len(name))
+
+
+def write_ensemble_xyz(path: os.PathLike, n: int = ENSEMBLE_FRAMES) -> np.ndarray:
+    """Write ``n`` conformers (:func:`conformers`, fixed seed) as one multi-frame XYZ file;
+    returns the expected point group of every frame."""
+    structures, expected, *_ = conformers(n, seed=SEED + 3)
+    write_xyz(structures, path)
+    return expected
