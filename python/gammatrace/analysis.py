@@ -374,9 +374,7 @@ class Analysis:
         sym = self.symmetry
         # the group-dependent keys as the many-frame path builds them (gammatrace.summary);
         # None when something does not reduce: the objects below then raise the error
-        (row,) = summary_rows(
-            sym.table, sym.unshifted_atoms[None], sym.proper[None], sym.angle[None], [sym.n_atoms]
-        )
+        (row,) = summary_rows(sym.table, sym.unshifted_atoms[None], [sym.n_atoms])
         out: dict[str, Any] = {
             "source": self.structure.source,
             "index": self.structure.index,

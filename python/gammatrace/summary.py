@@ -16,11 +16,15 @@ residuals.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+from typing import Any
+
 import numpy as np
 
 from . import _core
 from .bases.counting import json_number
 from .spectroscopy import _facts, reduce_vibrations
+from .tables._ops import describe
 
 __all__ = ["summary_rows"]
 
@@ -28,10 +32,34 @@ __all__ = ["summary_rows"]
 _CLASS_ATOL = 1e-6
 
 
-def _class_spread_ok(per_op: np.ndarray, per_class: np.ndarray, op_class: np.ndarray):
-    """Rows whose per-operation characters agree with their class's first operation."""
-    ref = per_class[:, op_class]
-    return (np.abs(per_op - ref) <= _CLASS_ATOL * np.maximum(1.0, np.abs(ref))).all(axis=1)
+@dataclass(frozen=True)
+class _Plan:
+    """What the summary reads from one table, prepared once per table."""
+
+    op_class: np.ndarray
+    first: np.ndarray
+    #: Γ_3N per unshifted atom for each canonical operation: 2cos θ ± 1 (l = 1, the core's
+    #: ``orbital_contributions``), constant over each class.
+    cartesian: np.ndarray
+    chiral: bool
+
+
+#: id(table) -> (table, plan); the table is kept so that its id is never reused.
+_PLANS: dict[int, tuple[Any, _Plan]] = {}
+
+
+def _plan(table) -> _Plan:
+    hit = _PLANS.get(id(table))
+    if hit is not None and hit[0] is table:
+        return hit[1]
+    proper, angle, _ = describe(table.operations)
+    proper = np.ascontiguousarray(proper, dtype=bool)
+    cart = _core.orbital_contributions(proper, np.ascontiguousarray(angle, dtype=np.float64), 1)
+    cart.setflags(write=False)
+    plan = _Plan(table.operation_class, table.class_representatives, cart, bool(proper.all()))
+    if len(_PLANS) < 4096:
+        _PLANS[id(table)] = (table, plan)
+    return plan
 
 
 def _json_rows(chars: np.ndarray) -> list:
@@ -50,13 +78,7 @@ def _irrep_dicts(labels: tuple, mult: np.ndarray) -> list:
     return [{lab: v for lab, v in zip(labels, row) if v} for row in mult.tolist()]
 
 
-def summary_rows(
-    table,
-    unshifted: np.ndarray,
-    proper: np.ndarray,
-    angle: np.ndarray,
-    n_atoms: np.ndarray,
-) -> list:
+def summary_rows(table, unshifted: np.ndarray, n_atoms: np.ndarray) -> list:
     """The group-dependent keys of the JSON object of k structures of one group.
 
     Parameters
@@ -65,35 +87,27 @@ def summary_rows(
         The group's table; each structure's h operations are in its canonical order.
     unshifted : array_like, shape (k, h)
         Atoms each operation leaves unshifted.
-    proper, angle : array_like, shape (k, h)
-        Each operation's kind and angle (degrees), as detection reports them.
     n_atoms : array_like, shape (k,)
 
     Returns
     -------
     list of dict or None
         Per structure ``{"classes", "representations": {"atoms", "cartesian"},
-        "vibrations", "symmetry_number", "chiral"}``, or None where the characters disagree
-        within a class or do not reduce.
+        "vibrations", "symmetry_number", "chiral"}``, or None where the counts disagree
+        within a class or the characters do not reduce.
     """
+    plan = _plan(table)
     u = np.asarray(unshifted, dtype=np.float64)
-    k, h = u.shape
-    op_class = table.operation_class
-    first = table.class_representatives
-    # Γ(atoms): the unshifted atoms; Γ_3N: times the contribution of x, y, z (l = 1) per atom
-    per_atom = _core.orbital_contributions(
-        np.ascontiguousarray(np.asarray(proper, dtype=bool).reshape(-1)),
-        np.ascontiguousarray(np.asarray(angle, dtype=np.float64).reshape(-1)),
-        1,
-    ).reshape(k, h)
-    # Γ(atoms) in rows 0 … k − 1, Γ_3N in rows k … 2k − 1: one pass for both
-    per_op = np.concatenate([u, u * per_atom])
-    chars = per_op[:, first]
-    spread_ok = _class_spread_ok(per_op, chars, op_class)
+    k = len(u)
+    # Γ(atoms): the unshifted atoms; Γ_3N: times the contribution of x, y, z per atom, which
+    # is constant over a class, so the counts alone must agree within each class
+    atoms = u[:, plan.first]
+    ok = (np.abs(u - atoms[:, plan.op_class]) <= _CLASS_ATOL).all(axis=1)
+    chars = np.concatenate([atoms, atoms * plan.cartesian[plan.first]])
     mult, reduced = table.reduce_rows(chars)
     cart = chars[k:]
     m_vib, modes, ok_vib, _ = reduce_vibrations(table, cart, n_atoms)
-    ok = spread_ok[:k] & spread_ok[k:] & reduced[:k] & reduced[k:] & ok_vib
+    ok &= reduced[:k] & reduced[k:] & ok_vib
     facts = _facts(table)
     labels = facts.labels
     as_json = _json_rows(chars)
@@ -103,7 +117,6 @@ def summary_rows(
     ir_mask, raman_mask = facts.ir_mask.tolist(), facts.raman_mask.tolist()
     a1 = facts.totally_symmetric
     sigma = int(table.symmetry_number)
-    n_proper = np.asarray(proper, dtype=bool).sum(axis=1).tolist()
     rows: list = []
     for r, (vib, n_modes) in enumerate(zip(m_vib.tolist(), modes.tolist())):
         if not ok[r]:
@@ -131,7 +144,7 @@ def summary_rows(
                     "polarised": {a1: irreps[a1]} if a1 in irreps and a1 in raman else {},
                 },
                 "symmetry_number": sigma,
-                "chiral": n_proper[r] == h,
+                "chiral": plan.chiral,
             }
         )
     return rows

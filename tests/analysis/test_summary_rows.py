@@ -44,9 +44,7 @@ def _corpus():
 def test_summary_keys_equal_the_objects(name, atoms):
     a = gt.analyze(*atoms)
     sym = a.symmetry
-    (row,) = summary_rows(
-        sym.table, sym.unshifted_atoms[None], sym.proper[None], sym.angle[None], [sym.n_atoms]
-    )
+    (row,) = summary_rows(sym.table, sym.unshifted_atoms[None], [sym.n_atoms])
     assert row is not None, name
     assert row["representations"]["atoms"] == a.representation("atoms").to_dict()
     assert row["representations"]["cartesian"] == a.representation("cartesian").to_dict()
@@ -64,14 +62,9 @@ def test_a_row_whose_characters_disagree_within_a_class_is_left_to_the_objects()
     # counts that differ between two C3 of one class cannot come from a structure: the row
     # is None, so the one-structure path raises its error naming the class
     t = gt.get_table("C3v")
-    from gammatrace.tables._ops import describe
-
-    proper, angle, _ = describe(t.operations)
     good = np.array([[4, 1, 1, 2, 2, 2]], dtype=float)
     bad = np.array([[4, 1, 2, 2, 2, 2]], dtype=float)
-    rows = summary_rows(
-        t, np.vstack([good, bad]), np.vstack([proper, proper]), np.vstack([angle, angle]), [4, 4]
-    )
+    rows = summary_rows(t, np.vstack([good, bad]), [4, 4])
     assert rows[0] is not None and rows[1] is None
     assert rows[0]["representations"]["atoms"]["irreps"] == {"A1": 2, "E": 1}
 

@@ -71,9 +71,7 @@ def _chunk_rows(data: Ragged, tol: float, ladder: np.ndarray, n_threads: int) ->
         idx = op_off[np.asarray(members)][:, None] + np.arange(h)[None, :]
         for k, row in zip(
             members,
-            summary_rows(
-                table, raw.unshifted[idx], raw.proper[idx], raw.angle[idx], n_atoms[members]
-            ),
+            summary_rows(table, raw.unshifted[idx], n_atoms[members]),
         ):
             summaries[k] = row
     env = _environment_counts(data, raw.orbit_ids, ok)
