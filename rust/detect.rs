@@ -261,10 +261,25 @@ pub fn find_point_group_with_masses(
     detect(positions, numbers, masses, opts, Search::PrunedThenPlain)
 }
 
-/// Which searches [`detect`] runs for structures that are neither atoms nor linear.
-#[derive(Clone, Copy, PartialEq)]
-#[cfg_attr(not(test), allow(dead_code))]
-enum Search {
+/// [`find_point_group_with_masses`] with a choice of search (for tests and diagnosis: the
+/// pruned search is checked against the plain one through it).
+///
+/// # Errors
+/// As [`find_point_group_with_masses`]; with [`Search::Pruned`], also `GroupClosure` where
+/// the pruned search gives up.
+pub fn find_point_group_searching(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    masses: Option<&[f64]>,
+    opts: &DetectOptions,
+    search: Search,
+) -> Result<Symmetry> {
+    detect(positions, numbers, masses, opts, search)
+}
+
+/// Which searches detection runs for structures that are neither atoms nor linear.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Search {
     /// The pruned search, then the plain one if it gives up: what [`find_point_group`] does.
     PrunedThenPlain,
     /// The plain search alone (the reference the pruned search is tested against).

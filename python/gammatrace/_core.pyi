@@ -2,6 +2,8 @@
 
 import numpy as np
 import numpy.typing as npt
+from typing import Literal
+
 from typing_extensions import TypeAlias
 
 F64: TypeAlias = npt.NDArray[np.float64]
@@ -76,10 +78,14 @@ def find_point_group(
     linear_n: int,
     verify_all_limit: int,
     masses: F64 | None = None,
+    *,
+    search: Literal["auto", "plain", "pruned"] = "auto",
 ) -> Detection:
     """Detect the point group: name, frame, canonical operations, classes, permutations.
 
-    Atoms are matched by species (element and mass); ``masses`` None = standard weights."""
+    Atoms are matched by species (element and mass); ``masses`` None = standard weights.
+    ``search`` is for tests and diagnosis: "auto" (the pruned search, the plain one where it
+    gives up), "plain" alone, or "pruned" alone (ToleranceError where it gives up)."""
 
 def canonical_group(name: str, linear_n: int) -> GroupData:
     """The canonical operations of a group (core spelling of its name) with their arithmetic."""

@@ -77,8 +77,10 @@ impl GroupData {
 
 /// Point-group detection: a `Detection` (see _core.pyi). `masses` (u, one per atom) make
 /// atoms of one element with different masses different species; None = standard weights.
+/// `search` ("auto", "plain" or "pruned") chooses the search, for tests and diagnosis.
 #[pyfunction]
-#[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit, masses=None))]
+#[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit, masses=None, *, search="auto"))]
+#[allow(clippy::too_many_arguments)]
 pub(super) fn find_point_group(
     py: Python<'_>,
     positions: PyReadonlyArray2<'_, f64>,
@@ -87,7 +89,18 @@ pub(super) fn find_point_group(
     linear_n: usize,
     verify_all_limit: usize,
     masses: Option<PyReadonlyArray1<'_, f64>>,
+    search: &str,
 ) -> PyResult<Detection> {
+    let search = match search {
+        "auto" => detect::Search::PrunedThenPlain,
+        "plain" => detect::Search::Plain,
+        "pruned" => detect::Search::Pruned,
+        other => {
+            return Err(PyValueError::new_err(format!(
+                "search must be \"auto\", \"plain\" or \"pruned\", got {other:?}"
+            )))
+        }
+    };
     let pos = coords(&positions, "positions")?;
     let num = slice1(&numbers, "numbers")?;
     let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
@@ -97,7 +110,7 @@ pub(super) fn find_point_group(
         verify_all_limit,
     };
     let sym = py
-        .detach(|| guarded(|| detect::find_point_group_with_masses(pos, num, mass, &opts)))
+        .detach(|| guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search)))
         .map_err(CoreError)?;
     let n = pos.len();
     let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
