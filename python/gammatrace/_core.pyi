@@ -1,9 +1,9 @@
 """Typed signatures of the compiled core (private; use the gammatrace package)."""
 
-import numpy as np
-import numpy.typing as npt
 from typing import Literal
 
+import numpy as np
+import numpy.typing as npt
 from typing_extensions import TypeAlias
 
 F64: TypeAlias = npt.NDArray[np.float64]
