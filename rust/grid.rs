@@ -7,6 +7,9 @@
 //! box holds few enough cells (≤ 4N + 1024), otherwise an open-addressing hash of the
 //! occupied cells, so memory stays linear in N for shells, tubes and sparse clusters alike.
 //!
+//! Cells are numbered tile by tile (blocks of 4 × 4 × 4 cells), so that neighbouring cells
+//! in every direction are close in memory.
+//!
 //! The cell edge is either fixed by the caller (the bond cutoff) or adaptive: it starts at
 //! L/∛N (L the largest extent of the bounding box) and shrinks while occupied cells hold more
 //! than 2.5 atoms on average, never below the caller's minimum. In both cases it is at least
@@ -47,6 +50,8 @@ pub struct CellGrid {
     cell: f64,
     origin: Vec3,
     dims: [i64; 3],
+    /// Tiles of `TILE`³ cells per axis (dims rounded up).
+    tiles: [i64; 3],
     cells: Cells,
     /// Positions in storage (cell) order.
     pub(crate) pos: Vec<Vec3>,
@@ -169,6 +174,7 @@ impl CellGrid {
         let origin = lo;
         let mut keys = vec![0u64; n];
         let mut dims;
+        let mut tiles;
         // Atoms per cell: a dense array when the box holds few enough cells (kept as the
         // cell table's prefix sums), otherwise the hash of the occupied cells.
         let mut counted: std::result::Result<Vec<u32>, (usize, Vec<Slot>)>;
@@ -176,13 +182,15 @@ impl CellGrid {
         loop {
             let inv = 1.0 / cell;
             dims = [0i64; 3];
+            tiles = [0i64; 3];
             for k in 0..3 {
                 dims[k] = ((hi[k] - lo[k]) * inv) as i64 + 1;
+                tiles[k] = (dims[k] + TILE - 1) / TILE;
             }
             for (key, p) in keys.iter_mut().zip(positions) {
-                *key = cell_key(p, &origin, inv, &dims);
+                *key = cell_key(p, &origin, inv, &dims, &tiles);
             }
-            let n_cells = dims.iter().map(|&d| d as f64).product::<f64>();
+            let n_cells = tiles.iter().map(|&d| d as f64).product::<f64>() * TILE3 as f64;
             let occupied;
             if n_cells <= (4 * n + 1024) as f64 {
                 let mut starts = vec![0u32; n_cells as usize + 1];
@@ -226,8 +234,8 @@ impl CellGrid {
                 Cells::Dense { starts }
             }
             Err((mask, mut slots)) => {
-                // Lay the cells out in key order (rows along x), not hash order, so that nearby
-                // cells are nearby in memory.
+                // Lay the cells out in key order (tile by tile), not hash order, so that
+                // nearby cells are nearby in memory.
                 let mut occupied: Vec<(u64, usize)> = slots
                     .iter()
                     .enumerate()
@@ -258,6 +266,7 @@ impl CellGrid {
             cell,
             origin,
             dims,
+            tiles,
             cells,
             pos,
             num,
@@ -311,7 +320,7 @@ impl CellGrid {
         for z in lo[2]..=hi[2] {
             for y in lo[1]..=hi[1] {
                 for x in lo[0]..=hi[0] {
-                    let key = (x + self.dims[0] * (y + self.dims[1] * z)) as u64;
+                    let key = tiled_key([x, y, z], &self.tiles);
                     let (start, end) = match &self.cells {
                         Cells::Dense { starts } => {
                             let k = key as usize;
@@ -352,12 +361,31 @@ impl CellGrid {
     }
 }
 
-fn cell_key(p: &Vec3, origin: &Vec3, inv: f64, dims: &[i64; 3]) -> u64 {
+fn cell_key(p: &Vec3, origin: &Vec3, inv: f64, dims: &[i64; 3], tiles: &[i64; 3]) -> u64 {
     let mut c = [0i64; 3];
     for k in 0..3 {
         c[k] = (((p[k] - origin[k]) * inv) as i64).clamp(0, dims[k] - 1);
     }
-    (c[0] + dims[0] * (c[1] + dims[1] * c[2])) as u64
+    tiled_key(c, tiles)
+}
+
+/// Cells per tile along each axis (a power of two): cells are numbered tile by tile (tiles
+/// x-major, then the cells of a tile x-major), so that the cells around a point, along any
+/// direction, lie close together in the cell table and in the atom storage. An operation
+/// that permutes the axes (C3 about (1, 1, 1)) then finds successive images in nearby
+/// memory, as one that keeps the x rows does.
+const TILE: i64 = 4;
+const TILE_BITS: u32 = 2;
+const TILE3: u64 = (TILE * TILE * TILE) as u64;
+
+/// The key of cell `c` (cell coordinates within the grid's dims) in tile order.
+#[inline]
+fn tiled_key(c: [i64; 3], tiles: &[i64; 3]) -> u64 {
+    let m = TILE - 1;
+    let tile =
+        (c[0] >> TILE_BITS) + tiles[0] * ((c[1] >> TILE_BITS) + tiles[1] * (c[2] >> TILE_BITS));
+    let within = (c[0] & m) | ((c[1] & m) << TILE_BITS) | ((c[2] & m) << (2 * TILE_BITS));
+    tile as u64 * TILE3 + within as u64
 }
 
 #[cfg(test)]
