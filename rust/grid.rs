@@ -44,6 +44,14 @@ pub enum CellEdge {
     Fixed(f64),
 }
 
+/// One stored atom: position and atomic number (or species code) side by side, so that a
+/// scan reads one cache line per atom.
+#[derive(Clone, Copy)]
+pub(crate) struct Stored {
+    pub(crate) p: Vec3,
+    pub(crate) z: i64,
+}
+
 /// A cell grid over a set of atoms (positions in Å, atomic numbers), stored in cell order.
 pub struct CellGrid {
     inv_cell: f64,
@@ -53,10 +61,8 @@ pub struct CellGrid {
     /// Tiles of `TILE`³ cells per axis (dims rounded up).
     tiles: [i64; 3],
     cells: Cells,
-    /// Positions in storage (cell) order.
-    pub(crate) pos: Vec<Vec3>,
-    /// Atomic numbers in storage order.
-    pub(crate) num: Vec<i64>,
+    /// Positions and atomic numbers in storage (cell) order.
+    pub(crate) atoms: Vec<Stored>,
     /// Input index of the atom in each storage slot.
     pub(crate) idx: Vec<u32>,
 }
@@ -211,8 +217,7 @@ impl CellGrid {
             }
             cell = (cell / load.sqrt()).max(floor);
         }
-        let mut pos = vec![[0.0; 3]; n];
-        let mut num = vec![0i64; n];
+        let mut atoms = vec![Stored { p: [0.0; 3], z: 0 }; n];
         let mut idx = vec![0u32; n];
         let cells = match counted {
             Ok(mut starts) => {
@@ -227,9 +232,11 @@ impl CellGrid {
                     fill[k as usize] += 1;
                     idx[s] = i as u32;
                 }
-                for ((p, z), &i) in pos.iter_mut().zip(num.iter_mut()).zip(&idx) {
-                    *p = positions[i as usize];
-                    *z = numbers[i as usize];
+                for (a, &i) in atoms.iter_mut().zip(&idx) {
+                    *a = Stored {
+                        p: positions[i as usize],
+                        z: numbers[i as usize],
+                    };
                 }
                 Cells::Dense { starts }
             }
@@ -253,8 +260,10 @@ impl CellGrid {
                     if let Some(h) = find_slot(&slots, mask, k) {
                         let s = fill[h] as usize;
                         fill[h] += 1;
-                        pos[s] = positions[i];
-                        num[s] = numbers[i];
+                        atoms[s] = Stored {
+                            p: positions[i],
+                            z: numbers[i],
+                        };
                         idx[s] = i as u32;
                     }
                 }
@@ -268,20 +277,19 @@ impl CellGrid {
             dims,
             tiles,
             cells,
-            pos,
-            num,
+            atoms,
             idx,
         })
     }
 
     /// Number of atoms in the grid.
     pub fn len(&self) -> usize {
-        self.pos.len()
+        self.atoms.len()
     }
 
     /// True when the grid holds no atoms.
     pub fn is_empty(&self) -> bool {
-        self.pos.is_empty()
+        self.atoms.is_empty()
     }
 
     /// Input indices of the atoms in the grid's storage (cell) order.
@@ -338,7 +346,7 @@ impl CellGrid {
                         },
                     };
                     for s in start..end {
-                        let q = &self.pos[s];
+                        let q = &self.atoms[s].p;
                         let d = [q[0] - point[0], q[1] - point[1], q[2] - point[2]];
                         visit(s, d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
                     }
@@ -351,7 +359,8 @@ impl CellGrid {
     /// infinite when the grid holds no such atom. For error messages only.
     pub fn nearest_distance(&self, point: &Vec3, element: i64) -> f64 {
         let mut best = f64::INFINITY;
-        for (q, &z) in self.pos.iter().zip(&self.num) {
+        for a in &self.atoms {
+            let (q, z) = (&a.p, a.z);
             if z == element {
                 let d = [q[0] - point[0], q[1] - point[1], q[2] - point[2]];
                 best = best.min(d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);

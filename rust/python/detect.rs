@@ -1,12 +1,12 @@
 //! Detection and group arithmetic: `find_point_group`, `canonical_group`, `identify_group`,
 //! `locate_operations`, `map_operations`, and the `Detection` / `GroupData` records.
 
-use super::arrays::{coords, index_array, index_rows, matrices, ops_array, slice1};
+use super::arrays::{coords, index_array, index_rows, matrices, ops_array, shaped, slice1};
 use super::{guarded, CoreError};
 use crate::detect;
 use crate::detect::canonical;
 use crate::detect::naming;
-use numpy::ndarray::{Array1, Array2};
+use numpy::ndarray::{Array1, Ix2};
 use numpy::{
     IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
 };
@@ -119,12 +119,12 @@ pub(super) fn find_point_group(
     let axis: Vec<[f64; 3]> = sym.ops.iter().map(|o| o.axis).collect();
     Ok(Detection {
         point_group: sym.point_group,
-        center: Array1::from(sym.center.to_vec()).into_pyarray(py).unbind(),
-        frame: Array2::from(sym.frame.to_vec()).into_pyarray(py).unbind(),
+        center: PyArray1::from_slice(py, &sym.center).unbind(),
+        frame: shaped(py, sym.frame.concat(), Ix2(3, 3))?.unbind(),
         operations: ops_array(py, &mats)?,
-        proper: Array1::from(proper).into_pyarray(py).unbind(),
-        angle: Array1::from(angle).into_pyarray(py).unbind(),
-        axis: Array2::from(axis).into_pyarray(py).unbind(),
+        proper: PyArray1::from_slice(py, &proper).unbind(),
+        angle: PyArray1::from_slice(py, &angle).unbind(),
+        axis: shaped(py, axis.concat(), Ix2(axis.len(), 3))?.unbind(),
         canonical_index: index_array(py, &sym.canonical_index),
         class_of: index_array(py, &sym.class_of),
         generators: index_array(py, &sym.generators),
