@@ -355,6 +355,42 @@ impl CellGrid {
         }
     }
 
+    /// The stored atoms (slots `range`) of the one cell that holds the whole ball of
+    /// `radius` around `point`, or `None` when the ball reaches another cell (or leaves the
+    /// grid): the common case of a lookup within a tolerance much smaller than the cell,
+    /// without the loops of [`CellGrid::scan`].
+    #[inline]
+    pub(crate) fn single_cell(&self, point: &Vec3, radius: f64) -> Option<std::ops::Range<usize>> {
+        // (with a slack for the rounding of the atoms' own cell coordinates)
+        let margin = radius * self.inv_cell + 1e-9;
+        let mut c = [0i64; 3];
+        for k in 0..3 {
+            let f = (point[k] - self.origin[k]) * self.inv_cell;
+            let i = f as i64;
+            // (f < 0 truncates towards 0: refused by the margin below; NaN fails too)
+            let frac = f - i as f64;
+            if !(frac > margin && frac < 1.0 - margin && f >= 0.0 && i < self.dims[k]) {
+                return None;
+            }
+            c[k] = i;
+        }
+        let key = tiled_key(c, &self.tiles);
+        let (start, end) = match &self.cells {
+            Cells::Dense { starts } => {
+                let k = key as usize;
+                (starts[k] as usize, starts[k + 1] as usize)
+            }
+            Cells::Hash { mask, slots } => match find_slot(slots, *mask, key) {
+                Some(h) => {
+                    let s = slots[h];
+                    (s.start as usize, (s.start + s.count) as usize)
+                }
+                None => (0, 0),
+            },
+        };
+        Some(start..end)
+    }
+
     /// Distance to the nearest atom of `element` at any distance (brute force, O(N));
     /// infinite when the grid holds no such atom. For error messages only.
     pub fn nearest_distance(&self, point: &Vec3, element: i64) -> f64 {

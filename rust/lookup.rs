@@ -89,6 +89,17 @@ impl Grid {
     pub fn query_within(&self, point: &Vec3, element: i64, radius: f64) -> Option<(usize, f64)> {
         let g = &self.cells;
         let mut best = (usize::MAX, radius * radius);
+        if let Some(range) = g.single_cell(point, radius) {
+            for s in range {
+                let a = &g.atoms[s];
+                let d = [a.p[0] - point[0], a.p[1] - point[1], a.p[2] - point[2]];
+                let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+                if a.z == element && d2 <= best.1 {
+                    best = (s, d2);
+                }
+            }
+            return (best.0 != usize::MAX).then(|| (g.idx[best.0] as usize, best.1.sqrt()));
+        }
         g.scan(point, radius, |s, d2| {
             if g.atoms[s].z == element && d2 <= best.1 {
                 best = (s, d2);
