@@ -33,7 +33,9 @@
 //!    n_atoms·order ≤ `verify_all_limit`, otherwise E and the generators), giving the
 //!    permutations and `max_deviation`: the generators by lookup, every other operation
 //!    through the permutation composed along its word in the generators, checked atom by
-//!    atom (verify.rs; the same permutations as a lookup per atom would give).
+//!    atom (verify.rs; the same permutations as a lookup per atom would give): all those
+//!    operations chunk by chunk of atoms, the chunks in parallel for large structures, and
+//!    the generators' lookups side by side.
 //! 6. If an ideal operation fails verification at some atom (a defect outside the screening
 //!    sample), steps 3–5 are repeated with that atom screened first (up to 16 such atoms).
 //!    Any other failure while screening on a sample repeats them screening on all atoms; after

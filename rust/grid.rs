@@ -19,6 +19,8 @@ use crate::error::{Error, Result};
 use crate::ops::Vec3;
 
 const EMPTY: u64 = u64::MAX;
+/// Above this many atoms the bounding box and the cell keys are computed in parallel.
+const PARALLEL_MIN: usize = 50_000;
 
 #[derive(Clone, Copy)]
 struct Slot {
@@ -137,15 +139,30 @@ impl CellGrid {
                 reason: format!("{n} atoms is more than the lookup supports (2^32 - 2)"),
             });
         }
+        // Bounding box, chunk by chunk (in parallel for large sets); the first non-finite
+        // coordinate in atom order is the error.
+        let boxes = crate::parallel::map_chunks(n, PARALLEL_MIN, |range| {
+            let mut lo = [f64::INFINITY; 3];
+            let mut hi = [f64::NEG_INFINITY; 3];
+            for atom in range {
+                let p = &positions[atom];
+                for k in 0..3 {
+                    if !p[k].is_finite() {
+                        return Err(atom);
+                    }
+                    lo[k] = lo[k].min(p[k]);
+                    hi[k] = hi[k].max(p[k]);
+                }
+            }
+            Ok((lo, hi))
+        });
         let mut lo = [f64::INFINITY; 3];
         let mut hi = [f64::NEG_INFINITY; 3];
-        for (atom, p) in positions.iter().enumerate() {
+        for b in boxes {
+            let (l, h) = b.map_err(|atom| Error::NonFiniteCoordinate { atom })?;
             for k in 0..3 {
-                if !p[k].is_finite() {
-                    return Err(Error::NonFiniteCoordinate { atom });
-                }
-                lo[k] = lo[k].min(p[k]);
-                hi[k] = hi[k].max(p[k]);
+                lo[k] = lo[k].min(l[k]);
+                hi[k] = hi[k].max(h[k]);
             }
         }
         if n == 0 {
@@ -193,9 +210,11 @@ impl CellGrid {
                 dims[k] = ((hi[k] - lo[k]) * inv) as i64 + 1;
                 tiles[k] = (dims[k] + TILE - 1) / TILE;
             }
-            for (key, p) in keys.iter_mut().zip(positions) {
-                *key = cell_key(p, &origin, inv, &dims, &tiles);
-            }
+            crate::parallel::map_chunks_mut(&mut keys, PARALLEL_MIN, |start, out| {
+                for (key, p) in out.iter_mut().zip(&positions[start..]) {
+                    *key = cell_key(p, &origin, inv, &dims, &tiles);
+                }
+            });
             let n_cells = tiles.iter().map(|&d| d as f64).product::<f64>() * TILE3 as f64;
             let occupied;
             if n_cells <= (4 * n + 1024) as f64 {
@@ -232,12 +251,14 @@ impl CellGrid {
                     fill[k as usize] += 1;
                     idx[s] = i as u32;
                 }
-                for (a, &i) in atoms.iter_mut().zip(&idx) {
-                    *a = Stored {
-                        p: positions[i as usize],
-                        z: numbers[i as usize],
-                    };
-                }
+                crate::parallel::map_chunks_mut(&mut atoms, PARALLEL_MIN, |start, out| {
+                    for (a, &i) in out.iter_mut().zip(&idx[start..]) {
+                        *a = Stored {
+                            p: positions[i as usize],
+                            z: numbers[i as usize],
+                        };
+                    }
+                });
                 Cells::Dense { starts }
             }
             Err((mask, mut slots)) => {

@@ -9,7 +9,10 @@
 //! atoms lie within tol), hence more than tol/2 from R·x_i. Any atom beyond tol/2 is looked up
 //! as the lookup would, and any failure repeats the plain verification (every operation
 //! mapped by the lookup, in index order), so the permutations, `max_deviation` and errors are
-//! those of mapping every operation by lookup, bit for bit.
+//! those of mapping every operation by lookup, bit for bit. The composed operations are
+//! checked all together, chunk by chunk of atoms (a chunk's atoms stay in cache across the
+//! operations; chunks run in parallel above `PARALLEL_WORK` checks); the generators are
+//! mapped side by side for large structures. Neither changes any result.
 
 use super::canonical::GroupData;
 use super::Ctx;

@@ -75,6 +75,9 @@ impl GroupData {
     }
 }
 
+/// Up to this many atoms detection runs without releasing the GIL.
+const KEEP_GIL_MAX_ATOMS: usize = 64;
+
 /// Point-group detection: a `Detection` (see _core.pyi). `masses` (u, one per atom) make
 /// atoms of one element with different masses different species; None = standard weights.
 /// `search` ("auto", "plain" or "pruned") chooses the search, for tests and diagnosis.
@@ -109,9 +112,14 @@ pub(super) fn find_point_group(
         linear_n,
         verify_all_limit,
     };
-    let sym = py
-        .detach(|| guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search)))
-        .map_err(CoreError)?;
+    let run = || guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search));
+    // Small structures take a few µs: releasing the GIL would cost a good part of that.
+    let sym = if pos.len() <= KEEP_GIL_MAX_ATOMS {
+        run()
+    } else {
+        py.detach(run)
+    }
+    .map_err(CoreError)?;
     let n = pos.len();
     let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
     let proper: Vec<bool> = sym.ops.iter().map(|o| o.proper).collect();
