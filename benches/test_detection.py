@@ -98,7 +98,7 @@ def test_c1_detection_batch(benchmark):
     out = benchmark(_core.find_point_groups_batch, pos, num, off, TOL, LINEAR_N, 1)
     note(benchmark, kind="ours-detection", n_structures=len(structures), threads=1)
     benchmark.extra_info["us_per_structure"] = _per_structure(benchmark, len(structures))
-    assert set(out["point_group"]) == {"C1"}
+    assert set(out.point_group) == {"C1"}
 
 
 def test_c1_counting(benchmark):

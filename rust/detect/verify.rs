@@ -22,7 +22,7 @@ use crate::ops::{mat_vec, Mat3, PointOp, Vec3};
 use crate::parallel;
 
 /// Atom × operation checks above which verification spreads over the pool's threads.
-const PARALLEL_WORK: usize = 1 << 17;
+const PARALLEL_WORK: usize = 1 << 15;
 
 /// Operations checked against all atoms, their permutations and the largest image distance.
 pub(super) struct Verified {
@@ -101,7 +101,7 @@ fn composed(
     gens.sort_unstable();
     gens.dedup();
     gens.retain(|&g| g != 0);
-    let threshold = if n >= PARALLEL_WORK / 64 {
+    let threshold = if n >= PARALLEL_WORK / 64 && gens.len() > 1 {
         1
     } else {
         usize::MAX
@@ -165,24 +165,28 @@ fn compose_all(
     }
     let mut out: Vec<Vec<u32>> = todo.iter().map(|_| vec![0u32; n]).collect();
     // Per chunk of atoms, the chunk of every output permutation.
-    let n_chunks = n.div_ceil(parallel::CHUNK);
+    // Chunks of at most `parallel::CHUNK` atoms, at least 8 of them (of ≥ 256 atoms) once
+    // the work is worth spreading (no result depends on the chunks).
+    let wide = n * todo.len() >= PARALLEL_WORK;
+    let chunk = if wide {
+        n.div_ceil(8).clamp(256, parallel::CHUNK)
+    } else {
+        parallel::CHUNK
+    };
+    let n_chunks = n.div_ceil(chunk);
     let mut parts: Vec<Vec<&mut [u32]>> = (0..n_chunks).map(|_| Vec::new()).collect();
     for perm in out.iter_mut() {
-        for (c, piece) in perm.chunks_mut(parallel::CHUNK).enumerate() {
+        for (c, piece) in perm.chunks_mut(chunk).enumerate() {
             parts[c].push(piece);
         }
     }
     let done: &[Vec<u32>] = perms;
     // Chunks side by side once the work is worth a thread (results do not depend on it).
-    let threshold = if n * todo.len() >= PARALLEL_WORK {
-        1
-    } else {
-        usize::MAX
-    };
+    let threshold = if wide { 1 } else { usize::MAX };
     let slot = &slot;
     let todo = &todo;
     let results = parallel::map_items_mut(&mut parts, threshold, |c, mine| {
-        let start = c * parallel::CHUNK;
+        let start = c * chunk;
         let mut worst = 0.0_f64;
         let mut far = false;
         for (t, &k) in todo.iter().enumerate() {
