@@ -11,7 +11,7 @@
 //! mapped by the lookup, in index order), so the permutations, `max_deviation` and errors are
 //! those of mapping every operation by lookup, bit for bit. The composed operations are
 //! checked all together, chunk by chunk of atoms (a chunk's atoms stay in cache across the
-//! operations; chunks run in parallel above `PARALLEL_WORK` checks); the generators are
+//! operations; chunks run in parallel from `PARALLEL_WORK` checks); the generators are
 //! mapped side by side for large structures. Neither changes any result.
 
 use super::canonical::GroupData;
@@ -22,7 +22,7 @@ use crate::ops::{mat_vec, Mat3, PointOp, Vec3};
 use crate::parallel;
 
 /// Atom × operation checks above which verification spreads over the pool's threads.
-const PARALLEL_WORK: usize = 1 << 15;
+const PARALLEL_WORK: usize = 1 << 16;
 
 /// Operations checked against all atoms, their permutations and the largest image distance.
 pub(super) struct Verified {
@@ -101,7 +101,7 @@ fn composed(
     gens.sort_unstable();
     gens.dedup();
     gens.retain(|&g| g != 0);
-    let threshold = if n >= PARALLEL_WORK / 64 && gens.len() > 1 {
+    let threshold = if n >= PARALLEL_WORK / 16 && gens.len() > 1 {
         1
     } else {
         usize::MAX
