@@ -204,8 +204,7 @@ fn compose_all(
                 let img = pg[via as usize];
                 *out = img;
                 let d2 = dist2(m, p, &x[img as usize]);
-                // (NaN fails too)
-                far |= !(d2 <= half2);
+                far |= d2.is_nan() || d2 > half2;
                 worst = worst.max(d2);
             }
             mine[t] = dst;
