@@ -33,7 +33,9 @@
 //!    n_atoms·order ≤ `verify_all_limit`, otherwise E and the generators), giving the
 //!    permutations and `max_deviation`: the generators by lookup, every other operation
 //!    through the permutation composed along its word in the generators, checked atom by
-//!    atom (verify.rs; the same permutations as a lookup per atom would give).
+//!    atom (verify.rs; the same permutations as a lookup per atom would give): all those
+//!    operations chunk by chunk of atoms, the chunks in parallel for large structures, and
+//!    the generators' lookups side by side.
 //! 6. If an ideal operation fails verification at some atom (a defect outside the screening
 //!    sample), steps 3–5 are repeated with that atom screened first (up to 16 such atoms).
 //!    Any other failure while screening on a sample repeats them screening on all atoms; after
@@ -263,10 +265,25 @@ pub fn find_point_group_with_masses(
     detect(positions, numbers, masses, opts, Search::PrunedThenPlain)
 }
 
-/// Which searches [`detect`] runs for structures that are neither atoms nor linear.
-#[derive(Clone, Copy, PartialEq)]
-#[cfg_attr(not(test), allow(dead_code))]
-enum Search {
+/// [`find_point_group_with_masses`] with a choice of search (for tests and diagnosis: the
+/// pruned search is checked against the plain one through it).
+///
+/// # Errors
+/// As [`find_point_group_with_masses`]; with [`Search::Pruned`], also `GroupClosure` where
+/// the pruned search gives up.
+pub fn find_point_group_searching(
+    positions: &[[f64; 3]],
+    numbers: &[i64],
+    masses: Option<&[f64]>,
+    opts: &DetectOptions,
+    search: Search,
+) -> Result<Symmetry> {
+    detect(positions, numbers, masses, opts, search)
+}
+
+/// Which searches detection runs for structures that are neither atoms nor linear.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Search {
     /// The pruned search, then the plain one if it gives up: what [`find_point_group`] does.
     PrunedThenPlain,
     /// The plain search alone (the reference the pruned search is tested against).
@@ -294,11 +311,12 @@ fn detect(
         });
     }
     let species = structure::Species::new(numbers, masses)?;
-    let center = structure::weighted_center(positions, &species.masses);
-    let x: Vec<Vec3> = positions
-        .iter()
-        .map(|p| [p[0] - center[0], p[1] - center[1], p[2] - center[2]])
-        .collect();
+    let Centred {
+        center,
+        x,
+        inertia,
+        far,
+    } = centred(positions, &species.masses);
     let (grid, overlap) = if x.len() <= BRUTE_FORCE_MAX {
         (OnceLock::new(), brute_overlap(&x, tol))
     } else {
@@ -314,7 +332,6 @@ fn detect(
             tolerance: tol,
         });
     }
-    let inertia = structure::weighted_inertia(positions, &species.masses);
     if positions.len() == 1 {
         return single_atom(center, opts);
     }
@@ -333,12 +350,7 @@ fn detect(
     // Atoms within tol/2 of the axis of least inertia are within tol of the line through
     // the farthest atom (which is within tol/2 of that axis): when some atom is not, the
     // structure is not linear and the axes are not needed yet.
-    let far = ctx
-        .x
-        .iter()
-        .copied()
-        .max_by(|p, q| dot(p, p).total_cmp(&dot(q, q)));
-    let maybe_linear = far
+    let maybe_linear = Some(ctx.x[far])
         .and_then(|p| crate::ops::normalize(&p))
         .is_none_or(|u| ctx.x.iter().all(|p| off_line(&u, p) <= tol * (1.0 + 1e-9)));
     if maybe_linear
@@ -368,6 +380,84 @@ fn detect(
         });
     }
     plain_search(&ctx, center, opts)
+}
+
+/// The structure centred on its centre of mass, with what the first stages need of it.
+struct Centred {
+    center: Vec3,
+    /// positions − center.
+    x: Vec<Vec3>,
+    /// Inertia tensor about the centre (as `structure::weighted_inertia`).
+    inertia: Mat3,
+    /// The atom farthest from the centre (the last of equals).
+    far: usize,
+}
+
+/// Centre of mass, centred positions, inertia tensor and farthest atom in two passes over
+/// the atoms, chunk by chunk (in parallel for large structures; the sums are taken per
+/// fixed chunk and added in chunk order, so the result does not depend on the threads).
+fn centred(positions: &[[f64; 3]], masses: &[f64]) -> Centred {
+    let n = positions.len();
+    let sums = crate::parallel::map_chunks(n, crate::lookup::PARALLEL_MIN_ATOMS, |range| {
+        let mut total = 0.0;
+        let mut c = [0.0; 3];
+        for (p, &w) in positions[range.clone()].iter().zip(&masses[range]) {
+            total += w;
+            for k in 0..3 {
+                c[k] += w * p[k];
+            }
+        }
+        (total, c)
+    });
+    let (mut total, mut c) = (0.0, [0.0; 3]);
+    for (t, s) in sums {
+        total += t;
+        for k in 0..3 {
+            c[k] += s[k];
+        }
+    }
+    let center = [c[0] / total, c[1] / total, c[2] / total];
+    let mut x = vec![[0.0; 3]; n];
+    let parts =
+        crate::parallel::map_chunks_mut(&mut x, crate::lookup::PARALLEL_MIN_ATOMS, |start, out| {
+            let mut t = [[0.0; 3]; 3];
+            let mut far = (0usize, f64::NEG_INFINITY);
+            for (k, r) in out.iter_mut().enumerate() {
+                let i = start + k;
+                let p = &positions[i];
+                let w = masses[i];
+                *r = [p[0] - center[0], p[1] - center[1], p[2] - center[2]];
+                let r2 = r[0] * r[0] + r[1] * r[1] + r[2] * r[2];
+                for a in 0..3 {
+                    for b in 0..3 {
+                        let d = if a == b { r2 } else { 0.0 };
+                        t[a][b] += w * (d - r[a] * r[b]);
+                    }
+                }
+                if r2 >= far.1 {
+                    far = (i, r2);
+                }
+            }
+            (t, far)
+        });
+    let mut inertia = [[0.0; 3]; 3];
+    let mut far = (0usize, f64::NEG_INFINITY);
+    for (t, f) in parts {
+        for a in 0..3 {
+            for b in 0..3 {
+                inertia[a][b] += t[a][b];
+            }
+        }
+        if f.1 >= far.1 {
+            far = f;
+        }
+    }
+    Centred {
+        center,
+        x,
+        inertia,
+        far: far.0,
+    }
 }
 
 /// The plain search with its retries (module doc, steps 3–6).

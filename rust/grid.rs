@@ -7,6 +7,9 @@
 //! box holds few enough cells (≤ 4N + 1024), otherwise an open-addressing hash of the
 //! occupied cells, so memory stays linear in N for shells, tubes and sparse clusters alike.
 //!
+//! Cells are numbered tile by tile (blocks of 4 × 4 × 4 cells), so that neighbouring cells
+//! in every direction are close in memory.
+//!
 //! The cell edge is either fixed by the caller (the bond cutoff) or adaptive: it starts at
 //! L/∛N (L the largest extent of the bounding box) and shrinks while occupied cells hold more
 //! than 2.5 atoms on average, never below the caller's minimum. In both cases it is at least
@@ -16,6 +19,8 @@ use crate::error::{Error, Result};
 use crate::ops::Vec3;
 
 const EMPTY: u64 = u64::MAX;
+/// Above this many atoms the bounding box and the cell keys are computed in parallel.
+const PARALLEL_MIN: usize = 50_000;
 
 #[derive(Clone, Copy)]
 struct Slot {
@@ -41,17 +46,25 @@ pub enum CellEdge {
     Fixed(f64),
 }
 
+/// One stored atom: position and atomic number (or species code) side by side, so that a
+/// scan reads one cache line per atom.
+#[derive(Clone, Copy)]
+pub(crate) struct Stored {
+    pub(crate) p: Vec3,
+    pub(crate) z: i64,
+}
+
 /// A cell grid over a set of atoms (positions in Å, atomic numbers), stored in cell order.
 pub struct CellGrid {
     inv_cell: f64,
     cell: f64,
     origin: Vec3,
     dims: [i64; 3],
+    /// Tiles of `TILE`³ cells per axis (dims rounded up).
+    tiles: [i64; 3],
     cells: Cells,
-    /// Positions in storage (cell) order.
-    pub(crate) pos: Vec<Vec3>,
-    /// Atomic numbers in storage order.
-    pub(crate) num: Vec<i64>,
+    /// Positions and atomic numbers in storage (cell) order.
+    pub(crate) atoms: Vec<Stored>,
     /// Input index of the atom in each storage slot.
     pub(crate) idx: Vec<u32>,
 }
@@ -126,15 +139,30 @@ impl CellGrid {
                 reason: format!("{n} atoms is more than the lookup supports (2^32 - 2)"),
             });
         }
+        // Bounding box, chunk by chunk (in parallel for large sets); the first non-finite
+        // coordinate in atom order is the error.
+        let boxes = crate::parallel::map_chunks(n, PARALLEL_MIN, |range| {
+            let mut lo = [f64::INFINITY; 3];
+            let mut hi = [f64::NEG_INFINITY; 3];
+            for atom in range {
+                let p = &positions[atom];
+                for k in 0..3 {
+                    if !p[k].is_finite() {
+                        return Err(atom);
+                    }
+                    lo[k] = lo[k].min(p[k]);
+                    hi[k] = hi[k].max(p[k]);
+                }
+            }
+            Ok((lo, hi))
+        });
         let mut lo = [f64::INFINITY; 3];
         let mut hi = [f64::NEG_INFINITY; 3];
-        for (atom, p) in positions.iter().enumerate() {
+        for b in boxes {
+            let (l, h) = b.map_err(|atom| Error::NonFiniteCoordinate { atom })?;
             for k in 0..3 {
-                if !p[k].is_finite() {
-                    return Err(Error::NonFiniteCoordinate { atom });
-                }
-                lo[k] = lo[k].min(p[k]);
-                hi[k] = hi[k].max(p[k]);
+                lo[k] = lo[k].min(l[k]);
+                hi[k] = hi[k].max(h[k]);
             }
         }
         if n == 0 {
@@ -169,6 +197,7 @@ impl CellGrid {
         let origin = lo;
         let mut keys = vec![0u64; n];
         let mut dims;
+        let mut tiles;
         // Atoms per cell: a dense array when the box holds few enough cells (kept as the
         // cell table's prefix sums), otherwise the hash of the occupied cells.
         let mut counted: std::result::Result<Vec<u32>, (usize, Vec<Slot>)>;
@@ -176,13 +205,17 @@ impl CellGrid {
         loop {
             let inv = 1.0 / cell;
             dims = [0i64; 3];
+            tiles = [0i64; 3];
             for k in 0..3 {
                 dims[k] = ((hi[k] - lo[k]) * inv) as i64 + 1;
+                tiles[k] = (dims[k] + TILE - 1) / TILE;
             }
-            for (key, p) in keys.iter_mut().zip(positions) {
-                *key = cell_key(p, &origin, inv, &dims);
-            }
-            let n_cells = dims.iter().map(|&d| d as f64).product::<f64>();
+            crate::parallel::map_chunks_mut(&mut keys, PARALLEL_MIN, |start, out| {
+                for (key, p) in out.iter_mut().zip(&positions[start..]) {
+                    *key = cell_key(p, &origin, inv, &dims, &tiles);
+                }
+            });
+            let n_cells = tiles.iter().map(|&d| d as f64).product::<f64>() * TILE3 as f64;
             let occupied;
             if n_cells <= (4 * n + 1024) as f64 {
                 let mut starts = vec![0u32; n_cells as usize + 1];
@@ -203,8 +236,7 @@ impl CellGrid {
             }
             cell = (cell / load.sqrt()).max(floor);
         }
-        let mut pos = vec![[0.0; 3]; n];
-        let mut num = vec![0i64; n];
+        let mut atoms = vec![Stored { p: [0.0; 3], z: 0 }; n];
         let mut idx = vec![0u32; n];
         let cells = match counted {
             Ok(mut starts) => {
@@ -219,15 +251,19 @@ impl CellGrid {
                     fill[k as usize] += 1;
                     idx[s] = i as u32;
                 }
-                for ((p, z), &i) in pos.iter_mut().zip(num.iter_mut()).zip(&idx) {
-                    *p = positions[i as usize];
-                    *z = numbers[i as usize];
-                }
+                crate::parallel::map_chunks_mut(&mut atoms, PARALLEL_MIN, |start, out| {
+                    for (a, &i) in out.iter_mut().zip(&idx[start..]) {
+                        *a = Stored {
+                            p: positions[i as usize],
+                            z: numbers[i as usize],
+                        };
+                    }
+                });
                 Cells::Dense { starts }
             }
             Err((mask, mut slots)) => {
-                // Lay the cells out in key order (rows along x), not hash order, so that nearby
-                // cells are nearby in memory.
+                // Lay the cells out in key order (tile by tile), not hash order, so that
+                // nearby cells are nearby in memory.
                 let mut occupied: Vec<(u64, usize)> = slots
                     .iter()
                     .enumerate()
@@ -245,8 +281,10 @@ impl CellGrid {
                     if let Some(h) = find_slot(&slots, mask, k) {
                         let s = fill[h] as usize;
                         fill[h] += 1;
-                        pos[s] = positions[i];
-                        num[s] = numbers[i];
+                        atoms[s] = Stored {
+                            p: positions[i],
+                            z: numbers[i],
+                        };
                         idx[s] = i as u32;
                     }
                 }
@@ -258,21 +296,21 @@ impl CellGrid {
             cell,
             origin,
             dims,
+            tiles,
             cells,
-            pos,
-            num,
+            atoms,
             idx,
         })
     }
 
     /// Number of atoms in the grid.
     pub fn len(&self) -> usize {
-        self.pos.len()
+        self.atoms.len()
     }
 
     /// True when the grid holds no atoms.
     pub fn is_empty(&self) -> bool {
-        self.pos.is_empty()
+        self.atoms.is_empty()
     }
 
     /// Input indices of the atoms in the grid's storage (cell) order.
@@ -311,7 +349,7 @@ impl CellGrid {
         for z in lo[2]..=hi[2] {
             for y in lo[1]..=hi[1] {
                 for x in lo[0]..=hi[0] {
-                    let key = (x + self.dims[0] * (y + self.dims[1] * z)) as u64;
+                    let key = tiled_key([x, y, z], &self.tiles);
                     let (start, end) = match &self.cells {
                         Cells::Dense { starts } => {
                             let k = key as usize;
@@ -329,7 +367,7 @@ impl CellGrid {
                         },
                     };
                     for s in start..end {
-                        let q = &self.pos[s];
+                        let q = &self.atoms[s].p;
                         let d = [q[0] - point[0], q[1] - point[1], q[2] - point[2]];
                         visit(s, d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
                     }
@@ -338,11 +376,48 @@ impl CellGrid {
         }
     }
 
+    /// The stored atoms (slots `range`) of the one cell that holds the whole ball of
+    /// `radius` around `point`, or `None` when the ball reaches another cell (or leaves the
+    /// grid): the common case of a lookup within a tolerance much smaller than the cell,
+    /// without the loops of [`CellGrid::scan`].
+    #[inline]
+    pub(crate) fn single_cell(&self, point: &Vec3, radius: f64) -> Option<std::ops::Range<usize>> {
+        // (with a slack for the rounding of the atoms' own cell coordinates)
+        let margin = radius * self.inv_cell + 1e-9;
+        let mut c = [0i64; 3];
+        for k in 0..3 {
+            let f = (point[k] - self.origin[k]) * self.inv_cell;
+            let i = f as i64;
+            // (f < 0 truncates towards 0: refused by the margin below; NaN fails too)
+            let frac = f - i as f64;
+            if !(frac > margin && frac < 1.0 - margin && f >= 0.0 && i < self.dims[k]) {
+                return None;
+            }
+            c[k] = i;
+        }
+        let key = tiled_key(c, &self.tiles);
+        let (start, end) = match &self.cells {
+            Cells::Dense { starts } => {
+                let k = key as usize;
+                (starts[k] as usize, starts[k + 1] as usize)
+            }
+            Cells::Hash { mask, slots } => match find_slot(slots, *mask, key) {
+                Some(h) => {
+                    let s = slots[h];
+                    (s.start as usize, (s.start + s.count) as usize)
+                }
+                None => (0, 0),
+            },
+        };
+        Some(start..end)
+    }
+
     /// Distance to the nearest atom of `element` at any distance (brute force, O(N));
     /// infinite when the grid holds no such atom. For error messages only.
     pub fn nearest_distance(&self, point: &Vec3, element: i64) -> f64 {
         let mut best = f64::INFINITY;
-        for (q, &z) in self.pos.iter().zip(&self.num) {
+        for a in &self.atoms {
+            let (q, z) = (&a.p, a.z);
             if z == element {
                 let d = [q[0] - point[0], q[1] - point[1], q[2] - point[2]];
                 best = best.min(d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
@@ -352,12 +427,31 @@ impl CellGrid {
     }
 }
 
-fn cell_key(p: &Vec3, origin: &Vec3, inv: f64, dims: &[i64; 3]) -> u64 {
+fn cell_key(p: &Vec3, origin: &Vec3, inv: f64, dims: &[i64; 3], tiles: &[i64; 3]) -> u64 {
     let mut c = [0i64; 3];
     for k in 0..3 {
         c[k] = (((p[k] - origin[k]) * inv) as i64).clamp(0, dims[k] - 1);
     }
-    (c[0] + dims[0] * (c[1] + dims[1] * c[2])) as u64
+    tiled_key(c, tiles)
+}
+
+/// Cells per tile along each axis (a power of two): cells are numbered tile by tile (tiles
+/// x-major, then the cells of a tile x-major), so that the cells around a point, along any
+/// direction, lie close together in the cell table and in the atom storage. An operation
+/// that permutes the axes (C3 about (1, 1, 1)) then finds successive images in nearby
+/// memory, as one that keeps the x rows does.
+const TILE: i64 = 4;
+const TILE_BITS: u32 = 2;
+const TILE3: u64 = (TILE * TILE * TILE) as u64;
+
+/// The key of cell `c` (cell coordinates within the grid's dims) in tile order.
+#[inline]
+fn tiled_key(c: [i64; 3], tiles: &[i64; 3]) -> u64 {
+    let m = TILE - 1;
+    let tile =
+        (c[0] >> TILE_BITS) + tiles[0] * ((c[1] >> TILE_BITS) + tiles[1] * (c[2] >> TILE_BITS));
+    let within = (c[0] & m) | ((c[1] & m) << TILE_BITS) | ((c[2] & m) << (2 * TILE_BITS));
+    tile as u64 * TILE3 + within as u64
 }
 
 #[cfg(test)]

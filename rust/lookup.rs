@@ -89,8 +89,19 @@ impl Grid {
     pub fn query_within(&self, point: &Vec3, element: i64, radius: f64) -> Option<(usize, f64)> {
         let g = &self.cells;
         let mut best = (usize::MAX, radius * radius);
+        if let Some(range) = g.single_cell(point, radius) {
+            for s in range {
+                let a = &g.atoms[s];
+                let d = [a.p[0] - point[0], a.p[1] - point[1], a.p[2] - point[2]];
+                let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+                if a.z == element && d2 <= best.1 {
+                    best = (s, d2);
+                }
+            }
+            return (best.0 != usize::MAX).then(|| (g.idx[best.0] as usize, best.1.sqrt()));
+        }
         g.scan(point, radius, |s, d2| {
-            if g.num[s] == element && d2 <= best.1 {
+            if g.atoms[s].z == element && d2 <= best.1 {
                 best = (s, d2);
             }
         });
@@ -115,7 +126,7 @@ pub fn find_overlap(grid: &Grid) -> Option<(usize, usize, f64)> {
     let probe = |range: std::ops::Range<usize>| -> Option<(usize, usize, f64)> {
         let mut best: Option<(usize, usize, f64)> = None;
         for s in range {
-            grid.cells.scan(&grid.cells.pos[s], tol, |t, d2| {
+            grid.cells.scan(&grid.cells.atoms[s].p, tol, |t, d2| {
                 if t != s && d2 <= tol * tol {
                     let (a, b) = (grid.cells.idx[s] as usize, grid.cells.idx[t] as usize);
                     let pair = (a.min(b), a.max(b), d2.sqrt());
@@ -178,9 +189,9 @@ pub fn map_atoms(
         .cells
         .idx
         .iter()
-        .zip(&grid.cells.pos)
+        .zip(&grid.cells.atoms)
         .take(64)
-        .all(|(&i, p)| positions[i as usize] == *p));
+        .all(|(&i, a)| positions[i as usize] == a.p));
     // image[s]: the image of the atom stored in grid slot s.
     let mut image = vec![0u32; n];
     let first_fail = AtomicUsize::new(usize::MAX);
@@ -191,8 +202,9 @@ pub fn map_atoms(
             if s > first_fail.load(Ordering::Relaxed) {
                 return dev;
             }
-            let q = mat_vec(op_matrix, &grid.cells.pos[s]);
-            match grid.query_within(&q, grid.cells.num[s], tol) {
+            let a = &grid.cells.atoms[s];
+            let q = mat_vec(op_matrix, &a.p);
+            match grid.query_within(&q, a.z, tol) {
                 Some((j, d)) => {
                     *slot = j as u32;
                     dev = dev.max(d);

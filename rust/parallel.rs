@@ -114,6 +114,25 @@ where
     }
 }
 
+/// `f(k, &mut items[k])` for every item, in parallel when there are more than `threshold`
+/// items; results in item order.
+pub fn map_items_mut<U, T, F>(items: &mut [U], threshold: usize, f: F) -> Vec<T>
+where
+    U: Send,
+    T: Send,
+    F: Fn(usize, &mut U) -> T + Sync + Send,
+{
+    if items.len() > threshold {
+        items
+            .par_iter_mut()
+            .enumerate()
+            .map(|(k, u)| f(k, u))
+            .collect()
+    } else {
+        items.iter_mut().enumerate().map(|(k, u)| f(k, u)).collect()
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -1,7 +1,7 @@
 """Typed signatures of the compiled core (private; use the gammatrace package)."""
 
 from collections.abc import Iterator
-from typing import ClassVar, Generic, TypeVar, overload
+from typing import ClassVar, Generic, Literal, TypeVar, overload
 
 import numpy as np
 import numpy.typing as npt
@@ -105,10 +105,14 @@ def find_point_group(
     linear_n: int,
     verify_all_limit: int,
     masses: F64 | None = None,
+    *,
+    search: Literal["auto", "plain", "pruned"] = "auto",
 ) -> Detection:
     """Detect the point group: name, frame, canonical operations, classes, permutations.
 
-    Atoms are matched by species (element and mass); ``masses`` None = standard weights."""
+    Atoms are matched by species (element and mass); ``masses`` None = standard weights.
+    ``search`` is for tests and diagnosis: "auto" (the pruned search, the plain one where it
+    gives up), "plain" alone, or "pruned" alone (ToleranceError where it gives up)."""
 
 def canonical_group(name: str, linear_n: int) -> GroupData:
     """The canonical operations of a group (core spelling of its name) with their arithmetic."""

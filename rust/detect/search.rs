@@ -43,9 +43,12 @@ const B_CHOICES: usize = 64;
 /// The structure's group by the pruned search, or `None` to leave it to the plain search.
 pub(super) fn pruned(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Option<Symmetry> {
     let r: Vec<f64> = ctx.x.iter().map(norm).collect();
-    let c1 = match lone_pair_without_mirror(ctx, &r) {
-        Some(c1) => c1,
-        None => without_symmetry(ctx, &r),
+    let c1 = r.len() <= 32 && {
+        let order = species_radius_order(ctx, &r);
+        match lone_pair_without_mirror(ctx, &r, &order) {
+            Some(c1) => c1,
+            None => without_symmetry(ctx, &r, &order),
+        }
     };
     if c1 {
         let fr = frame::standard_frame(ctx, Family::C1, &[]).ok()?;
@@ -188,24 +191,16 @@ impl<'a> Shells<'a> {
 /// alone in its window, so that every operation fixes both and can only be E or the mirror
 /// through the centre, a and b. `Some(true)` when that mirror fails the screen at some
 /// atom (C1), `Some(false)` when it passes, `None` when there are no such a and b.
-fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64]) -> Option<bool> {
+fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64], order: &[usize]) -> Option<bool> {
     let (x, n, w) = (&ctx.x, r.len(), 2.0 * ctx.tol);
     if n > 32 {
         return None;
     }
     // Alone: no other atom of its element within w of its radius (neighbours in the order
-    // of species and radius; radii are ≥ 0, so their bits sort as the numbers do).
-    let mut keys: Vec<u128> = (0..n)
-        .map(|i| {
-            (u128::from(ctx.species[i] as u32) << 96)
-                | (u128::from(r[i].to_bits()) << 32)
-                | i as u128
-        })
-        .collect();
-    keys.sort_unstable();
+    // of species and radius).
     let mut alone = vec![true; n];
-    for pair in keys.windows(2) {
-        let (i, j) = (pair[0] as u32 as usize, pair[1] as u32 as usize);
+    for pair in order.windows(2) {
+        let (i, j) = (pair[0], pair[1]);
         if ctx.species[i] == ctx.species[j] && r[j] - r[i] <= w {
             alone[i] = false;
             alone[j] = false;
@@ -244,18 +239,10 @@ fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64]) -> Option<bool> {
     }))
 }
 
-/// The second early exit for small structures without symmetry (up to 32 atoms):
-/// reference atoms a and b chosen as below (smallest windows), and every candidate pair of
-/// images of them, each screened on all atoms; when no candidate but E passes, the group
-/// is C1.
-fn without_symmetry(ctx: &Ctx, r: &[f64]) -> bool {
-    let (x, n, w, tol) = (&ctx.x, r.len(), 2.0 * ctx.tol, ctx.tol);
-    if n > 32 {
-        return false;
-    }
-    // Atoms in the order of species and radius (radii are ≥ 0: their bits sort as the
-    // numbers do); each window is a run of that order.
-    let mut keys: Vec<u128> = (0..n)
+/// Atom indices in the order of (species, radius, index) (radii are ≥ 0, so their bits
+/// sort as the numbers do; species codes are below 2^32): the order both early exits walk.
+fn species_radius_order(ctx: &Ctx, r: &[f64]) -> Vec<usize> {
+    let mut keys: Vec<u128> = (0..r.len())
         .map(|i| {
             (u128::from(ctx.species[i] as u32) << 96)
                 | (u128::from(r[i].to_bits()) << 32)
@@ -263,7 +250,19 @@ fn without_symmetry(ctx: &Ctx, r: &[f64]) -> bool {
         })
         .collect();
     keys.sort_unstable();
-    let order: Vec<usize> = keys.iter().map(|&k| k as u32 as usize).collect();
+    keys.iter().map(|&k| k as u32 as usize).collect()
+}
+
+/// The second early exit for small structures without symmetry (up to 32 atoms):
+/// reference atoms a and b chosen as below (smallest windows), and every candidate pair of
+/// images of them, each screened on all atoms; when no candidate but E passes, the group
+/// is C1.
+fn without_symmetry(ctx: &Ctx, r: &[f64], order: &[usize]) -> bool {
+    let (x, n, w, tol) = (&ctx.x, r.len(), 2.0 * ctx.tol, ctx.tol);
+    if n > 32 {
+        return false;
+    }
+    // Atoms in the order of species and radius; each window is a run of that order.
     let mut at = vec![0usize; n];
     for (s, &i) in order.iter().enumerate() {
         at[i] = s;

@@ -9,7 +9,10 @@
 //! atoms lie within tol), hence more than tol/2 from R·x_i. Any atom beyond tol/2 is looked up
 //! as the lookup would, and any failure repeats the plain verification (every operation
 //! mapped by the lookup, in index order), so the permutations, `max_deviation` and errors are
-//! those of mapping every operation by lookup, bit for bit.
+//! those of mapping every operation by lookup, bit for bit. The composed operations are
+//! checked all together, chunk by chunk of atoms (a chunk's atoms stay in cache across the
+//! operations; chunks run in parallel from `PARALLEL_WORK` checks); the generators are
+//! mapped side by side for large structures. Neither changes any result.
 
 use super::canonical::GroupData;
 use super::Ctx;
@@ -17,6 +20,9 @@ use crate::error::Result;
 use crate::lookup::{map_atoms, PARALLEL_MIN_ATOMS};
 use crate::ops::{mat_vec, Mat3, PointOp, Vec3};
 use crate::parallel;
+
+/// Atom × operation checks above which verification spreads over the pool's threads.
+const PARALLEL_WORK: usize = 1 << 16;
 
 /// Operations checked against all atoms, their permutations and the largest image distance.
 pub(super) struct Verified {
@@ -100,14 +106,36 @@ fn composed(
     let mut perms: Vec<Vec<u32>> = vec![Vec::new(); h];
     perms[0] = (0..n as u32).collect();
     let mut dev = vec![0.0_f64; h];
-    for &g in &data.generators {
-        if perms[g].is_empty() {
-            let (perm, d) = map_nearest(ctx, &ops[g].matrix)?;
-            perms[g] = perm;
-            dev[g] = d;
-        }
+    // The generators by lookup, side by side for large structures.
+    let mut gens: Vec<usize> = data.generators.clone();
+    gens.sort_unstable();
+    gens.dedup();
+    gens.retain(|&g| g != 0);
+    let threshold = if n >= PARALLEL_WORK / 16 && gens.len() > 1 {
+        1
+    } else {
+        usize::MAX
+    };
+    let mapped = parallel::map_items(&gens, threshold, |_, &g| map_nearest(ctx, &ops[g].matrix));
+    for (&g, m) in gens.iter().zip(mapped) {
+        let (perm, d) = m?;
+        perms[g] = perm;
+        dev[g] = d;
     }
     if all {
+        if let Some(devs) = compose_all(ctx, ops, data, &mut perms) {
+            for (k, d) in devs {
+                dev[k] = d;
+            }
+            return Some((perms, dev));
+        }
+        // Some atom lies beyond tol/2 of its composed image: operation by operation, each
+        // composed from permutations that `check` has settled.
+        for &k in &data.word_order[1..] {
+            if !perms[k].is_empty() && !gens.contains(&k) {
+                perms[k] = Vec::new();
+            }
+        }
         for &k in &data.word_order[1..] {
             if !perms[k].is_empty() {
                 continue;
@@ -119,6 +147,103 @@ fn composed(
         }
     }
     Some((perms, dev))
+}
+
+/// Every operation that is not E or a generator composed along its word (π_k = π_g ∘ π_j)
+/// and checked, all of them chunk by chunk of atoms (in parallel for large structures: the
+/// atoms of a chunk stay in cache across the operations). The largest image distance of
+/// each such operation, or `None` when some atom lies beyond tol/2 of its composed image
+/// (or is NaN): the caller then checks operation by operation.
+fn compose_all(
+    ctx: &Ctx,
+    ops: &[PointOp],
+    data: &GroupData,
+    perms: &mut [Vec<u32>],
+) -> Option<Vec<(usize, f64)>> {
+    let n = ctx.x.len();
+    let half2 = 0.25 * ctx.tol * ctx.tol;
+    let x = &ctx.x;
+    // Operations to compose, in word order; the others (E, generators) are complete.
+    let todo: Vec<usize> = data.word_order[1..]
+        .iter()
+        .copied()
+        .filter(|&k| perms[k].is_empty())
+        .collect();
+    if todo.is_empty() {
+        return Some(Vec::new());
+    }
+    let mut slot = vec![usize::MAX; perms.len()];
+    for (t, &k) in todo.iter().enumerate() {
+        slot[k] = t;
+    }
+    let mut out: Vec<Vec<u32>> = todo.iter().map(|_| vec![0u32; n]).collect();
+    // Per chunk of atoms, the chunk of every output permutation.
+    // Chunks of at most `parallel::CHUNK` atoms, at least 8 of them (of ≥ 256 atoms) once
+    // the work is worth spreading (no result depends on the chunks).
+    let wide = n * todo.len() >= PARALLEL_WORK;
+    let chunk = if wide {
+        n.div_ceil(8).clamp(256, parallel::CHUNK)
+    } else {
+        parallel::CHUNK
+    };
+    let n_chunks = n.div_ceil(chunk);
+    let mut parts: Vec<Vec<&mut [u32]>> = (0..n_chunks).map(|_| Vec::new()).collect();
+    for perm in out.iter_mut() {
+        for (c, piece) in perm.chunks_mut(chunk).enumerate() {
+            parts[c].push(piece);
+        }
+    }
+    let done: &[Vec<u32>] = perms;
+    // Chunks side by side once the work is worth a thread (results do not depend on it).
+    let threshold = if wide { 1 } else { usize::MAX };
+    let slot = &slot;
+    let todo = &todo;
+    let results = parallel::map_items_mut(&mut parts, threshold, |c, mine| {
+        let start = c * chunk;
+        let mut worst_of = vec![0.0_f64; todo.len()];
+        let mut far = false;
+        for (t, &k) in todo.iter().enumerate() {
+            let mut worst = 0.0_f64;
+            let (g, j) = data.words[k];
+            let m = &ops[k].matrix;
+            let pg = &done[g][..];
+            let dst = std::mem::take(&mut mine[t]);
+            let xs = &x[start..start + dst.len()];
+            let src: &[u32] = if slot[j] == usize::MAX {
+                &done[j][start..start + dst.len()]
+            } else {
+                &mine[slot[j]][..]
+            };
+            for ((out, &via), p) in dst.iter_mut().zip(src).zip(xs) {
+                let img = pg[via as usize];
+                *out = img;
+                let d2 = dist2(m, p, &x[img as usize]);
+                far |= d2.is_nan() || d2 > half2;
+                worst = worst.max(d2);
+            }
+            mine[t] = dst;
+            if far {
+                return None;
+            }
+            worst_of[t] = worst;
+        }
+        Some(worst_of)
+    });
+    let mut worst = vec![0.0_f64; todo.len()];
+    for r in results {
+        for (w, v) in worst.iter_mut().zip(r?) {
+            *w = w.max(v);
+        }
+    }
+    for (&k, perm) in todo.iter().zip(out) {
+        perms[k] = perm;
+    }
+    Some(
+        todo.iter()
+            .zip(worst)
+            .map(|(&k, w)| (k, w.sqrt()))
+            .collect(),
+    )
 }
 
 /// The permutation π_g ∘ π_j (atom i goes to π_g(π_j(i))) checked as the operation `m`

@@ -1,7 +1,7 @@
 //! Array conversion: borrowed numpy views as Rust slices (shapes checked) and owned results
 //! moved into numpy.
 
-use numpy::ndarray::{Array1, Array2, Array3};
+use numpy::ndarray::Array1;
 use numpy::{
     IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2,
     PyReadonlyArray3, PyUntypedArrayMethods,
@@ -76,9 +76,14 @@ pub(super) fn index_rows<'py, R: AsRef<[u32]>>(
         .iter()
         .flat_map(|r| r.as_ref().iter().map(|&j| j as i64))
         .collect();
-    let arr = Array2::from_shape_vec((rows.len(), width), flat)
-        .map_err(|e| PyValueError::new_err(e.to_string()))?;
-    Ok(arr.into_pyarray(py))
+    if flat.len() != rows.len() * width {
+        return Err(PyValueError::new_err(format!(
+            "rows of {width} expected, got {} values in {} rows",
+            flat.len(),
+            rows.len()
+        )));
+    }
+    shaped(py, flat, numpy::ndarray::Ix2(rows.len(), width))
 }
 
 pub(super) fn slice1<'a, T: numpy::Element>(
@@ -95,13 +100,33 @@ pub(super) fn flat_mats(mats: &[[[f64; 3]; 3]]) -> Vec<f64> {
         .collect()
 }
 
+/// Arrays up to this many elements are copied into numpy-owned memory (one Python object);
+/// larger ones are moved (no copy, but a container object that owns the Rust buffer).
+const COPY_BELOW: usize = 4096;
+
+/// An owned `Vec` as a numpy array of the given shape: copied when small, moved otherwise.
+pub(super) fn shaped<T: numpy::Element + Copy, D: numpy::ndarray::Dimension>(
+    py: Python<'_>,
+    data: Vec<T>,
+    shape: D,
+) -> PyResult<Bound<'_, numpy::PyArray<T, D>>> {
+    let bad = |e: numpy::ndarray::ShapeError| PyValueError::new_err(e.to_string());
+    if data.len() <= COPY_BELOW {
+        let view = numpy::ndarray::ArrayView::from_shape(shape, &data).map_err(bad)?;
+        return Ok(numpy::ToPyArray::to_pyarray(&view, py));
+    }
+    let arr = numpy::ndarray::Array::from_shape_vec(shape, data).map_err(bad)?;
+    Ok(arr.into_pyarray(py))
+}
+
 pub(super) fn index_array(py: Python<'_>, v: &[usize]) -> Py<PyArray1<i64>> {
     let a: Vec<i64> = v.iter().map(|&i| i as i64).collect();
+    if a.len() <= COPY_BELOW {
+        return PyArray1::from_slice(py, &a).unbind();
+    }
     Array1::from(a).into_pyarray(py).unbind()
 }
 
 pub(super) fn ops_array(py: Python<'_>, mats: &[[[f64; 3]; 3]]) -> PyResult<Py<PyArray3<f64>>> {
-    let arr = Array3::from_shape_vec((mats.len(), 3, 3), flat_mats(mats))
-        .map_err(|e| PyValueError::new_err(e.to_string()))?;
-    Ok(arr.into_pyarray(py).unbind())
+    Ok(shaped(py, flat_mats(mats), numpy::ndarray::Ix3(mats.len(), 3, 3))?.unbind())
 }

@@ -1,12 +1,12 @@
 //! Detection and group arithmetic: `find_point_group`, `canonical_group`, `identify_group`,
 //! `locate_operations`, `map_operations`, and the `Detection` / `GroupData` records.
 
-use super::arrays::{coords, index_array, index_rows, matrices, ops_array, slice1};
+use super::arrays::{coords, index_array, index_rows, matrices, ops_array, shaped, slice1};
 use super::{guarded, CoreError};
 use crate::detect;
 use crate::detect::canonical;
 use crate::detect::naming;
-use numpy::ndarray::{Array1, Array2};
+use numpy::ndarray::{Array1, Ix2};
 use numpy::{
     IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
 };
@@ -76,10 +76,15 @@ impl GroupData {
     }
 }
 
+/// Up to this many atoms detection runs without releasing the GIL.
+const KEEP_GIL_MAX_ATOMS: usize = 64;
+
 /// Point-group detection: a `Detection` (see _core.pyi). `masses` (u, one per atom) make
 /// atoms of one element with different masses different species; None = standard weights.
+/// `search` ("auto", "plain" or "pruned") chooses the search, for tests and diagnosis.
 #[pyfunction]
-#[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit, masses=None))]
+#[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit, masses=None, *, search="auto"))]
+#[allow(clippy::too_many_arguments)]
 pub(super) fn find_point_group(
     py: Python<'_>,
     positions: PyReadonlyArray2<'_, f64>,
@@ -88,7 +93,18 @@ pub(super) fn find_point_group(
     linear_n: usize,
     verify_all_limit: usize,
     masses: Option<PyReadonlyArray1<'_, f64>>,
+    search: &str,
 ) -> PyResult<Detection> {
+    let search = match search {
+        "auto" => detect::Search::PrunedThenPlain,
+        "plain" => detect::Search::Plain,
+        "pruned" => detect::Search::Pruned,
+        other => {
+            return Err(PyValueError::new_err(format!(
+                "search must be \"auto\", \"plain\" or \"pruned\", got {other:?}"
+            )))
+        }
+    };
     let pos = coords(&positions, "positions")?;
     let num = slice1(&numbers, "numbers")?;
     let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
@@ -97,9 +113,14 @@ pub(super) fn find_point_group(
         linear_n,
         verify_all_limit,
     };
-    let sym = py
-        .detach(|| guarded(|| detect::find_point_group_with_masses(pos, num, mass, &opts)))
-        .map_err(CoreError)?;
+    let run = || guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search));
+    // Small structures take a few µs: releasing the GIL would cost a good part of that.
+    let sym = if pos.len() <= KEEP_GIL_MAX_ATOMS {
+        run()
+    } else {
+        py.detach(run)
+    }
+    .map_err(CoreError)?;
     let n = pos.len();
     let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
     let proper: Vec<bool> = sym.ops.iter().map(|o| o.proper).collect();
@@ -107,12 +128,12 @@ pub(super) fn find_point_group(
     let axis: Vec<[f64; 3]> = sym.ops.iter().map(|o| o.axis).collect();
     Ok(Detection {
         point_group: sym.point_group,
-        center: Array1::from(sym.center.to_vec()).into_pyarray(py).unbind(),
-        frame: Array2::from(sym.frame.to_vec()).into_pyarray(py).unbind(),
+        center: PyArray1::from_slice(py, &sym.center).unbind(),
+        frame: shaped(py, sym.frame.concat(), Ix2(3, 3))?.unbind(),
         operations: ops_array(py, &mats)?,
-        proper: Array1::from(proper).into_pyarray(py).unbind(),
-        angle: Array1::from(angle).into_pyarray(py).unbind(),
-        axis: Array2::from(axis).into_pyarray(py).unbind(),
+        proper: PyArray1::from_slice(py, &proper).unbind(),
+        angle: PyArray1::from_slice(py, &angle).unbind(),
+        axis: shaped(py, axis.concat(), Ix2(axis.len(), 3))?.unbind(),
         canonical_index: index_array(py, &sym.canonical_index),
         class_of: index_array(py, &sym.class_of),
         generators: index_array(py, &sym.generators),
