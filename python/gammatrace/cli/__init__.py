@@ -11,60 +11,59 @@ Machine-readable output follows shared/INTERFACE.md. Exit status: 0 when everyth
 from __future__ import annotations
 
 import argparse
+import importlib
 import sys
 from collections.abc import Sequence
 
 from ..errors import GammatraceError
-from . import (
-    analyze,
-    correlate,
-    demo,
-    ladder,
-    modes,
-    salc,
-    screen,
-    selection,
-    sites,
-    symmetrize,
-    table,
-)
 from ._shared import fail
 
-__all__ = ["main"]
+__all__ = ["COMMANDS", "main"]
 
-#: The commands in the order ``--help`` lists them.
+#: The command modules in the order ``--help`` lists them. Only the one named on the command
+#: line is imported (start-up time); ``--help`` and unknown names load them all.
 COMMANDS = (
-    analyze,
-    table,
-    correlate,
-    selection,
-    screen,
-    sites,
-    ladder,
-    salc,
-    modes,
-    symmetrize,
-    demo,
+    "analyze",
+    "table",
+    "correlate",
+    "selection",
+    "screen",
+    "sites",
+    "ladder",
+    "salc",
+    "modes",
+    "symmetrize",
+    "demo",
 )
 
 
-def _parser() -> argparse.ArgumentParser:
+def _parser(only: str | None = None) -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="gammatrace",
         description="Molecular point groups, characters and vibrational symmetry.",
     )
     p.add_argument("--traceback", action="store_true", help="print full tracebacks on errors")
     sub = p.add_subparsers(dest="command", required=True)
-    for command in COMMANDS:
-        command.register(sub)
+    for name in COMMANDS:
+        if only is None or name == only:
+            importlib.import_module(f"{__name__}.{name}").register(sub)
     return p
+
+
+def _command_named(argv: Sequence[str]) -> str | None:
+    """The command of a command line (the first word that is not an option), when known."""
+    for word in argv:
+        if not word.startswith("-"):
+            return word if word in COMMANDS else None
+    return None
 
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status (0, 1 or 2)."""
-    parser = _parser()
+    words = list(sys.argv[1:] if argv is None else argv)
+    parser = _parser(_command_named(words))
     try:
-        args = parser.parse_args(argv)
+        args = parser.parse_args(words)
     except SystemExit as exc:  # argparse: 2 for a bad command line, 0 for --help
         return int(exc.code or 0)
     if getattr(args, "tol", 1.0) is not None and getattr(args, "tol", 1.0) <= 0:

@@ -15,7 +15,6 @@ from ..errors import GammatraceError
 from ..group.chirality import SEARCH_FACTOR
 from ..group.measure import EXTENDED_BOUND
 from ..io import FrameError
-from ..pictures import draw_stereogram, draw_symmetry
 from ..render.grid import LATEX_END, LATEX_PREAMBLE
 from ..tables import get_table
 from ._shared import (
@@ -122,6 +121,8 @@ def _results_of(path: str, args: argparse.Namespace, bases: list, named: list) -
                 os.makedirs(args.draw, exist_ok=True)
                 stem = os.path.splitext(os.path.basename(result.structure.source))[0] or "stdin"
                 name = os.path.join(args.draw, f"{stem}_{result.structure.index}")
+                from ..pictures import draw_stereogram, draw_symmetry  # matplotlib on demand
+
                 draw_symmetry(result, name + ".png")
                 if result.symmetry.group_order is not None:  # finite groups have a stereogram
                     draw_stereogram(result, name + "_stereogram.png")
