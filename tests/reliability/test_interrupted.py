@@ -23,7 +23,8 @@ AMMONIA = (
     b"H 0.8138 -0.4699 -0.2711\nH -0.8138 -0.4699 -0.2711\n"
 )
 BAD = b"3\nbad\nO 0.0 0.0 0.1173\nH 0.0 x -0.4692\nH 0.0 -0.7572 -0.4692\n"
-N_BLOCKS = 20_000  # 5 frames per block: 100 000 frames, a few seconds on one thread
+N_BLOCKS = 80_000  # 5 frames per block: 400 000 frames, a second or more on one thread (fewer
+# would let a fast screen finish before the signal arrives)
 
 
 @pytest.fixture(scope="module")
