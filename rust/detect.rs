@@ -262,23 +262,7 @@ pub fn find_point_group_with_masses(
     masses: Option<&[f64]>,
     opts: &DetectOptions,
 ) -> Result<Symmetry> {
-    detect(positions, numbers, masses, opts, Search::PrunedThenPlain)
-}
-
-/// [`find_point_group_with_masses`] with a choice of search (for tests and diagnosis: the
-/// pruned search is checked against the plain one through it).
-///
-/// # Errors
-/// As [`find_point_group_with_masses`]; with [`Search::Pruned`], also `GroupClosure` where
-/// the pruned search gives up.
-pub fn find_point_group_searching(
-    positions: &[[f64; 3]],
-    numbers: &[i64],
-    masses: Option<&[f64]>,
-    opts: &DetectOptions,
-    search: Search,
-) -> Result<Symmetry> {
-    detect(positions, numbers, masses, opts, search)
+    find_point_group_searching(positions, numbers, masses, opts, Search::PrunedThenPlain)
 }
 
 /// Which searches detection runs for structures that are neither atoms nor linear.
@@ -292,7 +276,13 @@ pub enum Search {
     Pruned,
 }
 
-fn detect(
+/// [`find_point_group_with_masses`] with a choice of search (for tests and diagnosis: the
+/// pruned search is checked against the plain one through it).
+///
+/// # Errors
+/// As [`find_point_group_with_masses`]; with [`Search::Pruned`], also `GroupClosure` where
+/// the pruned search gives up.
+pub fn find_point_group_searching(
     positions: &[[f64; 3]],
     numbers: &[i64],
     masses: Option<&[f64]>,
@@ -705,6 +695,21 @@ fn spread(items: &[u32], k: usize) -> impl Iterator<Item = usize> + '_ {
     items.iter().step_by(step).map(|&i| i as usize)
 }
 
+/// Distance of every atom from the line through the centre and atom `a` (at radius
+/// `r_a > 0`), with the largest of them: where the second reference atom is chosen.
+fn line_distances(x: &[Vec3], a: usize, r_a: f64) -> (Vec<f64>, f64) {
+    let ua = [x[a][0] / r_a, x[a][1] / r_a, x[a][2] / r_a];
+    let perp: Vec<f64> = x
+        .iter()
+        .map(|p| {
+            let t = dot(p, &ua);
+            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
+        })
+        .collect();
+    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    (perp, d_max)
+}
+
 /// Orthonormal frame (rows) from two non-collinear vectors: e1 ∥ p, e2 in the (p, q) plane.
 fn pair_frame(p: &Vec3, q: &Vec3) -> Option<Mat3> {
     let e1 = crate::ops::normalize(p)?;
@@ -741,16 +746,7 @@ fn enumerate(
         reason: "the structure has no atom off the centre".into(),
     };
     let a = pick(&|i| r[i], 0.5 * r_max).ok_or_else(no_ops)?;
-    let ua = [ctx.x[a][0] / r[a], ctx.x[a][1] / r[a], ctx.x[a][2] / r[a]];
-    let perp: Vec<f64> = ctx
-        .x
-        .iter()
-        .map(|p| {
-            let t = dot(p, &ua);
-            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
-        })
-        .collect();
-    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let (perp, d_max) = line_distances(&ctx.x, a, r[a]);
     let b = pick(&|i| perp[i], 0.5 * d_max).ok_or_else(no_ops)?;
     let wa = &win.order[win.range[a].0 as usize..win.range[a].1 as usize];
     let wb = &win.order[win.range[b].0 as usize..win.range[b].1 as usize];

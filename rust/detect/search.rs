@@ -25,7 +25,9 @@
 //!   [`lone_pair_without_mirror`] and [`without_symmetry`].
 
 use super::canonical::{group_data, Family, GroupData};
-use super::{finish, frame, naming, pair_frame, sub, Ctx, DetectOptions, RawOp, Symmetry};
+use super::{
+    finish, frame, line_distances, naming, pair_frame, sub, Ctx, DetectOptions, RawOp, Symmetry,
+};
 use crate::error::Error;
 use crate::ops::{
     cross, det, dot, fit_orthogonal, mat_mul, mat_vec, norm, rotation_matrix, transpose, Mat3,
@@ -212,15 +214,7 @@ fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64], order: &[usize]) -> Option<boo
         .filter(|&i| alone[i] && r[i] >= 0.5 * r_max && r[i] > 0.0)
         .map(|i| (u64::MAX - r[i].to_bits(), i))
         .min()?;
-    let ua = [x[a][0] / r[a], x[a][1] / r[a], x[a][2] / r[a]];
-    let perp: Vec<f64> = x
-        .iter()
-        .map(|p| {
-            let t = dot(p, &ua);
-            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
-        })
-        .collect();
-    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let (perp, d_max) = line_distances(x, a, r[a]);
     let (_, b) = (0..n)
         .filter(|&i| alone[i] && perp[i] >= 0.5 * d_max && perp[i] > 0.0)
         .map(|i| (u64::MAX - perp[i].to_bits(), i))
@@ -307,15 +301,7 @@ fn without_symmetry(ctx: &Ctx, r: &[f64], order: &[usize]) -> bool {
     else {
         return false;
     };
-    let ua = [x[a][0] / r[a], x[a][1] / r[a], x[a][2] / r[a]];
-    let perp: Vec<f64> = x
-        .iter()
-        .map(|p| {
-            let t = dot(p, &ua);
-            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
-        })
-        .collect();
-    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let (perp, d_max) = line_distances(x, a, r[a]);
     let Some((_, _, b)) = (0..n)
         .filter(|&i| perp[i] >= 0.5 * d_max && perp[i] > 0.0)
         .map(|i| (size[i], u64::MAX - perp[i].to_bits(), i))
@@ -374,16 +360,7 @@ fn choose_pair(ctx: &Ctx, sh: &Shells) -> Option<(usize, usize)> {
         .map(|i| (sh.size(i), u64::MAX - r[i].to_bits(), i))
         .min()?
         .2;
-    let ua = [ctx.x[a][0] / r[a], ctx.x[a][1] / r[a], ctx.x[a][2] / r[a]];
-    let perp: Vec<f64> = ctx
-        .x
-        .iter()
-        .map(|p| {
-            let t = dot(p, &ua);
-            norm(&[p[0] - t * ua[0], p[1] - t * ua[1], p[2] - t * ua[2]])
-        })
-        .collect();
-    let d_max = perp.iter().copied().fold(0.0, f64::max);
+    let (perp, d_max) = line_distances(&ctx.x, a, r[a]);
     let eligible: Vec<usize> = (0..n)
         .filter(|&i| perp[i] >= 0.5 * d_max && perp[i] > 0.0)
         .collect();

@@ -947,8 +947,9 @@ fn test_pruned_search_finds_the_group_of_the_plain_search() {
                     continue;
                 };
                 compared += 1;
-                let plain = detect(&p, &z, None, &opts, Search::Plain);
-                let Ok(fast) = detect(&p, &z, None, &opts, Search::Pruned) else {
+                let plain = find_point_group_searching(&p, &z, None, &opts, Search::Plain);
+                let Ok(fast) = find_point_group_searching(&p, &z, None, &opts, Search::Pruned)
+                else {
                     continue;
                 };
                 answered += 1;
