@@ -128,3 +128,22 @@ def test_options_that_need_the_objects_take_the_one_structure_path(tmp_path, cap
             continue
         assert isinstance(row.pop("orbits"), list)
         assert row == plain
+
+
+def test_a_frame_the_group_pass_leaves_out_goes_through_the_one_structure_path(
+    tmp_path, capsys, monkeypatch
+):
+    # when the group pass cannot build a row (None), the frame is analysed on its own: the
+    # row is then that path's object (or its error), in its place
+    import gammatrace.batch.rows as rows_module
+
+    real = rows_module.summary_rows
+
+    def without_first(table, unshifted, n_atoms):
+        out = real(table, unshifted, n_atoms)
+        return [None] + out[1:]
+
+    monkeypatch.setattr(rows_module, "summary_rows", without_first)
+    path = _mixed_file(tmp_path)
+    _, rows, _ = _rows(capsys, ["analyze", path, "--format", "json"])
+    assert rows == json.loads(json.dumps(_expected(path)))
