@@ -141,7 +141,7 @@ def test_a_frame_the_group_pass_leaves_out_goes_through_the_one_structure_path(
 
     def without_first(table, unshifted, n_atoms):
         out = real(table, unshifted, n_atoms)
-        return [None] + out[1:]
+        return [None, *out[1:]]
 
     monkeypatch.setattr(rows_module, "summary_rows", without_first)
     path = _mixed_file(tmp_path)
