@@ -157,14 +157,11 @@ class _TableFacts:
     centrosymmetric: bool
 
 
-#: id(table) -> (table, facts); the table is kept so that its id is never reused.
-_FACTS: dict[int, tuple[Any, _TableFacts]] = {}
-
-
 def _facts(table) -> _TableFacts:
-    hit = _FACTS.get(id(table))
-    if hit is not None and hit[0] is table:
-        return hit[1]
+    return table.prepared("vibrational facts", _build_facts)
+
+
+def _build_facts(table) -> _TableFacts:
     labels = tuple(ir.label for ir in table.irreps)
     ir_set, raman_set = table.ir_active_irreps, table.raman_active_irreps
     arrays = (
@@ -175,15 +172,12 @@ def _facts(table) -> _TableFacts:
     )
     for a in arrays:
         a.setflags(write=False)
-    facts = _TableFacts(
+    return _TableFacts(
         labels,
         *arrays,
         totally_symmetric(table),
         any(c.label == "i" for c in table.classes),
     )
-    if len(_FACTS) < 4096:
-        _FACTS[id(table)] = (table, facts)
-    return facts
 
 
 def vibration_count(table, n_atoms) -> np.ndarray:

@@ -17,7 +17,6 @@ residuals.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
 
 import numpy as np
 
@@ -44,22 +43,16 @@ class _Plan:
     chiral: bool
 
 
-#: id(table) -> (table, plan); the table is kept so that its id is never reused.
-_PLANS: dict[int, tuple[Any, _Plan]] = {}
-
-
 def _plan(table) -> _Plan:
-    hit = _PLANS.get(id(table))
-    if hit is not None and hit[0] is table:
-        return hit[1]
+    return table.prepared("summary plan", _build_plan)
+
+
+def _build_plan(table) -> _Plan:
     proper, angle, _ = describe(table.operations)
     proper = np.ascontiguousarray(proper, dtype=bool)
     cart = _core.orbital_contributions(proper, np.ascontiguousarray(angle, dtype=np.float64), 1)
     cart.setflags(write=False)
-    plan = _Plan(table.operation_class, table.class_representatives, cart, bool(proper.all()))
-    if len(_PLANS) < 4096:
-        _PLANS[id(table)] = (table, plan)
-    return plan
+    return _Plan(table.operation_class, table.class_representatives, cart, bool(proper.all()))
 
 
 def _json_rows(chars: np.ndarray) -> list:

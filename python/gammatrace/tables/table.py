@@ -119,6 +119,15 @@ class CharacterTable:
     def __repr__(self) -> str:
         return f"CharacterTable({self.name!r}, {len(self.classes)} classes)"
 
+    def prepared(self, key: str, build):
+        """``build(self)``, computed once per table and kept under ``key``: for the facts the
+        layers above read from a table on every structure (activity masks, the summary's
+        plan), so that each is prepared once."""
+        memo = self.__dict__.setdefault("_prepared", {})
+        if key not in memo:
+            memo[key] = build(self)
+        return memo[key]
+
     @cached_property
     def class_labels(self) -> tuple:
         """The class labels, in print order (``("E", "2C3", "3σv")``)."""
