@@ -47,6 +47,7 @@ __all__ = [
     "rotational_freedom",
     "vibration_count",
     "vibrations",
+    "vibrations_from_counts",
 ]
 
 
@@ -258,8 +259,14 @@ def vibrations(sym: SymmetryData, cartesian_characters=None) -> Vibrations:
             f"{plural(int(modes[0]), 'mode')}: "
             f"characters {chars[0].tolist()} give {parts}"
         )
+    return vibrations_from_counts(table, mult[0].tolist(), int(modes[0]), chars[0])
+
+
+def vibrations_from_counts(table, counts: list, modes: int, characters) -> Vibrations:
+    """The :class:`Vibrations` of Γ_vib multiplicities ``counts`` (table order), as
+    :func:`reduce_vibrations` gives them: activity, polarised bands, the counts of distinct
+    fundamentals (single analyses and the batch rows of :mod:`gammatrace.summary` alike)."""
     facts = _facts(table)
-    counts = mult[0].tolist()
     irreps = {lab: v for lab, v in zip(facts.labels, counts) if v}
     ir = {lab: v for lab, v, a in zip(facts.labels, counts, facts.ir_mask.tolist()) if v and a}
     raman = {
@@ -269,14 +276,14 @@ def vibrations(sym: SymmetryData, cartesian_characters=None) -> Vibrations:
     polarised = {a1: irreps[a1]} if a1 in irreps and a1 in raman else {}
     return Vibrations(
         irreps,
-        int(modes[0]),
+        modes,
         ir,
         raman,
         sum(irreps.values()),
         sum(ir.values()),
         sum(raman.values()),
         facts.centrosymmetric,
-        chars[0],
+        characters,
         polarised,
     )
 

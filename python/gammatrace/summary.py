@@ -21,8 +21,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import _core
-from .bases.counting import json_number
-from .spectroscopy import _facts, reduce_vibrations
+from .bases.counting import json_number_rows
+from .spectroscopy import reduce_vibrations, vibrations_from_counts
 from .tables._ops import describe
 
 __all__ = ["summary_rows"]
@@ -55,22 +55,6 @@ def _build_plan(table) -> _Plan:
     return _Plan(table.operation_class, table.class_representatives, cart, bool(proper.all()))
 
 
-def _json_rows(chars: np.ndarray) -> list:
-    """:func:`~gammatrace.bases.counting.json_number` of every entry, row by row (integral
-    rows in one pass)."""
-    r = np.rint(chars)
-    integral = (np.abs(chars - r) < 1e-9).all(axis=1)
-    ints = r.astype(np.int64).tolist()
-    return [
-        ints[k] if integral[k] else [json_number(x) for x in chars[k].tolist()]
-        for k in range(len(chars))
-    ]
-
-
-def _irrep_dicts(labels: tuple, mult: np.ndarray) -> list:
-    return [{lab: v for lab, v in zip(labels, row) if v} for row in mult.tolist()]
-
-
 def summary_rows(table, unshifted: np.ndarray, n_atoms: np.ndarray) -> list:
     """The group-dependent keys of the JSON object of k structures of one group.
 
@@ -99,43 +83,25 @@ def summary_rows(table, unshifted: np.ndarray, n_atoms: np.ndarray) -> list:
     chars = np.concatenate([atoms, atoms * plan.cartesian[plan.first]])
     mult, reduced = table.reduce_rows(chars)
     cart = chars[k:]
-    m_vib, modes, ok_vib, _ = reduce_vibrations(table, cart, n_atoms)
+    m_vib, modes, ok_vib, vib_chars = reduce_vibrations(table, cart, n_atoms)
     ok &= reduced[:k] & reduced[k:] & ok_vib
-    facts = _facts(table)
-    labels = facts.labels
-    as_json = _json_rows(chars)
-    as_irreps = _irrep_dicts(labels, mult)
-    atoms_json, cart_json = as_json[:k], as_json[k:]
-    atoms_irreps, cart_irreps = as_irreps[:k], as_irreps[k:]
-    ir_mask, raman_mask = facts.ir_mask.tolist(), facts.raman_mask.tolist()
-    a1 = facts.totally_symmetric
+    labels = table.labels
+    as_json = json_number_rows(chars)
+    as_irreps = [{lab: v for lab, v in zip(labels, row) if v} for row in mult.tolist()]
     sigma = int(table.symmetry_number)
     rows: list = []
     for r, (vib, n_modes) in enumerate(zip(m_vib.tolist(), modes.tolist())):
         if not ok[r]:
             rows.append(None)
             continue
-        irreps = {lab: v for lab, v in zip(labels, vib) if v}
-        ir = {lab: v for lab, v, a in zip(labels, vib, ir_mask) if v and a}
-        raman = {lab: v for lab, v, a in zip(labels, vib, raman_mask) if v and a}
         rows.append(
             {
                 "classes": table.class_dicts(),
                 "representations": {
-                    "atoms": {"characters": atoms_json[r], "irreps": atoms_irreps[r]},
-                    "cartesian": {"characters": cart_json[r], "irreps": cart_irreps[r]},
+                    "atoms": {"characters": as_json[r], "irreps": as_irreps[r]},
+                    "cartesian": {"characters": as_json[k + r], "irreps": as_irreps[k + r]},
                 },
-                "vibrations": {
-                    "irreps": irreps,
-                    "modes": n_modes,
-                    "ir_active": ir,
-                    "raman_active": raman,
-                    "n_fundamentals": sum(irreps.values()),
-                    "n_ir_active": sum(ir.values()),
-                    "n_raman_active": sum(raman.values()),
-                    "mutual_exclusion": facts.centrosymmetric,
-                    "polarised": {a1: irreps[a1]} if a1 in irreps and a1 in raman else {},
-                },
+                "vibrations": vibrations_from_counts(table, vib, n_modes, vib_chars[r]).to_dict(),
                 "symmetry_number": sigma,
                 "chiral": plan.chiral,
             }

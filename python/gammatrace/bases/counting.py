@@ -126,11 +126,20 @@ def json_number(x: float) -> int | float:
 
 def json_numbers(values: np.ndarray) -> list:
     """:func:`json_number` of each value (one pass when they are all integral)."""
+    return json_number_rows(np.asarray(values, dtype=np.float64)[None, :])[0]
+
+
+def json_number_rows(values: np.ndarray) -> list:
+    """:func:`json_number` of every entry of a 2-D array, row by row (integral rows in one
+    pass)."""
     arr = np.asarray(values, dtype=np.float64)
     r = np.rint(arr)
-    if np.all(np.abs(arr - r) < 1e-9):
-        return r.astype(np.int64).tolist()
-    return [json_number(x) for x in arr.tolist()]
+    integral = (np.abs(arr - r) < 1e-9).all(axis=1)
+    ints = r.astype(np.int64).tolist()
+    return [
+        ints[k] if integral[k] else [json_number(x) for x in arr[k].tolist()]
+        for k in range(len(arr))
+    ]
 
 
 def format_number(x: float) -> str:

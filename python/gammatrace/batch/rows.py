@@ -20,8 +20,8 @@ from ..analysis import _check_tol, analyze_structure
 from ..errors import GammatraceError
 from ..group import DEFAULT_TOL
 from ..group.chirality import SEARCH_FACTOR, tolerance_ladder
+from ..group.orbits import species_symbols_of
 from ..io import FrameError, Structure
-from ..io.elements import SYMBOLS, species
 from ..summary import summary_rows
 from ..tables import get_table
 from .run import DEFAULT_CHUNK, Ragged, detect_chunk
@@ -128,12 +128,7 @@ def _environment_counts(data: Ragged, orbit_ids: np.ndarray, ok: np.ndarray) -> 
     base = np.concatenate([[0], np.cumsum(n_orbits)[:-1]])
     g = ids + base[owner]  # orbits numbered over the chunk, still in order of first atom
     first = np.flatnonzero(g == np.maximum.accumulate(np.concatenate([[-1], g[:-1]])) + 1)
-    first_atom = atom_index[first]
-    if data.masses is None:
-        symbols = [SYMBOLS[z] for z in data.numbers[first_atom].tolist()]
-    else:
-        every = species(data.numbers, data.masses)[1]
-        symbols = [every[i] for i in first_atom.tolist()]
+    symbols = species_symbols_of(data.numbers, data.masses, atom_index[first])
     out: dict[int, dict] = {}
     for k, symbol in zip(owner[first].tolist(), symbols):
         env = out.setdefault(k, {})

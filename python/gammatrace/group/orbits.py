@@ -20,6 +20,7 @@ __all__ = [
     "orbit_sets",
     "orbits",
     "site_group_names",
+    "species_symbols_of",
 ]
 
 #: Up to this many atoms the sets are gathered in a Python loop (cheaper than numpy calls).
@@ -135,13 +136,17 @@ def environment_sets(ids: np.ndarray, numbers: np.ndarray, masses: Any = None) -
         ids = np.asarray(ids, dtype=np.int64)
         order = np.argsort(ids, kind="stable")
         members = [a.tolist() for a in np.split(order, np.cumsum(np.bincount(ids))[:-1])]
-    firsts = [m[0] for m in members]
-    if masses is None:  # every atom of its element's standard mass: the element symbols
-        symbols = [SYMBOLS[z] for z in np.asarray(numbers)[firsts].tolist()]
-    else:
-        every = species(np.ascontiguousarray(numbers), np.ascontiguousarray(masses))[1]
-        symbols = [every[i] for i in firsts]
+    symbols = species_symbols_of(numbers, masses, [m[0] for m in members])
     out: dict[str, list] = {}
     for symbol, atoms in zip(symbols, members):
         out.setdefault(symbol, []).append(atoms)
     return out
+
+
+def species_symbols_of(numbers: np.ndarray, masses: Any, atoms: Any) -> list[str]:
+    """The species symbols (isotopes apart: ``D``, ``13C``) of the given atoms; the element
+    symbols when ``masses`` is None (every atom of its standard mass)."""
+    if masses is None:
+        return [SYMBOLS[z] for z in np.asarray(numbers)[atoms].tolist()]
+    every = species(np.ascontiguousarray(numbers), np.ascontiguousarray(masses))[1]
+    return [every[i] for i in np.asarray(atoms).tolist()]
