@@ -90,16 +90,17 @@ def _json_rows_of_file(path: str, args: argparse.Namespace) -> int:
                 if "error" in row:
                     status = 1
                     err = row["error"]
-                    print(
-                        f"gammatrace: {err['type']}: {row['source']} [frame {row['index']}]: "
-                        f"{err['message']}",
-                        file=sys.stderr,
-                    )
+                    _frame_failed(row["source"], row["index"], err["type"], err["message"])
                 lines.append(dump_bytes(row))
             out.write(b"\n".join(lines) + b"\n")
             out.flush()
             bar.update(b - a)
     return status
+
+
+def _frame_failed(source: str, index: int, kind: str, message: str) -> None:
+    """The standard-error line of a frame that could not be analysed."""
+    print(f"gammatrace: {kind}: {source} [frame {index}]: {message}", file=sys.stderr)
 
 
 def _results_of(path: str, args: argparse.Namespace, bases: list, named: list) -> int:
@@ -110,11 +111,7 @@ def _results_of(path: str, args: argparse.Namespace, bases: list, named: list) -
             status = 1
             if args.format == "json":
                 write(dump(result.to_dict()) + "\n")
-            print(
-                f"gammatrace: {result.type}: {result.source} [frame {result.index}]: "
-                f"{result.message}",
-                file=sys.stderr,
-            )
+            _frame_failed(result.source, result.index, result.type, result.message)
             continue
         try:
             if args.draw:
