@@ -64,7 +64,7 @@ fn analyse_one(
     details: Option<&[f64]>,
 ) -> Result<One> {
     let sym = detect::find_point_group_with_masses(positions, numbers, masses, opts)?;
-    let unshifted = unshifted_atoms(positions, &sym, opts.tol);
+    let unshifted = unshifted_atoms(positions, &sym, opts.tol)?;
     let (orbit_ids, improper) = match details {
         Some(ladder) => (
             count::orbits(positions.len(), &sym.permutations)?,
@@ -85,21 +85,16 @@ fn analyse_one(
 
 /// Atoms each operation of `sym` leaves unshifted. Every operation is counted when detection
 /// verified every one; otherwise (huge structures) the first operation of each class is
-/// counted and stands for its class, as verification stands on the generators.
-pub fn unshifted_atoms(positions: &[[f64; 3]], sym: &detect::Symmetry, tol: f64) -> Vec<u64> {
-    if sym.verified.len() == sym.ops.len() {
-        let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
-        return count::count_unshifted(positions, sym.center, &mats, tol);
-    }
-    let firsts: Vec<[[f64; 3]; 3]> = sym.classes.iter().map(|c| sym.ops[c[0]].matrix).collect();
-    let per_class = count::count_unshifted(positions, sym.center, &firsts, tol);
-    let mut out = vec![0u64; sym.ops.len()];
-    for (class, &n) in sym.classes.iter().zip(&per_class) {
-        for &k in class {
-            out[k] = n;
-        }
-    }
-    out
+/// counted and stands for its class, as verification stands on the generators
+/// ([`count::count_unshifted_by_class`]).
+pub fn unshifted_atoms(
+    positions: &[[f64; 3]],
+    sym: &detect::Symmetry,
+    tol: f64,
+) -> Result<Vec<u64>> {
+    let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
+    let per_class = sym.verified.len() != sym.ops.len();
+    count::count_unshifted_by_class(positions, sym.center, &mats, &sym.class_of, per_class, tol)
 }
 
 /// The smallest deviation among the improper operations of `sym` that detection verified,
@@ -112,15 +107,8 @@ fn best_improper(
     sym: &detect::Symmetry,
     tol: f64,
 ) -> Result<Option<f64>> {
-    let verified = sym
-        .verified
-        .iter()
-        .zip(&sym.deviations)
-        .filter(|(&k, _)| !sym.ops[k].proper)
-        .map(|(_, &d)| d)
-        .fold(f64::INFINITY, f64::min);
-    if verified.is_finite() {
-        return Ok(Some(verified));
+    if let Some(best) = sym.best_verified_improper() {
+        return Ok(Some(best));
     }
     let improper: Vec<[[f64; 3]; 3]> = sym
         .ops

@@ -134,6 +134,19 @@ impl Symmetry {
     pub fn order(&self) -> usize {
         self.ops.len()
     }
+
+    /// The smallest deviation among the improper operations detection verified (each
+    /// measured as mapping it atom by atom would); `None` when it verified none.
+    pub fn best_verified_improper(&self) -> Option<f64> {
+        let best = self
+            .verified
+            .iter()
+            .zip(&self.deviations)
+            .filter(|(&k, _)| !self.ops[k].proper)
+            .map(|(_, &d)| d)
+            .fold(f64::INFINITY, f64::min);
+        best.is_finite().then_some(best)
+    }
 }
 
 /// The centred structure and what every stage needs.

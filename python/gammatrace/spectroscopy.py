@@ -45,7 +45,9 @@ __all__ = [
     "fundamentals",
     "reduce_vibrations",
     "rotational_freedom",
+    "vibration_characters",
     "vibration_count",
+    "vibration_spans",
     "vibrations",
     "vibrations_from_counts",
 ]
@@ -156,6 +158,9 @@ class _TableFacts:
     raman_mask: np.ndarray
     totally_symmetric: str
     centrosymmetric: bool
+    #: ``ir_mask`` and ``raman_mask`` as tuples of bool, for the per-structure loop.
+    ir_flags: tuple
+    raman_flags: tuple
 
 
 def _facts(table) -> _TableFacts:
@@ -178,6 +183,8 @@ def _build_facts(table) -> _TableFacts:
         *arrays,
         totally_symmetric(table),
         any(c.label == "i" for c in table.classes),
+        tuple(arrays[2].tolist()),
+        tuple(arrays[3].tolist()),
     )
 
 
@@ -206,22 +213,27 @@ def reduce_vibrations(table, chars_3n, n_atoms):
     modes : numpy.ndarray of int, shape (k,)
         3N − 6 (3N − 5 linear, 0 for one atom).
     ok : numpy.ndarray of bool, shape (k,)
-        False where the multiplicities are not non-negative integers spanning ``modes``.
+        False where the multiplicities are not non-negative integers spanning ``modes`` (or
+        the characters lie outside what the table resolves, as :meth:`reduce_rows` says).
     chars : numpy.ndarray, shape (k, n_classes)
         Γ_vib characters.
     """
-    facts = _facts(table)
-    chars = np.asarray(chars_3n, dtype=np.float64) - facts.external[None, :]
+    chars = vibration_characters(table, chars_3n)
+    mult, ok = table.reduce_rows(chars)
+    modes, spans = vibration_spans(table, mult, n_atoms)
+    return mult, modes, ok & spans, chars
+
+
+def vibration_characters(table, chars_3n) -> np.ndarray:
+    """Γ_vib = Γ_3N − Γ_trans − Γ_rot, per row of ``chars_3n`` ``(k, n_classes)``."""
+    return np.asarray(chars_3n, dtype=np.float64) - _facts(table).external
+
+
+def vibration_spans(table, mult: np.ndarray, n_atoms) -> tuple[np.ndarray, np.ndarray]:
+    """``(modes, ok)``: the number of vibrations of each structure (:func:`vibration_count`)
+    and whether the Γ_vib multiplicities ``mult`` ``(k, n_irreps)`` span exactly that many."""
     modes = vibration_count(table, n_atoms)
-    raw = table.raw_multiplicities(chars)
-    mult = np.rint(raw).astype(np.int64)
-    dims = facts.dims
-    ok = (
-        (np.abs(raw - mult).max(axis=1, initial=0.0) <= 1e-6)
-        & (mult >= 0).all(axis=1)
-        & ((mult * dims).sum(axis=1) == modes)
-    )
-    return mult, modes, ok, chars
+    return modes, mult @ _facts(table).dims == modes
 
 
 def activity_masks(table) -> tuple[np.ndarray, np.ndarray]:
@@ -268,10 +280,8 @@ def vibrations_from_counts(table, counts: list, modes: int, characters) -> Vibra
     fundamentals (single analyses and the batch rows of :mod:`gammatrace.summary` alike)."""
     facts = _facts(table)
     irreps = {lab: v for lab, v in zip(facts.labels, counts) if v}
-    ir = {lab: v for lab, v, a in zip(facts.labels, counts, facts.ir_mask.tolist()) if v and a}
-    raman = {
-        lab: v for lab, v, a in zip(facts.labels, counts, facts.raman_mask.tolist()) if v and a
-    }
+    ir = {lab: v for lab, v, a in zip(facts.labels, counts, facts.ir_flags) if v and a}
+    raman = {lab: v for lab, v, a in zip(facts.labels, counts, facts.raman_flags) if v and a}
     a1 = facts.totally_symmetric
     polarised = {a1: irreps[a1]} if a1 in irreps and a1 in raman else {}
     return Vibrations(

@@ -5,7 +5,8 @@ Structures of one point group, their operations in canonical order, differ only 
 atoms each operation leaves unshifted. From those counts this module builds, one vectorised
 pass per group, what :meth:`gammatrace.Analysis.to_dict` reports by default: the classes,
 Γ(atoms) and Γ_3N with their characters and reductions, Γ_vib with its activity (through
-:func:`~gammatrace.spectroscopy.reduce_vibrations`, the one Γ_vib reduction), σ and the
+:func:`~gammatrace.spectroscopy.vibration_characters` and
+:func:`~gammatrace.spectroscopy.vibration_spans`, as ``reduce_vibrations`` does), σ and the
 chiral flag. Single analyses (k = 1) and the command line's many-frame JSON path both come
 here, so the two write the same object.
 
@@ -22,24 +23,36 @@ import numpy as np
 
 from . import _core
 from .bases.counting import json_number_rows
-from .spectroscopy import reduce_vibrations, vibrations_from_counts
+from .spectroscopy import (
+    external_characters,
+    vibration_characters,
+    vibration_spans,
+    vibrations_from_counts,
+)
 from .tables._ops import describe
 
 __all__ = ["summary_rows"]
-
-#: Characters of one class must agree to this (relative, as ``bases.counting.per_class``).
-_CLASS_ATOL = 1e-6
 
 
 @dataclass(frozen=True)
 class _Plan:
     """What the summary reads from one table, prepared once per table."""
 
-    op_class: np.ndarray
     first: np.ndarray
-    #: Γ_3N per unshifted atom for each canonical operation: 2cos θ ± 1 (l = 1, the core's
-    #: ``orbital_contributions``), constant over each class.
+    #: For each canonical operation, the first operation of its class.
+    class_first: np.ndarray
+    #: Γ_3N per unshifted atom for each class: 2cos θ ± 1 (l = 1, the core's
+    #: ``orbital_contributions``), exact integers where it is integral.
     cartesian: np.ndarray
+    #: True when every entry of ``cartesian`` is an integer: the characters are then
+    #: integers, written without a per-value check.
+    integral: bool
+    #: ``(n_classes, 3 n_irreps)`` and ``(3 n_irreps,)``: class counts @ ``reduce`` +
+    #: ``offset`` = the raw multiplicities of Γ(atoms), Γ_3N and Γ_vib side by side (the
+    #: reduction formula composed with Γ_3N = counts × ``cartesian`` and
+    #: Γ_vib = Γ_3N − Γ_trans − Γ_rot).
+    reduce: np.ndarray
+    offset: np.ndarray
     chiral: bool
 
 
@@ -50,9 +63,22 @@ def _plan(table) -> _Plan:
 def _build_plan(table) -> _Plan:
     proper, angle, _ = describe(table.operations)
     proper = np.ascontiguousarray(proper, dtype=bool)
-    cart = _core.orbital_contributions(proper, np.ascontiguousarray(angle, dtype=np.float64), 1)
-    cart.setflags(write=False)
-    return _Plan(table.operation_class, table.class_representatives, cart, bool(proper.all()))
+    first = table.class_representatives
+    cart = _core.orbital_contributions(
+        np.ascontiguousarray(proper[first]), np.ascontiguousarray(angle[first], dtype=np.float64), 1
+    )
+    rounded = np.rint(cart)
+    integral = bool((np.abs(cart - rounded) < 1e-9).all())
+    cart = rounded if integral else cart
+    red = table.reduction_matrix
+    cart_red = cart[:, None] * red
+    zeros = np.zeros(red.shape[1])
+    reduce = np.hstack([red, cart_red, cart_red])
+    offset = np.concatenate([zeros, zeros, -(external_characters(table) @ red)])
+    class_first = first[table.operation_class]
+    for a in (cart, class_first, reduce, offset):
+        a.setflags(write=False)
+    return _Plan(first, class_first, cart, integral, reduce, offset, bool(proper.all()))
 
 
 def summary_rows(table, unshifted: np.ndarray, n_atoms: np.ndarray) -> list:
@@ -63,7 +89,7 @@ def summary_rows(table, unshifted: np.ndarray, n_atoms: np.ndarray) -> list:
     table : CharacterTable
         The group's table; each structure's h operations are in its canonical order.
     unshifted : array_like, shape (k, h)
-        Atoms each operation leaves unshifted.
+        Atoms each operation leaves unshifted (whole numbers).
     n_atoms : array_like, shape (k,)
 
     Returns
@@ -75,33 +101,42 @@ def summary_rows(table, unshifted: np.ndarray, n_atoms: np.ndarray) -> list:
     """
     plan = _plan(table)
     u = np.asarray(unshifted, dtype=np.float64)
-    k = len(u)
     # Γ(atoms): the unshifted atoms; Γ_3N: times the contribution of x, y, z per atom, which
     # is constant over a class, so the counts alone must agree within each class
+    ok = (u == u[:, plan.class_first]).all(axis=1)
     atoms = u[:, plan.first]
-    ok = (np.abs(u - atoms[:, plan.op_class]) <= _CLASS_ATOL).all(axis=1)
-    chars = np.concatenate([atoms, atoms * plan.cartesian[plan.first]])
-    mult, reduced = table.reduce_rows(chars)
-    cart = chars[k:]
-    m_vib, modes, ok_vib, vib_chars = reduce_vibrations(table, cart, n_atoms)
-    ok &= reduced[:k] & reduced[k:] & ok_vib
+    cart = atoms * plan.cartesian
+    # Γ(atoms), Γ_3N and Γ_vib reduced in one product
+    mult, reduced = table.round_multiplicities(atoms @ plan.reduce + plan.offset)
+    ok &= reduced
+    m = len(table.irreps)
+    if not table.spans_class_functions:
+        raw = atoms @ plan.reduce[:, : 2 * m]
+        ok &= ~table.unresolved_rows(atoms, raw[:, :m])
+        ok &= ~table.unresolved_rows(cart, raw[:, m:])
+    modes, spans = vibration_spans(table, mult[:, 2 * m :], n_atoms)
+    ok &= spans
+    vib_chars = vibration_characters(table, cart)
+    atoms_json = atoms.astype(np.int64).tolist()
+    cart_json = cart.astype(np.int64).tolist() if plan.integral else json_number_rows(cart)
     labels = table.labels
-    as_json = json_number_rows(chars)
-    as_irreps = [{lab: v for lab, v in zip(labels, row) if v} for row in mult.tolist()]
     sigma = int(table.symmetry_number)
     rows: list = []
-    for r, (vib, n_modes) in enumerate(zip(m_vib.tolist(), modes.tolist())):
+    for r, (counts, n_modes) in enumerate(zip(mult.tolist(), modes.tolist())):
         if not ok[r]:
             rows.append(None)
             continue
+        atoms_irreps = {lab: v for lab, v in zip(labels, counts[:m]) if v}
+        cart_irreps = {lab: v for lab, v in zip(labels, counts[m : 2 * m]) if v}
+        vib = vibrations_from_counts(table, counts[2 * m :], n_modes, vib_chars[r])
         rows.append(
             {
                 "classes": table.class_dicts(),
                 "representations": {
-                    "atoms": {"characters": as_json[r], "irreps": as_irreps[r]},
-                    "cartesian": {"characters": as_json[k + r], "irreps": as_irreps[k + r]},
+                    "atoms": {"characters": atoms_json[r], "irreps": atoms_irreps},
+                    "cartesian": {"characters": cart_json[r], "irreps": cart_irreps},
                 },
-                "vibrations": vibrations_from_counts(table, vib, n_modes, vib_chars[r]).to_dict(),
+                "vibrations": vib.to_dict(),
                 "symmetry_number": sigma,
                 "chiral": plan.chiral,
             }

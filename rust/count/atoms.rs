@@ -2,7 +2,7 @@
 //! representations.
 
 use super::orbitals::orbital_character;
-use super::{apply, check_op_lengths, close, map_chunks, sub, tol_squared, Op};
+use super::{apply, check_op_lengths, close, invalid, map_chunks, sub, tol_squared, Op};
 use crate::error::Result;
 
 /// Per-operation sums of `weight(i)` over the atoms unshifted by each operation.
@@ -54,6 +54,53 @@ pub fn count_unshifted(
     tol: f64,
 ) -> Vec<u64> {
     count_weighted(positions, center, ops, tol, 1, |_, slot| slot[0] += 1)
+}
+
+/// Atoms each operation of a group leaves unshifted, counted once per class when
+/// `per_class`: the first operation of each class is counted and stands for its class (huge
+/// structures, where detection verified only the generators, as verification stands on
+/// them); otherwise every operation is counted. `class_of[k]` names the class of operation
+/// k by its first operation's index (the core's convention: the smallest index in the
+/// class), so the first operation of each class is the one with `class_of[k] == k`.
+///
+/// # Errors
+/// `InvalidArgument` when `class_of` does not have one entry per operation or names an
+/// operation that is not the first of its class.
+pub fn count_unshifted_by_class(
+    positions: &[[f64; 3]],
+    center: [f64; 3],
+    ops: &[[[f64; 3]; 3]],
+    class_of: &[usize],
+    per_class: bool,
+    tol: f64,
+) -> Result<Vec<u64>> {
+    if !per_class {
+        return Ok(count_unshifted(positions, center, ops, tol));
+    }
+    if class_of.len() != ops.len() {
+        return Err(invalid(
+            "class_of",
+            format!("{} entries for {} operations", class_of.len(), ops.len()),
+        ));
+    }
+    let firsts: Vec<usize> = (0..ops.len()).filter(|&k| class_of[k] == k).collect();
+    let mats: Vec<[[f64; 3]; 3]> = firsts.iter().map(|&k| ops[k]).collect();
+    let counts = count_unshifted(positions, center, &mats, tol);
+    let mut by_first = vec![None; ops.len()];
+    for (&k, &n) in firsts.iter().zip(&counts) {
+        by_first[k] = Some(n);
+    }
+    class_of
+        .iter()
+        .map(|&c| {
+            by_first.get(c).copied().flatten().ok_or_else(|| {
+                invalid(
+                    "class_of",
+                    format!("operation {c} is not the first of a class"),
+                )
+            })
+        })
+        .collect()
 }
 
 /// Characters of the Cartesian-displacement representation (3 per atom): the number of

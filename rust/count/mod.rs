@@ -33,7 +33,7 @@ mod tests;
 mod vectors;
 
 pub use crate::parallel::CHUNK;
-pub use atoms::{cartesian_characters, count_unshifted};
+pub use atoms::{cartesian_characters, count_unshifted, count_unshifted_by_class};
 pub use bonds::{bond_characters, find_bonds};
 pub use orbitals::{orbital_character, orbital_contributions, shell_characters};
 pub use orbits::orbits;

@@ -26,6 +26,45 @@ pub(super) fn count_unshifted<'py>(
     Ok(out.into_pyarray(py))
 }
 
+/// Unshifted atoms per operation of a group (float64), every operation counted or, with
+/// `per_class`, the first of each class standing for its class (`class_of`: the first
+/// operation's index of each operation's class).
+#[pyfunction]
+pub(super) fn unshifted_atoms<'py>(
+    py: Python<'py>,
+    positions: PyReadonlyArray2<'py, f64>,
+    center: [f64; 3],
+    operations: PyReadonlyArray3<'py, f64>,
+    class_of: PyReadonlyArray1<'py, i64>,
+    per_class: bool,
+    tol: f64,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let pos = coords(&positions, "positions")?;
+    let ops = matrices(&operations, "operations")?;
+    let classes = slice1(&class_of, "class_of")?
+        .iter()
+        .map(|&c| {
+            usize::try_from(c)
+                .map_err(|_| PyValueError::new_err(format!("class_of: negative index {c}")))
+        })
+        .collect::<PyResult<Vec<usize>>>()?;
+    let run = || count::count_unshifted_by_class(pos, center, ops, &classes, per_class, tol);
+    let counts = if pos.len() * ops.len() <= SMALL_WORK {
+        run()
+    } else {
+        py.detach(run)
+    }
+    .map_err(CoreError)?;
+    Ok(PyArray1::from_iter(
+        py,
+        counts.into_iter().map(|c| c as f64),
+    ))
+}
+
+/// Up to this many atom-operation pairs a count runs without releasing the GIL (it takes
+/// about a microsecond).
+const SMALL_WORK: usize = 4096;
+
 /// Characters of a basis of angular-momentum shells on the atoms, per operation.
 #[pyfunction]
 #[allow(clippy::too_many_arguments)]
@@ -169,7 +208,7 @@ pub(super) fn orbits<'py>(
     py: Python<'py>,
     n_atoms: usize,
     permutations: PyReadonlyArray2<'py, i64>,
-) -> PyResult<Bound<'py, PyArray1<u32>>> {
+) -> PyResult<Bound<'py, PyArray1<i64>>> {
     let shape = permutations.shape().to_vec();
     let raw = permutations
         .as_slice()
@@ -187,8 +226,12 @@ pub(super) fn orbits<'py>(
         }
         perms.push(p);
     }
-    let out = py
-        .detach(|| count::orbits(n_atoms, &perms))
-        .map_err(CoreError)?;
-    Ok(out.into_pyarray(py))
+    let run = || count::orbits(n_atoms, &perms);
+    let out = if n_atoms * perms.len() <= SMALL_WORK {
+        run()
+    } else {
+        py.detach(run)
+    }
+    .map_err(CoreError)?;
+    Ok(PyArray1::from_iter(py, out.into_iter().map(i64::from)))
 }

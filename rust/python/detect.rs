@@ -32,6 +32,7 @@ pub(super) struct Detection {
     permutations: Py<PyArray2<i64>>,
     deviations: Py<PyArray1<f64>>,
     max_deviation: f64,
+    best_verified_improper: Option<f64>,
 }
 
 /// The canonical operations of one group and their arithmetic (see _core.pyi).
@@ -122,6 +123,7 @@ pub(super) fn find_point_group(
     }
     .map_err(CoreError)?;
     let n = pos.len();
+    let best_verified_improper = sym.best_verified_improper();
     let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
     let proper: Vec<bool> = sym.ops.iter().map(|o| o.proper).collect();
     let angle: Vec<f64> = sym.ops.iter().map(|o| o.angle).collect();
@@ -141,6 +143,7 @@ pub(super) fn find_point_group(
         permutations: index_rows(py, &sym.permutations, n)?.unbind(),
         deviations: Array1::from(sym.deviations).into_pyarray(py).unbind(),
         max_deviation: sym.max_deviation,
+        best_verified_improper,
     })
 }
 

@@ -9,19 +9,20 @@ use numpy::ndarray::Array1;
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1};
 use pyo3::prelude::*;
 
-pub(super) type Nuclides<'py> = (Bound<'py, PyArray1<i64>>, Bound<'py, PyArray1<f64>>);
+pub(super) type Nuclides<'py> = (Bound<'py, PyArray1<i64>>, Option<Bound<'py, PyArray1<f64>>>);
 
-/// Atomic numbers and nuclide masses (u; NaN for an element symbol) of symbols that name an
-/// element or a nuclide (`D`, `T`); the error names the position of a bad one.
+/// Atomic numbers and masses (u) of symbols that name an element or a nuclide (`D`, `T`):
+/// the masses are None when no symbol names a nuclide, else the nuclide masses with the
+/// standard atomic weight for element symbols. The error names the position of a bad one.
 #[pyfunction]
 pub(super) fn nuclides<'py>(py: Python<'py>, symbols: Vec<String>) -> PyResult<Nuclides<'py>> {
     let mut numbers = Vec::with_capacity(symbols.len());
-    let mut masses = Vec::with_capacity(symbols.len());
+    let mut given = Vec::with_capacity(symbols.len());
     for (i, s) in symbols.iter().enumerate() {
         match structure::nuclide(s) {
             Ok((z, m)) => {
                 numbers.push(z);
-                masses.push(m.unwrap_or(f64::NAN));
+                given.push(m);
             }
             Err(e) => {
                 let class = py
@@ -31,10 +32,18 @@ pub(super) fn nuclides<'py>(py: Python<'py>, symbols: Vec<String>) -> PyResult<N
             }
         }
     }
-    Ok((
-        Array1::from(numbers).into_pyarray(py),
-        Array1::from(masses).into_pyarray(py),
-    ))
+    let masses = if given.iter().any(Option::is_some) {
+        let standard = structure::standard_masses(&numbers).map_err(CoreError)?;
+        let m: Vec<f64> = given
+            .iter()
+            .zip(standard)
+            .map(|(g, std)| g.unwrap_or(std))
+            .collect();
+        Some(Array1::from(m).into_pyarray(py))
+    } else {
+        None
+    };
+    Ok((Array1::from(numbers).into_pyarray(py), masses))
 }
 
 pub(super) type SpeciesData<'py> = (Bound<'py, PyArray1<i64>>, Vec<String>);

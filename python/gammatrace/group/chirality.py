@@ -53,16 +53,6 @@ def _best_improper(structure, center, ops, proper, tol) -> float | None:
     return float(np.min(devs))
 
 
-def _best_verified_improper(proper, verified, deviations) -> float | None:
-    """The smallest deviation among the improper operations detection verified (each
-    measured as mapping it atom by atom does), or None when it verified none (or, for a
-    hand-built SymmetryData, measured nothing)."""
-    if deviations is None:
-        return None
-    devs = np.asarray(deviations)[~np.asarray(proper)[verified]]
-    return float(devs.min()) if len(devs) else None
-
-
 def improper_within(sym: SymmetryData) -> float | None:
     """The smallest tolerance (Å) at which the structure has an improper operation.
 
@@ -86,7 +76,9 @@ def improper_within(sym: SymmetryData) -> float | None:
     """
     s = sym.structure
     if not sym.chiral:
-        best = _best_verified_improper(sym.proper, sym.verified_operations, sym.deviations)
+        # the core's fold over the improper operations detection verified (None when it
+        # verified none, or for a hand-built SymmetryData, which measured nothing)
+        best = sym.best_verified_improper
         if best is not None:
             return best
         return _best_improper(s, sym.center, sym.operations, sym.proper, sym.tol)

@@ -184,6 +184,7 @@ class SymmetryData:
             generator_permutations=_frozen(perms),
             deviations=None,  # not measured: users bring their own operations
             max_deviation=0.0,
+            best_verified_improper=None,
         )
 
     def _set(self, **values: Any) -> None:
@@ -219,6 +220,8 @@ class SymmetryData:
             generator_permutations=raw.permutations,
             deviations=raw.deviations,
             max_deviation=float(raw.max_deviation),
+            best_verified_improper=raw.best_verified_improper,
+            class_first=raw.class_of,
         )
         return self
 
@@ -260,6 +263,12 @@ class SymmetryData:
             self.op_class, tuple(c.label for c in self.table.classes), self.point_group
         )
 
+    @cached_property
+    def class_first(self) -> np.ndarray:
+        """``int64 (h,)``: for each operation, the index of the first operation of its class
+        (detection's ``class_of``)."""
+        return _frozen(self.class_representatives[self.op_class])
+
     @property
     def classes(self) -> list:
         """The table's classes (``ClassInfo``), in print order."""
@@ -276,10 +285,10 @@ class SymmetryData:
         2 for D∞h, 1 for C∞v and for one atom)."""
         return int(self.table.symmetry_number)
 
-    @property
+    @cached_property
     def chiral(self) -> bool:
         """True when the group has no improper operation (no σ, i or S_n)."""
-        return bool(np.all(self.proper))
+        return bool(self.proper.all())
 
     # ------------------------------------------------------------------ permutations
     @property
@@ -328,16 +337,16 @@ class SymmetryData:
     def unshifted_atoms(self) -> np.ndarray:
         """Atoms each operation leaves unshifted (``float64 (h,)``), counted once in the core:
         every operation when detection verified every one; otherwise (huge structures) the
-        first operation of each class, standing for its class (the rule of the batch core,
-        ``batch::unshifted_atoms``)."""
-        if self.all_verified:
-            ops = self.operations
-        else:
-            ops = np.ascontiguousarray(self.operations[self.class_representatives])
-        counts = _core.count_unshifted(self.positions, tuple(self.center), ops, self.tol)
-        counts = counts.astype(np.float64)
-        if not self.all_verified:
-            counts = counts[self.op_class]
+        first operation of each class, standing for its class (one rule for single
+        structures and batches, ``count::count_unshifted_by_class``)."""
+        counts = _core.unshifted_atoms(
+            self.positions,
+            tuple(self.center.tolist()),
+            self.operations,
+            self.class_first,
+            not self.all_verified,
+            self.tol,
+        )
         return _frozen(counts)
 
     def __repr__(self) -> str:

@@ -83,11 +83,10 @@ def nuclides(symbols: Sequence[str]) -> tuple[np.ndarray, np.ndarray | None]:
     StructureError
         For an unknown symbol; the message names its position.
     """
-    nums, masses = _core.nuclides([str(s).strip() for s in symbols])
-    given = ~np.isnan(masses)
-    if not given.any():
-        return nums, None
-    return nums, np.where(given, masses, STANDARD_MASSES[nums])
+    try:
+        return _core.nuclides(symbols)
+    except TypeError:  # not a sequence of str: numpy strings, numbers written as symbols...
+        return _core.nuclides([str(s) for s in symbols])
 
 
 def species(numbers: np.ndarray, masses: np.ndarray | None = None) -> tuple[np.ndarray, list]:

@@ -19,6 +19,10 @@ from .elements import STANDARD_MASSES, element_data, nuclides, species
 __all__ = ["FrameError", "Structure", "coerce_elements", "coerce_positions"]
 
 
+#: The ``pbc`` of a structure without a periodic cell.
+_NOT_PERIODIC = (False, False, False)
+
+
 @dataclass(frozen=True)
 class Structure:
     """One molecule or cluster.
@@ -56,7 +60,7 @@ class Structure:
     info: dict = field(default_factory=dict)
     masses: np.ndarray | None = None
     cell: np.ndarray | None = None
-    pbc: tuple = (False, False, False)
+    pbc: tuple = _NOT_PERIODIC
 
     def __post_init__(self) -> None:
         if self.masses is not None:
@@ -71,8 +75,9 @@ class Structure:
             if c.shape != (3, 3):
                 raise InputError(f"cell: expected shape (3, 3), got {c.shape}")
             object.__setattr__(self, "cell", c)
-        pbc = tuple(bool(p) for p in np.broadcast_to(np.asarray(self.pbc, dtype=bool), (3,)))
-        object.__setattr__(self, "pbc", pbc)
+        if self.pbc is not _NOT_PERIODIC:
+            pbc = tuple(bool(p) for p in np.broadcast_to(np.asarray(self.pbc, dtype=bool), (3,)))
+            object.__setattr__(self, "pbc", pbc)
 
     @property
     def n_atoms(self) -> int:
@@ -142,29 +147,33 @@ class FrameError:
 def coerce_elements(elements: Any, n_expected: int | None) -> tuple[np.ndarray, np.ndarray | None]:
     """Atomic numbers and masses (None unless a nuclide symbol such as ``D`` is given) of
     element symbols or atomic numbers."""
-    arr = np.asarray(elements)
-    masses = None
+    if isinstance(elements, (list, tuple)) and elements and isinstance(elements[0], str):
+        nums, masses = nuclides(elements)  # the common case, without a numpy array between
+    else:
+        nums, masses = _elements_of_array(np.asarray(elements))
+    if n_expected is not None and nums.shape[0] != n_expected:
+        raise StructureError(
+            f"{nums.shape[0]} elements but {n_expected} coordinate rows: they must match"
+        )
+    return nums, masses
+
+
+def _elements_of_array(arr: np.ndarray) -> tuple[np.ndarray, np.ndarray | None]:
     if arr.ndim != 1:
         raise InputError(f"symbols/numbers: expected a 1-D sequence, got shape {arr.shape}")
     if arr.dtype.kind in "iu":
         if arr.dtype.kind == "u" and arr.size and arr.max() > np.iinfo(np.int64).max:
             k = int(np.argmax(arr))
             raise StructureError(f"atom {k} has atomic number {arr[k]}, outside 1..=118")
-        nums = np.ascontiguousarray(arr, dtype=np.int64)
-    elif arr.dtype.kind in "UOS":
-        nums, masses = nuclides([str(s) for s in arr.tolist()])
-    elif arr.size == 0:
-        nums = np.zeros(0, dtype=np.int64)
-    else:
-        raise InputError(
-            f"symbols/numbers: expected element symbols or integer atomic numbers, got dtype "
-            f"{arr.dtype}"
-        )
-    if n_expected is not None and nums.shape[0] != n_expected:
-        raise StructureError(
-            f"{nums.shape[0]} elements but {n_expected} coordinate rows: they must match"
-        )
-    return nums, masses
+        return np.ascontiguousarray(arr, dtype=np.int64), None
+    if arr.dtype.kind in "UOS":
+        return nuclides([str(s) for s in arr.tolist()])
+    if arr.size == 0:
+        return np.zeros(0, dtype=np.int64), None
+    raise InputError(
+        f"symbols/numbers: expected element symbols or integer atomic numbers, got dtype "
+        f"{arr.dtype}"
+    )
 
 
 def coerce_positions(positions: Any) -> np.ndarray:

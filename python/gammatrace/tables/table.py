@@ -321,6 +321,12 @@ class CharacterTable:
         """
         return np.asarray(chars, dtype=np.float64) @ self._reduction
 
+    @property
+    def reduction_matrix(self) -> np.ndarray:
+        """``(n_classes, n_irreps)``, read-only: characters @ this = the raw multiplicities
+        (:meth:`raw_multiplicities`)."""
+        return self._reduction
+
     @cached_property
     def _reduction(self) -> np.ndarray:
         """``(n_classes, n_irreps)``: characters @ this = the raw multiplicities (prepared
@@ -330,12 +336,12 @@ class CharacterTable:
         return m
 
     @cached_property
-    def _spans_class_functions(self) -> bool:
+    def spans_class_functions(self) -> bool:
         """True when every set of characters is a combination of the rows (as many irreps as
         classes, nothing outside the table's reach): then the back-check cannot fail."""
         return not self._unresolved and len(self.irreps) == len(self.classes)
 
-    def _unresolved_rows(self, arr: np.ndarray, raw: np.ndarray) -> np.ndarray:
+    def unresolved_rows(self, arr: np.ndarray, raw: np.ndarray) -> np.ndarray:
         """Rows (of ``arr``, 2-D) that Σ_i n_i χ_i, with the raw multiplicities, misses.
 
         The sum gives the characters back exactly when they lie in the span of the rows:
@@ -343,7 +349,7 @@ class CharacterTable:
         angular momentum above l = 5 is present. The tolerance per class, 1e-6 (1 + Σ_i
         |χ_i(c)|), leaves room for rounding in the characters.
         """
-        if self._spans_class_functions:
+        if self.spans_class_functions:
             return np.zeros(len(arr), dtype=bool)
         back = raw @ self.character_matrix
         tol = _INTEGER_TOL * (1.0 + np.abs(self.character_matrix).sum(axis=0))
@@ -416,7 +422,7 @@ class CharacterTable:
         """
         chars = self._check_chars(chars_per_class, 1)
         raw = self.raw_multiplicities(chars)
-        if self._unresolved_rows(chars[None], raw[None])[0]:
+        if self.unresolved_rows(chars[None], raw[None])[0]:
             raise ReductionError(self._unresolved_message(what, chars, raw))
         n = np.round(raw)
         if np.abs(raw - n).max() > _INTEGER_TOL or (n < 0).any():
@@ -428,10 +434,20 @@ class CharacterTable:
         ``mult`` ``int64 (k, n_irreps)`` and ``ok`` False for a row that :meth:`reduce` would
         refuse (not integers within 1e-6, negative, or outside what the table resolves)."""
         arr = np.asarray(chars, dtype=np.float64)
-        raw = self.raw_multiplicities(arr)
+        raw = arr @ self._reduction
+        mult, ok = self.round_multiplicities(raw)
+        if not self.spans_class_functions:
+            ok &= ~self.unresolved_rows(arr, raw)
+        return mult, ok
+
+    @staticmethod
+    def round_multiplicities(raw: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """``(mult, ok)`` of raw multiplicities ``(k, n)``: the nearest integers (int64) and,
+        per row, whether every entry is a non-negative integer within 1e-6 (the check of
+        :meth:`reduce_rows`, for callers that form the raw multiplicities themselves)."""
         n = np.rint(raw)
-        ok = (np.abs(raw - n).max(axis=1, initial=0.0) <= _INTEGER_TOL) & (n >= 0).all(axis=1)
-        ok &= ~self._unresolved_rows(arr, raw)
+        # an integer n is refused when negative, i.e. when −n ≥ 1: one comparison for both
+        ok = (np.maximum(np.abs(raw - n), -n) <= _INTEGER_TOL).all(axis=1)
         return n.astype(np.int64), ok
 
     def reduce_many(self, chars) -> np.ndarray:
@@ -453,7 +469,7 @@ class CharacterTable:
         """
         arr = self._check_chars(chars, 2)
         raw = self.raw_multiplicities(arr)
-        outside = np.flatnonzero(self._unresolved_rows(arr, raw))
+        outside = np.flatnonzero(self.unresolved_rows(arr, raw))
         if len(outside):
             row = int(outside[0])
             msg = self._unresolved_message(f"row {row}", arr[row], raw[row])
