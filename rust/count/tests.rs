@@ -1017,3 +1017,37 @@ fn parallel_results_equal_serial_results() {
     let sum: Vec<f64> = ba.iter().zip(&bb).map(|(x, y)| x + y).collect();
     assert_eq!(one.2, sum);
 }
+
+// ---------- counting once per class ----------
+
+/// Water-like C2v: O on the C2 axis (z), two H in the xz plane. Classes E, C2, σv(xz),
+/// σv'(yz), each of one operation; here C2v's operations are listed twice over to give
+/// classes of two (first operation = smaller index), as a huge structure's counting sees them.
+#[test]
+fn counting_once_per_class_spreads_the_first_operations_count() {
+    let pos = [[0.0, 0.0, 0.12], [0.76, 0.0, -0.47], [-0.76, 0.0, -0.47]];
+    let c2 = rot([0.0, 0.0, 1.0], 180.0);
+    let sxz = refl([0.0, 1.0, 0.0]);
+    let syz = refl([1.0, 0.0, 0.0]);
+    let ops = [EYE, c2, sxz, syz];
+    let all = count_unshifted_by_class(&pos, [0.0; 3], &ops, &[0, 1, 2, 3], false, 0.01).unwrap();
+    assert_eq!(all, vec![3, 1, 3, 1]);
+    // E, C2 and σv(xz) each stand for a class: operation 3 (σv(yz)) is put in σv(xz)'s class
+    // on purpose, so that its count comes from operation 2 and not from itself
+    let spread = count_unshifted_by_class(&pos, [0.0; 3], &ops, &[0, 1, 2, 2], true, 0.01).unwrap();
+    assert_eq!(spread, vec![3, 1, 3, 3]);
+    // every operation counted, the classes then do not matter
+    let plain = count_unshifted_by_class(&pos, [0.0; 3], &ops, &[0, 1, 2, 2], false, 0.01).unwrap();
+    assert_eq!(plain, all);
+}
+
+#[test]
+fn counting_once_per_class_refuses_a_class_without_its_first_operation() {
+    let pos = [[0.0, 0.0, 0.0]];
+    let ops = [EYE, rot([0.0, 0.0, 1.0], 180.0)];
+    // operation 1 names operation 2 as its class's first: there is no operation 2
+    let err = count_unshifted_by_class(&pos, [0.0; 3], &ops, &[0, 2], true, 0.01).unwrap_err();
+    assert!(matches!(err, Error::InvalidArgument { .. }), "{err:?}");
+    let short = count_unshifted_by_class(&pos, [0.0; 3], &ops, &[0], true, 0.01).unwrap_err();
+    assert!(matches!(short, Error::InvalidArgument { .. }), "{short:?}");
+}
