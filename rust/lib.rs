@@ -18,6 +18,7 @@ pub mod lookup;
 pub mod ops;
 pub mod parallel;
 pub mod readers;
+pub mod reduce;
 pub mod structure;
 #[cfg(test)]
 mod testutil;

@@ -30,6 +30,7 @@ from .spectroscopy import (
     vibrations_from_counts,
 )
 from .tables._ops import describe
+from .tables.table import INTEGER_TOL
 
 __all__ = ["summary_rows"]
 
@@ -100,15 +101,16 @@ def summary_rows(table, unshifted: np.ndarray, n_atoms: np.ndarray) -> list:
         within a class or the characters do not reduce.
     """
     plan = _plan(table)
-    u = np.asarray(unshifted, dtype=np.float64)
+    u = np.ascontiguousarray(unshifted, dtype=np.float64)
     # Γ(atoms): the unshifted atoms; Γ_3N: times the contribution of x, y, z per atom, which
     # is constant over a class, so the counts alone must agree within each class
-    ok = (u == u[:, plan.class_first]).all(axis=1)
+    # the counts must agree within each class; Γ(atoms), Γ_3N and Γ_vib reduced in one
+    # product in the core (rust/reduce.rs)
+    mult, ok = _core.reduce_counts(
+        u, plan.class_first, plan.first, plan.reduce, plan.offset, INTEGER_TOL
+    )
     atoms = u[:, plan.first]
     cart = atoms * plan.cartesian
-    # Γ(atoms), Γ_3N and Γ_vib reduced in one product
-    mult, reduced = table.round_multiplicities(atoms @ plan.reduce + plan.offset)
-    ok &= reduced
     m = len(table.irreps)
     if not table.spans_class_functions:
         raw = atoms @ plan.reduce[:, : 2 * m]

@@ -61,6 +61,48 @@ pub(super) fn unshifted_atoms<'py>(
     ))
 }
 
+/// `(mult, ok)` of [`reduce_counts`].
+pub(super) type ReducedArrays<'py> = (Bound<'py, PyArray2<i64>>, Bound<'py, PyArray1<bool>>);
+
+/// Multiplicities of k structures of one group from their unshifted counts through a
+/// prepared linear map (rust/reduce.rs): `(mult int64 (k, m), ok bool (k,))`.
+#[pyfunction]
+pub(super) fn reduce_counts<'py>(
+    py: Python<'py>,
+    counts: PyReadonlyArray2<'py, f64>,
+    class_first: PyReadonlyArray1<'py, i64>,
+    first: PyReadonlyArray1<'py, i64>,
+    map: PyReadonlyArray2<'py, f64>,
+    offset: PyReadonlyArray1<'py, f64>,
+    tol: f64,
+) -> PyResult<ReducedArrays<'py>> {
+    let k = counts.shape()[0];
+    let h = counts.shape()[1];
+    let m = offset.len();
+    let index = |a: &PyReadonlyArray1<'py, i64>, name: &str| -> PyResult<Vec<usize>> {
+        slice1(a, name)?
+            .iter()
+            .map(|&i| {
+                usize::try_from(i)
+                    .map_err(|_| PyValueError::new_err(format!("{name}: negative index {i}")))
+            })
+            .collect()
+    };
+    let cf = index(&class_first, "class_first")?;
+    let fi = index(&first, "first")?;
+    let raw = counts
+        .as_slice()
+        .map_err(|_| PyValueError::new_err("counts: array must be C-contiguous"))?;
+    let mp = map
+        .as_slice()
+        .map_err(|_| PyValueError::new_err("map: array must be C-contiguous"))?;
+    let off = slice1(&offset, "offset")?;
+    let out = crate::reduce::reduce_counts(raw, h, &cf, &fi, mp, off, tol).map_err(CoreError)?;
+    let mult = numpy::ndarray::Array2::from_shape_vec((k, m), out.mult)
+        .map_err(|e| PyValueError::new_err(e.to_string()))?;
+    Ok((mult.into_pyarray(py), PyArray1::from_vec(py, out.ok)))
+}
+
 /// Up to this many atom-operation pairs a count runs without releasing the GIL (it takes
 /// about a microsecond).
 const SMALL_WORK: usize = 4096;

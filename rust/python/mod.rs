@@ -97,6 +97,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(detect::find_point_group, m)?)?;
     m.add_function(wrap_pyfunction!(count::count_unshifted, m)?)?;
     m.add_function(wrap_pyfunction!(count::unshifted_atoms, m)?)?;
+    m.add_function(wrap_pyfunction!(count::reduce_counts, m)?)?;
     m.add_function(wrap_pyfunction!(detect::map_operations, m)?)?;
     m.add_function(wrap_pyfunction!(count::shell_characters, m)?)?;
     m.add_function(wrap_pyfunction!(count::pi_characters, m)?)?;

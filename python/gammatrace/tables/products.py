@@ -51,6 +51,7 @@ import numpy as np
 from ..errors import InputError, ReductionError
 from ._ops import locate
 from .registry import get_table
+from .table import INTEGER_TOL
 
 __all__ = [
     "MAX_POWER",
@@ -75,7 +76,6 @@ __all__ = [
 #: no band is of interest and double precision would blur the reduction of the larger irreps).
 MAX_POWER = 200
 
-_INTEGER_TOL = 1e-6
 _AXES = ("x", "y", "z")
 # ASCII spellings of the Greek letters of the linear groups' labels (longest first).
 _GREEK_ALIASES = (("Sigma", "Σ"), ("Delta", "Δ"), ("Gamma", "Γ"), ("Phi", "Φ"), ("Pi", "Π"))
@@ -479,7 +479,7 @@ def _totally_symmetric_content(table, factors, what: str) -> int:
         chars = chars * table.character_matrix[_index(table, lab)]
     raw = float(table.raw_multiplicities(chars)[_index(table, totally_symmetric(table))])
     n = round(raw)
-    if abs(raw - n) > _INTEGER_TOL or n < 0:
+    if abs(raw - n) > INTEGER_TOL or n < 0:
         raise ReductionError(f"{what}: totally symmetric content {raw:.6g} is not a whole number")
     return n
 

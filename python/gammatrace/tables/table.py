@@ -25,6 +25,7 @@ from functools import cached_property
 
 import numpy as np
 
+from .. import _core
 from ..errors import ReductionError
 from ..render import write_html, write_latex, write_markdown, write_text
 from ..render.tables import table_grid
@@ -36,7 +37,8 @@ from .spherical import MAX_L
 
 __all__ = ["CharacterTable"]
 
-_INTEGER_TOL = 1e-6
+#: How far from an integer a multiplicity may lie and still count as that integer.
+INTEGER_TOL = 1e-6
 
 
 def _fmt_number(x: float) -> str:
@@ -352,7 +354,7 @@ class CharacterTable:
         if self.spans_class_functions:
             return np.zeros(len(arr), dtype=bool)
         back = raw @ self.character_matrix
-        tol = _INTEGER_TOL * (1.0 + np.abs(self.character_matrix).sum(axis=0))
+        tol = INTEGER_TOL * (1.0 + np.abs(self.character_matrix).sum(axis=0))
         return (np.abs(back - arr) > tol).any(axis=1)
 
     def _unresolved_message(self, what: str, chars, raw) -> str:
@@ -421,34 +423,40 @@ class CharacterTable:
         {'A1': 3, 'A2': 1, 'E': 4}
         """
         chars = self._check_chars(chars_per_class, 1)
-        raw = self.raw_multiplicities(chars)
-        if self.unresolved_rows(chars[None], raw[None])[0]:
-            raise ReductionError(self._unresolved_message(what, chars, raw))
-        n = np.round(raw)
-        if np.abs(raw - n).max() > _INTEGER_TOL or (n < 0).any():
+        mult, ok = self.reduce_rows(chars[None])
+        if not ok[0]:
+            raw = self.raw_multiplicities(chars)
+            if self.unresolved_rows(chars[None], raw[None])[0]:
+                raise ReductionError(self._unresolved_message(what, chars, raw))
             raise ReductionError(self._residual_message(what, chars, raw))
-        return {lab: int(v) for lab, v in zip(self._labels, n) if v != 0}
+        return {lab: v for lab, v in zip(self._labels, mult[0].tolist()) if v != 0}
 
     def reduce_rows(self, chars) -> tuple[np.ndarray, np.ndarray]:
         """Reduce many representations, flagging instead of raising: ``(mult, ok)`` with
         ``mult`` ``int64 (k, n_irreps)`` and ``ok`` False for a row that :meth:`reduce` would
         refuse (not integers within 1e-6, negative, or outside what the table resolves)."""
-        arr = np.asarray(chars, dtype=np.float64)
-        raw = arr @ self._reduction
-        mult, ok = self.round_multiplicities(raw)
+        arr = np.ascontiguousarray(chars, dtype=np.float64)
+        every = self._every_class
+        # the core's rounding rule (rust/reduce.rs), shared with the summary of many frames
+        mult, ok = _core.reduce_counts(
+            arr, every, every, self._reduction, self._no_offset, INTEGER_TOL
+        )
         if not self.spans_class_functions:
-            ok &= ~self.unresolved_rows(arr, raw)
+            ok &= ~self.unresolved_rows(arr, arr @ self._reduction)
         return mult, ok
 
-    @staticmethod
-    def round_multiplicities(raw: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """``(mult, ok)`` of raw multiplicities ``(k, n)``: the nearest integers (int64) and,
-        per row, whether every entry is a non-negative integer within 1e-6 (the check of
-        :meth:`reduce_rows`, for callers that form the raw multiplicities themselves)."""
-        n = np.rint(raw)
-        # an integer n is refused when negative, i.e. when −n ≥ 1: one comparison for both
-        ok = (np.maximum(np.abs(raw - n), -n) <= _INTEGER_TOL).all(axis=1)
-        return n.astype(np.int64), ok
+    @cached_property
+    def _every_class(self) -> np.ndarray:
+        """``0, 1, …, n_classes − 1``: characters per class as their own class counts."""
+        out = np.arange(len(self.classes), dtype=np.int64)
+        out.setflags(write=False)
+        return out
+
+    @cached_property
+    def _no_offset(self) -> np.ndarray:
+        out = np.zeros(len(self.irreps))
+        out.setflags(write=False)
+        return out
 
     def reduce_many(self, chars) -> np.ndarray:
         """Reduce many representations at once.
@@ -468,19 +476,19 @@ class CharacterTable:
             (the message names the row).
         """
         arr = self._check_chars(chars, 2)
+        mult, ok = self.reduce_rows(arr)
+        if ok.all():
+            return mult
         raw = self.raw_multiplicities(arr)
         outside = np.flatnonzero(self.unresolved_rows(arr, raw))
         if len(outside):
             row = int(outside[0])
             msg = self._unresolved_message(f"row {row}", arr[row], raw[row])
             raise ReductionError(f"{msg} ({len(outside)} of {len(arr)} rows fail)")
-        n = np.round(raw)
-        bad = np.flatnonzero((np.abs(raw - n).max(axis=1) > _INTEGER_TOL) | (n < 0).any(axis=1))
-        if len(bad):
-            row = int(bad[0])
-            msg = self._residual_message(f"row {row}", arr[row], raw[row])
-            raise ReductionError(f"{msg} ({len(bad)} of {len(arr)} rows fail)")
-        return n.astype(np.int64)
+        bad = np.flatnonzero(~ok)
+        row = int(bad[0])
+        msg = self._residual_message(f"row {row}", arr[row], raw[row])
+        raise ReductionError(f"{msg} ({len(bad)} of {len(arr)} rows fail)")
 
     # -- products ----------------------------------------------------------------------
 
