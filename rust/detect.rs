@@ -135,6 +135,15 @@ impl Symmetry {
         self.ops.len()
     }
 
+    /// Where each generator's permutation is among `permutations` (generators are always
+    /// verified): the orbits of the atoms are those of these permutations alone.
+    pub fn generator_rows(&self) -> Vec<usize> {
+        self.generators
+            .iter()
+            .filter_map(|g| self.verified.iter().position(|v| v == g))
+            .collect()
+    }
+
     /// The smallest deviation among the improper operations detection verified (each
     /// measured as mapping it atom by atom would); `None` when it verified none.
     pub fn best_verified_improper(&self) -> Option<f64> {

@@ -33,6 +33,7 @@ pub(super) struct Detection {
     deviations: Py<PyArray1<f64>>,
     max_deviation: f64,
     best_verified_improper: Option<f64>,
+    generator_rows: Py<PyArray1<i64>>,
 }
 
 /// The canonical operations of one group and their arithmetic (see _core.pyi).
@@ -124,6 +125,7 @@ pub(super) fn find_point_group(
     .map_err(CoreError)?;
     let n = pos.len();
     let best_verified_improper = sym.best_verified_improper();
+    let generator_rows = index_array(py, &sym.generator_rows());
     let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
     let proper: Vec<bool> = sym.ops.iter().map(|o| o.proper).collect();
     let angle: Vec<f64> = sym.ops.iter().map(|o| o.angle).collect();
@@ -144,6 +146,7 @@ pub(super) fn find_point_group(
         deviations: Array1::from(sym.deviations).into_pyarray(py).unbind(),
         max_deviation: sym.max_deviation,
         best_verified_improper,
+        generator_rows,
     })
 }
 

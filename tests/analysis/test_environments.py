@@ -148,3 +148,31 @@ def test_json_and_text_report_name_the_sets():
     assert line.startswith("  environments: C 3 (") and "atoms numbered from 1" in line
     # the two carbons shared by the rings (atoms 9 and 10) are one set of their own
     assert "9,10" in line
+
+
+@pytest.mark.parametrize(
+    "group", ["C2v", "C3v", "D3h", "D6h", "Td", "Oh", "Ih", "S6", "C5h", "D4d", "T", "Th"]
+)
+def test_orbits_of_the_generators_are_those_of_every_operation(group):
+    # Orbits under a group are those under any generating set (common practice): the core
+    # unions the generators' permutations only, and must find what every verified
+    # permutation gives. Seeds in general position give orbits of full size; the origin and a
+    # point on an axis give the smaller ones.
+    from gammatrace import _core
+    from gammatrace.io.builders import orbit_structure
+    from gammatrace.tables import get_table
+
+    rng = np.random.default_rng(7)
+    general = [[1.13, 0.37, 0.71], [0.31, 2.62, -0.58], [-1.83, 0.61, 2.37]]
+    seeds = np.r_[general, [[0.0, 0.0, 0.0], [0.0, 0.0, 1.7]]]
+    s = orbit_structure(get_table(group).operations, seeds, np.array([6, 6, 1, 8, 7]))
+    a = gt.analyze(s.numbers, s.positions @ random_rotation(rng).T)
+    assert a.point_group == group
+    sym = a.symmetry
+    assert sym.all_verified and 0 < len(sym.generator_rows) < sym.order
+    every = _core.orbits(sym.n_atoms, sym.generator_permutations)
+    assert np.array_equal(
+        _core.orbits(sym.n_atoms, sym.generator_permutations, sym.generator_rows), every
+    )
+    # and the orbits are those the seeds were built from: one set per seed (five)
+    assert every.max() + 1 == 5

@@ -72,9 +72,10 @@ def orbits(sym: SymmetryData) -> list[Orbit]:
 
 def _orbit_ids(sym: SymmetryData) -> np.ndarray:
     """Orbit of each atom (``int64 (N,)``), orbits numbered in order of their first atom:
-    one union-find pass over the verified permutations in the core."""
+    one union-find pass in the core over the generators' permutations (every verified one
+    when no generating set is known)."""
     perms = np.ascontiguousarray(sym.generator_permutations)
-    return np.asarray(_core.orbits(sym.n_atoms, perms), dtype=np.int64)
+    return _core.orbits(sym.n_atoms, perms, sym.generator_rows)
 
 
 def orbit_sets(sym: SymmetryData) -> list[np.ndarray]:

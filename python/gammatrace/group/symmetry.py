@@ -185,6 +185,7 @@ class SymmetryData:
             deviations=None,  # not measured: users bring their own operations
             max_deviation=0.0,
             best_verified_improper=None,
+            generator_rows=None,  # no generating set known: every row
         )
 
     def _set(self, **values: Any) -> None:
@@ -221,6 +222,7 @@ class SymmetryData:
             deviations=raw.deviations,
             max_deviation=float(raw.max_deviation),
             best_verified_improper=raw.best_verified_improper,
+            generator_rows=raw.generator_rows,
             class_first=raw.class_of,
         )
         return self
