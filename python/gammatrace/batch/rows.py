@@ -19,7 +19,7 @@ import numpy as np
 from ..analysis import _check_tol, analyze_structure
 from ..errors import GammatraceError
 from ..group import DEFAULT_TOL
-from ..group.chirality import SEARCH_FACTOR, tolerance_ladder
+from ..group.chirality import improper_ladder
 from ..group.orbits import species_symbols_of
 from ..io import FrameError, Structure
 from ..summary import summary_rows
@@ -42,7 +42,7 @@ def analysis_rows(
     Equal, key for key, to ``analyze(structure).to_dict()`` of each structure.
     """
     t = _check_tol(tol)
-    ladder = np.asarray(tolerance_ladder(t, SEARCH_FACTOR * t)[1:], dtype=np.float64)
+    ladder = improper_ladder(t)
     for a in range(0, len(data), chunk_size):
         yield from _chunk_rows(data.slice(a, min(a + chunk_size, len(data))), t, ladder, n_threads)
 

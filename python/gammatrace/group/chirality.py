@@ -9,6 +9,7 @@ image under the best improper operation found. ``None`` when none holds within t
 
 from __future__ import annotations
 
+import functools
 import math
 
 import numpy as np
@@ -17,7 +18,7 @@ from .. import _core
 from ..tables import LINEAR_SUBGROUP_N
 from .symmetry import VERIFY_ALL_LIMIT, SymmetryData
 
-__all__ = ["SEARCH_FACTOR", "improper_within", "tolerance_ladder"]
+__all__ = ["SEARCH_FACTOR", "improper_ladder", "improper_within", "tolerance_ladder"]
 
 #: The search for an improper operation stops at this multiple of the tolerance.
 SEARCH_FACTOR = 10.0
@@ -34,6 +35,16 @@ def tolerance_ladder(tol: float, bound: float) -> list[float]:
     """
     n = max(0, math.ceil(math.log10(bound / tol) * _STEPS - 1e-9))
     return [min(tol * 10.0 ** (j / _STEPS), bound) for j in range(n + 1)]
+
+
+@functools.lru_cache(maxsize=64)
+def improper_ladder(tol: float) -> np.ndarray:
+    """The tolerances above ``tol`` that the search for an improper operation tries
+    (:func:`tolerance_ladder` up to ``SEARCH_FACTOR`` × ``tol``, ``tol`` itself left out), as
+    the core takes them; read-only, one array per tolerance."""
+    ladder = np.asarray(tolerance_ladder(tol, SEARCH_FACTOR * tol)[1:], dtype=np.float64)
+    ladder.setflags(write=False)
+    return ladder
 
 
 def _best_improper(structure, center, ops, proper, tol) -> float | None:
@@ -82,7 +93,12 @@ def improper_within(sym: SymmetryData) -> float | None:
         if best is not None:
             return best
         return _best_improper(s, sym.center, sym.operations, sym.proper, sym.tol)
-    ladder = np.asarray(tolerance_ladder(sym.tol, SEARCH_FACTOR * sym.tol)[1:])
     return _core.improper_within(
-        s.positions, s.numbers, sym.tol, LINEAR_SUBGROUP_N, VERIFY_ALL_LIMIT, ladder, s.masses
+        s.positions,
+        s.numbers,
+        sym.tol,
+        LINEAR_SUBGROUP_N,
+        VERIFY_ALL_LIMIT,
+        improper_ladder(sym.tol),
+        s.masses,
     )
