@@ -372,18 +372,20 @@ class Analysis:
             Group names whose measure ``near_symmetry`` also lists (once per group).
         """
         sym = self.symmetry
+        s = sym.structure
+        n_atoms = sym.n_atoms
         # the group-dependent keys as the many-frame path builds them (gammatrace.summary);
         # None when something does not reduce: the objects below then raise the error
-        (row,) = summary_rows(sym.table, sym.unshifted_atoms[None], [sym.n_atoms])
+        (row,) = summary_rows(sym.table, sym.unshifted_atoms[None], [n_atoms])
         out: dict[str, Any] = {
-            "source": self.structure.source,
-            "index": self.structure.index,
-            "n_atoms": self.n_atoms,
-            "point_group": self.point_group,
-            "order": self.order,
-            "tolerance": self.tol,
-            "max_deviation": float(self.max_deviation),
-            "classes": sym.table.class_dicts(),
+            "source": s.source,
+            "index": s.index,
+            "n_atoms": n_atoms,
+            "point_group": sym.point_group,
+            "order": sym.order,
+            "tolerance": sym.tol,
+            "max_deviation": float(sym.max_deviation),
+            "classes": sym.table.class_dicts() if row is None else row["classes"],
             "representations": {},
         }
         reps = out["representations"]
@@ -394,8 +396,8 @@ class Analysis:
             else:
                 reps[b.name] = self.representation(b).to_dict()
         out["vibrations"] = self.vibrations().to_dict() if row is None else row["vibrations"]
-        out["symmetry_number"] = self.symmetry_number
-        out["chiral"] = self.chiral
+        out["symmetry_number"] = sym.symmetry_number
+        out["chiral"] = sym.chiral
         iw = self.improper_within
         out["improper_within"] = None if iw is None else float(iw)
         out["environments"] = self.environments
