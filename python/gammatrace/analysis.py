@@ -382,7 +382,7 @@ class Analysis:
             "index": s.index,
             "n_atoms": n_atoms,
             "point_group": sym.point_group,
-            "order": sym.order,
+            "order": sym.group_order,
             "tolerance": sym.tol,
             "max_deviation": float(sym.max_deviation),
             "classes": sym.table.class_dicts() if row is None else row["classes"],
