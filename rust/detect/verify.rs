@@ -113,7 +113,7 @@ fn composed(
     gens.retain(|&g| g != 0);
     // With the inversion and a rotation of odd order among them, one lookup (of their
     // product) serves both.
-    let merged = if n >= MERGE_MIN_ATOMS {
+    let merged = if (MERGE_MIN_ATOMS..=MERGE_MAX_ATOMS).contains(&n) {
         merge_inversion(data, &gens)
     } else {
         None
@@ -178,8 +178,11 @@ fn composed(
 }
 
 /// From this many atoms a lookup costs more than the few composed checks that replace it
-/// (see [`merge_inversion`]).
+/// (see [`merge_inversion`]) ...
 const MERGE_MIN_ATOMS: usize = 1024;
+/// ... and up to this many: beyond, the checks' gathers (two random reads per atom) leave
+/// the cache, and three of them cost more than the lookup they save (Oh, 10⁶ atoms).
+const MERGE_MAX_ATOMS: usize = 1 << 17;
 
 /// The inversion and a rotation among the generators that one element generates.
 struct Merged {
