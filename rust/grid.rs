@@ -17,6 +17,7 @@
 
 use crate::error::{Error, Result};
 use crate::ops::Vec3;
+use rayon::prelude::*;
 
 const EMPTY: u64 = u64::MAX;
 /// Above this many atoms the bounding box and the cell keys are computed in parallel.
@@ -153,8 +154,13 @@ impl CellGrid {
                     if !p[k].is_finite() {
                         return Err(atom);
                     }
-                    lo[k] = lo[k].min(p[k]);
-                    hi[k] = hi[k].max(p[k]);
+                    // (finite: plain comparisons, without the NaN cases of min and max)
+                    if p[k] < lo[k] {
+                        lo[k] = p[k];
+                    }
+                    if p[k] > hi[k] {
+                        hi[k] = p[k];
+                    }
                 }
                 same &= numbers[atom] == numbers[0];
             }
@@ -239,24 +245,27 @@ impl CellGrid {
             }
             cell = (cell / load.sqrt()).max(floor);
         }
-        let mut atoms = vec![Stored { p: [0.0; 3], z: 0 }; n];
         let mut idx = vec![0u32; n];
+        let atoms: Vec<Stored>;
         let cells = match counted {
             Ok(mut starts) => {
                 // Scatter the indices only, then gather the atoms in storage order: one
-                // random write per atom instead of three.
+                // random write per atom instead of three, and the atoms written once (in
+                // parallel for large sets) instead of zeroed first.
                 dense_scatter(&keys, &mut starts, &mut idx);
-                crate::parallel::map_chunks_mut(&mut atoms, PARALLEL_MIN, |start, out| {
-                    for (a, &i) in out.iter_mut().zip(&idx[start..]) {
-                        *a = Stored {
-                            p: positions[i as usize],
-                            z: numbers[i as usize],
-                        };
-                    }
-                });
+                let gather = |&i: &u32| Stored {
+                    p: positions[i as usize],
+                    z: numbers[i as usize],
+                };
+                atoms = if n > PARALLEL_MIN {
+                    idx.par_iter().map(gather).collect()
+                } else {
+                    idx.iter().map(gather).collect()
+                };
                 Cells::Dense { starts }
             }
             Err((mask, mut slots)) => {
+                let mut stored = vec![Stored { p: [0.0; 3], z: 0 }; n];
                 // Lay the cells out in key order (tile by tile), not hash order, so that
                 // nearby cells are nearby in memory.
                 let mut occupied: Vec<(u64, usize)> = slots
@@ -276,13 +285,14 @@ impl CellGrid {
                     if let Some(h) = find_slot(&slots, mask, k) {
                         let s = fill[h] as usize;
                         fill[h] += 1;
-                        atoms[s] = Stored {
+                        stored[s] = Stored {
                             p: positions[i],
                             z: numbers[i],
                         };
                         idx[s] = i as u32;
                     }
                 }
+                atoms = stored;
                 Cells::Hash { mask, slots }
             }
         };

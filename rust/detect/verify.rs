@@ -177,9 +177,10 @@ fn composed(
     Some((perms, dev))
 }
 
-/// From this many atoms a lookup costs more than the few composed checks that replace it
-/// (see [`merge_inversion`]) ...
-const MERGE_MIN_ATOMS: usize = 1024;
+/// From this many atoms the lookup saved by [`merge_inversion`] is worth its composed checks
+/// (small structures map by brute force without a grid, which an atom beyond tol/2 of its
+/// composed image would then build) ...
+const MERGE_MIN_ATOMS: usize = 256;
 /// ... and up to this many: beyond, the checks' gathers (two random reads per atom) leave
 /// the cache, and three of them cost more than the lookup they save (Oh, 10⁶ atoms).
 const MERGE_MAX_ATOMS: usize = 1 << 17;
