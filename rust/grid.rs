@@ -17,6 +17,7 @@
 
 use crate::error::{Error, Result};
 use crate::ops::Vec3;
+use rayon::prelude::*;
 
 const EMPTY: u64 = u64::MAX;
 /// Above this many atoms the bounding box and the cell keys are computed in parallel.
@@ -67,6 +68,8 @@ pub struct CellGrid {
     pub(crate) atoms: Vec<Stored>,
     /// Input index of the atom in each storage slot.
     pub(crate) idx: Vec<u32>,
+    /// True when every atom has the same atomic number (or species code).
+    pub(crate) one_species: bool,
 }
 
 #[inline]
@@ -144,22 +147,31 @@ impl CellGrid {
         let boxes = crate::parallel::map_chunks(n, PARALLEL_MIN, |range| {
             let mut lo = [f64::INFINITY; 3];
             let mut hi = [f64::NEG_INFINITY; 3];
+            let mut same = true;
             for atom in range {
                 let p = &positions[atom];
                 for k in 0..3 {
                     if !p[k].is_finite() {
                         return Err(atom);
                     }
-                    lo[k] = lo[k].min(p[k]);
-                    hi[k] = hi[k].max(p[k]);
+                    // (finite: plain comparisons, without the NaN cases of min and max)
+                    if p[k] < lo[k] {
+                        lo[k] = p[k];
+                    }
+                    if p[k] > hi[k] {
+                        hi[k] = p[k];
+                    }
                 }
+                same &= numbers[atom] == numbers[0];
             }
-            Ok((lo, hi))
+            Ok((lo, hi, same))
         });
         let mut lo = [f64::INFINITY; 3];
         let mut hi = [f64::NEG_INFINITY; 3];
+        let mut one_species = true;
         for b in boxes {
-            let (l, h) = b.map_err(|atom| Error::NonFiniteCoordinate { atom })?;
+            let (l, h, same) = b.map_err(|atom| Error::NonFiniteCoordinate { atom })?;
+            one_species &= same;
             for k in 0..3 {
                 lo[k] = lo[k].min(l[k]);
                 hi[k] = hi[k].max(h[k]);
@@ -219,10 +231,7 @@ impl CellGrid {
             let occupied;
             if n_cells <= (4 * n + 1024) as f64 {
                 let mut starts = vec![0u32; n_cells as usize + 1];
-                for &k in &keys {
-                    starts[k as usize + 1] += 1;
-                }
-                occupied = starts.iter().filter(|&&c| c > 0).count();
+                occupied = dense_counts(&keys, &mut starts[1..]);
                 counted = Ok(starts);
             } else {
                 let (mask, slots) = count_cells(&keys);
@@ -236,32 +245,27 @@ impl CellGrid {
             }
             cell = (cell / load.sqrt()).max(floor);
         }
-        let mut atoms = vec![Stored { p: [0.0; 3], z: 0 }; n];
         let mut idx = vec![0u32; n];
+        let atoms: Vec<Stored>;
         let cells = match counted {
             Ok(mut starts) => {
-                for c in 1..starts.len() {
-                    starts[c] += starts[c - 1];
-                }
                 // Scatter the indices only, then gather the atoms in storage order: one
-                // random write per atom instead of three.
-                let mut fill = starts.clone();
-                for (i, &k) in keys.iter().enumerate() {
-                    let s = fill[k as usize] as usize;
-                    fill[k as usize] += 1;
-                    idx[s] = i as u32;
-                }
-                crate::parallel::map_chunks_mut(&mut atoms, PARALLEL_MIN, |start, out| {
-                    for (a, &i) in out.iter_mut().zip(&idx[start..]) {
-                        *a = Stored {
-                            p: positions[i as usize],
-                            z: numbers[i as usize],
-                        };
-                    }
-                });
+                // random write per atom instead of three, and the atoms written once (in
+                // parallel for large sets) instead of zeroed first.
+                dense_scatter(&keys, &mut starts, &mut idx);
+                let gather = |&i: &u32| Stored {
+                    p: positions[i as usize],
+                    z: numbers[i as usize],
+                };
+                atoms = if n > PARALLEL_MIN {
+                    idx.par_iter().map(gather).collect()
+                } else {
+                    idx.iter().map(gather).collect()
+                };
                 Cells::Dense { starts }
             }
             Err((mask, mut slots)) => {
+                let mut stored = vec![Stored { p: [0.0; 3], z: 0 }; n];
                 // Lay the cells out in key order (tile by tile), not hash order, so that
                 // nearby cells are nearby in memory.
                 let mut occupied: Vec<(u64, usize)> = slots
@@ -281,17 +285,19 @@ impl CellGrid {
                     if let Some(h) = find_slot(&slots, mask, k) {
                         let s = fill[h] as usize;
                         fill[h] += 1;
-                        atoms[s] = Stored {
+                        stored[s] = Stored {
                             p: positions[i],
                             z: numbers[i],
                         };
                         idx[s] = i as u32;
                     }
                 }
+                atoms = stored;
                 Cells::Hash { mask, slots }
             }
         };
         Ok(CellGrid {
+            one_species,
             inv_cell: 1.0 / cell,
             cell,
             origin,
@@ -382,34 +388,53 @@ impl CellGrid {
     /// without the loops of [`CellGrid::scan`].
     #[inline]
     pub(crate) fn single_cell(&self, point: &Vec3, radius: f64) -> Option<std::ops::Range<usize>> {
-        // (with a slack for the rounding of the atoms' own cell coordinates)
-        let margin = radius * self.inv_cell + 1e-9;
+        self.single_cell_key(point, self.margin(radius))
+            .map(|key| self.key_range(key))
+    }
+
+    /// The margin of [`CellGrid::single_cell_key`] for balls of `radius`, in cell edges
+    /// (with a slack for the rounding of the atoms' own cell coordinates).
+    #[inline]
+    pub(crate) fn margin(&self, radius: f64) -> f64 {
+        radius * self.inv_cell + 1e-9
+    }
+
+    /// The key of the one cell that holds the whole ball around `point` whose radius is
+    /// `margin` cell edges (see [`CellGrid::margin`]), or `None` when the ball reaches
+    /// another cell or leaves the grid (a NaN point too).
+    #[inline]
+    pub(crate) fn single_cell_key(&self, point: &Vec3, margin: f64) -> Option<u64> {
         let mut c = [0i64; 3];
+        let mut inside = true;
         for k in 0..3 {
             let f = (point[k] - self.origin[k]) * self.inv_cell;
             let i = f as i64;
-            // (f < 0 truncates towards 0: refused by the margin below; NaN fails too)
+            // f < 0 leaves frac ≤ 0 (truncation towards 0, or saturation): refused by the
+            // margin, as NaN is; hence i ≥ 0 whenever the ball is inside.
             let frac = f - i as f64;
-            if !(frac > margin && frac < 1.0 - margin && f >= 0.0 && i < self.dims[k]) {
-                return None;
-            }
+            inside &= frac > margin && frac < 1.0 - margin && i < self.dims[k];
             c[k] = i;
         }
-        let key = tiled_key(c, &self.tiles);
-        let (start, end) = match &self.cells {
+        inside.then(|| tiled_key(c, &self.tiles))
+    }
+
+    /// The storage slots of the atoms of the cell with this key (empty when the cell holds
+    /// none).
+    #[inline]
+    pub(crate) fn key_range(&self, key: u64) -> std::ops::Range<usize> {
+        match &self.cells {
             Cells::Dense { starts } => {
                 let k = key as usize;
-                (starts[k] as usize, starts[k + 1] as usize)
+                starts[k] as usize..starts[k + 1] as usize
             }
             Cells::Hash { mask, slots } => match find_slot(slots, *mask, key) {
                 Some(h) => {
                     let s = slots[h];
-                    (s.start as usize, (s.start + s.count) as usize)
+                    s.start as usize..(s.start + s.count) as usize
                 }
-                None => (0, 0),
+                None => 0..0,
             },
-        };
-        Some(start..end)
+        }
     }
 
     /// Distance to the nearest atom of `element` at any distance (brute force, O(N));
@@ -425,6 +450,90 @@ impl CellGrid {
         }
         best.sqrt()
     }
+}
+
+/// Cell ranges of the dense table counted or filled side by side: up to this many, one per
+/// thread of the current pool, for more than `PARALLEL_MIN` atoms (one otherwise). Every
+/// range reads all the keys and writes only its own cells, so the results never depend on
+/// the number of ranges.
+const MAX_PARTS: usize = 8;
+
+/// The cell ranges `[base, base + len)` of the dense table's parallel passes over `n` keys.
+fn parts(n: usize, n_cells: usize) -> usize {
+    let p = if n > PARALLEL_MIN {
+        rayon::current_num_threads().clamp(1, MAX_PARTS)
+    } else {
+        1
+    };
+    n_cells.div_ceil(p).max(1)
+}
+
+/// Atoms per cell (`counts[k]` for key k) and the number of occupied cells.
+fn dense_counts(keys: &[u64], counts: &mut [u32]) -> usize {
+    let part = parts(keys.len(), counts.len());
+    let occupied = crate::parallel::map_owned(
+        counts.chunks_mut(part).enumerate().collect(),
+        1,
+        |(p, mine): (usize, &mut [u32])| {
+            let base = (p * part) as u64;
+            for &k in keys {
+                // (keys below base wrap around to large values)
+                if let Some(c) = mine.get_mut(k.wrapping_sub(base) as usize) {
+                    *c += 1;
+                }
+            }
+            mine.iter().filter(|&&c| c > 0).count()
+        },
+    );
+    occupied.into_iter().sum()
+}
+
+/// Input indices in storage order (`idx`), cell by cell, each cell's atoms in input order;
+/// `starts[k + 1]` holds the count of cell k on entry and `starts[k]` the start of cell k in
+/// storage on return (`starts[n_cells] = n`).
+fn dense_scatter(keys: &[u64], starts: &mut [u32], idx: &mut [u32]) {
+    let n_cells = starts.len() - 1;
+    let part = parts(keys.len(), n_cells);
+    // Exclusive running sums: starts[k + 1] becomes the start of cell k (running sums of the
+    // ranges side by side, then each range shifted by the atoms before it).
+    let totals = crate::parallel::map_owned(starts[1..].chunks_mut(part).collect(), 1, |c| {
+        let mut acc = 0u32;
+        for v in c.iter_mut() {
+            let count = *v;
+            *v = acc;
+            acc += count;
+        }
+        acc
+    });
+    let mut offsets = Vec::with_capacity(totals.len());
+    let mut acc = 0u32;
+    for t in totals {
+        offsets.push(acc);
+        acc += t;
+    }
+    // Each range fills its own stretch of `idx`, advancing starts[k + 1] from the start to
+    // the end of cell k, which is the start of cell k + 1: the table is then complete.
+    let mut pieces = Vec::with_capacity(offsets.len());
+    let mut rest: &mut [u32] = idx;
+    for (p, c) in starts[1..].chunks_mut(part).enumerate() {
+        let end = offsets.get(p + 1).copied().unwrap_or(acc);
+        let (mine, tail) = std::mem::take(&mut rest).split_at_mut((end - offsets[p]) as usize);
+        rest = tail;
+        pieces.push((p, c, mine));
+    }
+    crate::parallel::map_owned(pieces, 1, |(p, fill, out)| {
+        let base = (p * part) as u64;
+        let shift = offsets[p];
+        for v in fill.iter_mut() {
+            *v += shift;
+        }
+        for (i, &k) in keys.iter().enumerate() {
+            if let Some(f) = fill.get_mut(k.wrapping_sub(base) as usize) {
+                out[(*f - shift) as usize] = i as u32;
+                *f += 1;
+            }
+        }
+    });
 }
 
 fn cell_key(p: &Vec3, origin: &Vec3, inv: f64, dims: &[i64; 3], tiles: &[i64; 3]) -> u64 {
@@ -528,5 +637,51 @@ mod tests {
         assert!(CellGrid::build(&[], &[], CellEdge::Fixed(1.0))
             .unwrap()
             .is_empty());
+    }
+
+    #[test]
+    fn dense_tables_do_not_depend_on_the_thread_count() {
+        // Above PARALLEL_MIN atoms the dense table is counted and filled range by range, one
+        // range per thread: the same table and storage order for any number of threads.
+        let mut rng = Rng(11);
+        let p: Vec<[f64; 3]> = (0..PARALLEL_MIN + 4321)
+            .map(|_| [rng.next() * 30.0, rng.next() * 30.0, rng.next() * 30.0])
+            .collect();
+        let z: Vec<i64> = (0..p.len()).map(|i| 1 + (i % 3) as i64).collect();
+        let build = |threads: usize| {
+            crate::parallel::install(threads, || {
+                CellGrid::build(&p, &z, CellEdge::Adaptive { min: 0.02 }).unwrap()
+            })
+            .unwrap()
+        };
+        let one = build(1);
+        assert!(!one.is_hashed());
+        let Cells::Dense { starts } = &one.cells else {
+            unreachable!()
+        };
+        for threads in [2, 3, 8] {
+            let other = build(threads);
+            let Cells::Dense { starts: s } = &other.cells else {
+                unreachable!()
+            };
+            assert_eq!(s, starts, "{threads} threads");
+            assert_eq!(other.idx, one.idx, "{threads} threads");
+        }
+        // Each cell's atoms in input order, and every atom in the cell of its key.
+        for c in 0..starts.len() - 1 {
+            let cell = &one.idx[starts[c] as usize..starts[c + 1] as usize];
+            assert!(cell.windows(2).all(|w| w[0] < w[1]));
+            for &i in cell {
+                let key = cell_key(
+                    &p[i as usize],
+                    &one.origin,
+                    one.inv_cell,
+                    &one.dims,
+                    &one.tiles,
+                );
+                assert_eq!(key as usize, c);
+            }
+        }
+        assert!(!one.one_species);
     }
 }

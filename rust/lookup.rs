@@ -88,6 +88,15 @@ impl Grid {
     /// grows with the number of cells the ball touches).
     pub fn query_within(&self, point: &Vec3, element: i64, radius: f64) -> Option<(usize, f64)> {
         let g = &self.cells;
+        self.nearest_slot(point, element, radius)
+            .map(|(s, d2)| (g.idx[s] as usize, d2.sqrt()))
+    }
+
+    /// Storage slot and squared distance of the nearest atom of `element` within `radius`
+    /// of `point`; of two at the same distance, the later in the scan (the one `<=` keeps).
+    #[inline]
+    fn nearest_slot(&self, point: &Vec3, element: i64, radius: f64) -> Option<(usize, f64)> {
+        let g = &self.cells;
         let mut best = (usize::MAX, radius * radius);
         if let Some(range) = g.single_cell(point, radius) {
             for s in range {
@@ -98,17 +107,9 @@ impl Grid {
                     best = (s, d2);
                 }
             }
-            return (best.0 != usize::MAX).then(|| (g.idx[best.0] as usize, best.1.sqrt()));
-        }
-        g.scan(point, radius, |s, d2| {
-            if g.atoms[s].z == element && d2 <= best.1 {
-                best = (s, d2);
-            }
-        });
-        if best.0 == usize::MAX {
-            None
+            (best.0 != usize::MAX).then_some(best)
         } else {
-            Some((g.idx[best.0] as usize, best.1.sqrt()))
+            nearest_in_cells(g, point, element, radius)
         }
     }
 
@@ -123,18 +124,31 @@ impl Grid {
 /// with i < j (input indices) that is first in (i, j) order, or `None`.
 pub fn find_overlap(grid: &Grid) -> Option<(usize, usize, f64)> {
     let tol = grid.tol;
+    let g = &grid.cells;
+    let margin = g.margin(tol);
     let probe = |range: std::ops::Range<usize>| -> Option<(usize, usize, f64)> {
         let mut best: Option<(usize, usize, f64)> = None;
-        for s in range {
-            grid.cells.scan(&grid.cells.atoms[s].p, tol, |t, d2| {
-                if t != s && d2 <= tol * tol {
-                    let (a, b) = (grid.cells.idx[s] as usize, grid.cells.idx[t] as usize);
-                    let pair = (a.min(b), a.max(b), d2.sqrt());
-                    if best.is_none_or(|q| (pair.0, pair.1) < (q.0, q.1)) {
-                        best = Some(pair);
-                    }
+        let mut visit = |s: usize, t: usize, d2: f64| {
+            if t != s && d2 <= tol * tol {
+                let (a, b) = (g.idx[s] as usize, g.idx[t] as usize);
+                let pair = (a.min(b), a.max(b), d2.sqrt());
+                if best.is_none_or(|q| (pair.0, pair.1) < (q.0, q.1)) {
+                    best = Some(pair);
                 }
-            });
+            }
+        };
+        for s in range {
+            let p = &g.atoms[s].p;
+            // A ball inside the atom's own cell: only that cell's atoms can lie within it.
+            if let Some(key) = g.single_cell_key(p, margin) {
+                for t in g.key_range(key) {
+                    let q = &g.atoms[t].p;
+                    let d = [q[0] - p[0], q[1] - p[1], q[2] - p[2]];
+                    visit(s, t, d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
+                }
+            } else {
+                g.scan(p, tol, |t, d2| visit(s, t, d2));
+            }
         }
         best
     };
@@ -185,67 +199,156 @@ pub fn map_atoms(
         });
     }
     let n = positions.len();
-    debug_assert!(grid
-        .cells
+    let g = &grid.cells;
+    debug_assert!(g
         .idx
         .iter()
-        .zip(&grid.cells.atoms)
+        .zip(&g.atoms)
         .take(64)
         .all(|(&i, a)| positions[i as usize] == a.p));
-    // image[s]: the image of the atom stored in grid slot s.
+    // image[s]: the storage slot of the image of the atom stored in slot s.
     let mut image = vec![0u32; n];
     let first_fail = AtomicUsize::new(usize::MAX);
+    let margin = g.margin(tol);
     let run = |start: usize, out: &mut [u32]| -> f64 {
-        let mut dev = 0.0_f64;
-        for (k, slot) in out.iter_mut().enumerate() {
-            let s = start + k;
-            if s > first_fail.load(Ordering::Relaxed) {
-                return dev;
+        // Largest squared image distance (its root is the largest distance: sqrt is
+        // monotonic and correctly rounded).
+        let mut worst = 0.0_f64;
+        for (b, block) in out.chunks_mut(BLOCK).enumerate() {
+            let s0 = start + b * BLOCK;
+            if s0 > first_fail.load(Ordering::Relaxed) {
+                return worst;
             }
-            let a = &grid.cells.atoms[s];
-            let q = mat_vec(op_matrix, &a.p);
-            match grid.query_within(&q, a.z, tol) {
-                Some((j, d)) => {
-                    *slot = j as u32;
-                    dev = dev.max(d);
+            // Images and their cells first, then the scans: the loads of a block's cells
+            // overlap instead of waiting one after the other.
+            let mut qs = [[0.0_f64; 3]; BLOCK];
+            let mut ranges = [(0usize, 0usize); BLOCK];
+            for (k, (q, r)) in qs.iter_mut().zip(ranges.iter_mut()).enumerate() {
+                if k == block.len() {
+                    break;
                 }
-                None => {
-                    first_fail.fetch_min(s, Ordering::Relaxed);
-                    return dev;
+                *q = mat_vec(op_matrix, &g.atoms[s0 + k].p);
+                *r = match g.single_cell_key(q, margin) {
+                    Some(key) => {
+                        let range = g.key_range(key);
+                        (range.start, range.end)
+                    }
+                    None => (usize::MAX, 0),
+                };
+            }
+            for (k, slot) in block.iter_mut().enumerate() {
+                let s = s0 + k;
+                let z = g.atoms[s].z;
+                let q = &qs[k];
+                let (lo, hi) = ranges[k];
+                let found = if lo == usize::MAX {
+                    nearest_in_cells(g, q, z, tol)
+                } else if g.one_species {
+                    nearest_in_cell::<false>(g, q, z, tol * tol, lo, hi)
+                } else {
+                    nearest_in_cell::<true>(g, q, z, tol * tol, lo, hi)
+                };
+                match found {
+                    Some((t, d2)) => {
+                        *slot = t as u32;
+                        worst = worst.max(d2);
+                    }
+                    None => {
+                        first_fail.fetch_min(s, Ordering::Relaxed);
+                        return worst;
+                    }
                 }
             }
         }
-        dev
+        worst
     };
     let max_dev = parallel::map_chunks_mut(&mut image, PARALLEL_MIN_ATOMS, run)
         .into_iter()
-        .fold(0.0, f64::max);
+        .fold(0.0, f64::max)
+        .sqrt();
     let fail = first_fail.load(Ordering::Relaxed);
     if fail != usize::MAX {
-        let atom = grid.cells.idx[fail] as usize;
+        let atom = g.idx[fail] as usize;
         let q = mat_vec(op_matrix, &positions[atom]);
         return Err(Error::NotASymmetry {
             atom,
             distance: grid.nearest_distance(&q, numbers[atom]),
         });
     }
+    // The permutation in input order, and no slot taken twice (a bit per slot).
     let mut perm = vec![0u32; n];
-    let mut owner = vec![u32::MAX; n];
-    for (s, &j) in image.iter().enumerate() {
-        let i = grid.cells.idx[s];
-        perm[i as usize] = j;
-        let o = &mut owner[j as usize];
-        if *o != u32::MAX {
-            let (first, second) = ((*o).min(i) as usize, (*o).max(i) as usize);
+    let mut taken = vec![0u64; n.div_ceil(64)];
+    for (s, &t) in image.iter().enumerate() {
+        let (word, bit) = (t as usize >> 6, 1u64 << (t & 63));
+        if taken[word] & bit != 0 {
+            // The first slot (storage order) whose image an earlier one has taken.
+            let earlier = image.iter().position(|&u| u == t).unwrap_or(s);
+            let (i, o) = (g.idx[s], g.idx[earlier]);
             return Err(Error::AmbiguousImage {
-                first,
-                second,
-                image: j as usize,
+                first: o.min(i) as usize,
+                second: o.max(i) as usize,
+                image: g.idx[t as usize] as usize,
             });
         }
-        *o = i;
+        taken[word] |= bit;
+        perm[g.idx[s] as usize] = g.idx[t as usize];
     }
     Ok((perm, max_dev))
+}
+
+/// The nearest atom of element `z` within `radius` of `q` over every cell the ball touches,
+/// as [`Grid::nearest_slot`] finds it when the ball reaches beyond one cell.
+#[inline(never)]
+fn nearest_in_cells(g: &CellGrid, q: &Vec3, z: i64, radius: f64) -> Option<(usize, f64)> {
+    let mut best = (usize::MAX, radius * radius);
+    g.scan(q, radius, |s, d2| {
+        if g.atoms[s].z == z && d2 <= best.1 {
+            best = (s, d2);
+        }
+    });
+    (best.0 != usize::MAX).then_some(best)
+}
+
+/// Atoms per block of [`map_atoms`]: the images of a block are computed before its scans.
+const BLOCK: usize = 16;
+/// Cells of up to this many atoms are scanned without branches on the atoms' data.
+const WIDE: usize = 4;
+
+/// The nearest atom of element `z` within squared distance `r2` of `q` among the stored
+/// slots `lo..hi` (one cell): `(slot, squared distance)`, the later of two at the same
+/// distance, as [`Grid::nearest_slot`] finds it. `BY_SPECIES` false: every stored atom is
+/// of element `z` (no comparison).
+#[inline]
+fn nearest_in_cell<const BY_SPECIES: bool>(
+    g: &CellGrid,
+    q: &Vec3,
+    z: i64,
+    r2: f64,
+    lo: usize,
+    hi: usize,
+) -> Option<(usize, f64)> {
+    let mut best = usize::MAX;
+    let mut best_d2 = r2;
+    if hi - lo <= WIDE && lo + WIDE <= g.atoms.len() {
+        // A fixed number of slots, those past the cell masked out: no mispredicted exits.
+        for (k, a) in g.atoms[lo..lo + WIDE].iter().enumerate() {
+            let d = [a.p[0] - q[0], a.p[1] - q[1], a.p[2] - q[2]];
+            let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+            let take = (lo + k < hi) & (!BY_SPECIES || a.z == z) & (d2 <= best_d2);
+            best = if take { lo + k } else { best };
+            best_d2 = if take { d2 } else { best_d2 };
+        }
+    } else {
+        for (k, a) in g.atoms[lo..hi].iter().enumerate() {
+            let d = [a.p[0] - q[0], a.p[1] - q[1], a.p[2] - q[2]];
+            let d2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+            if (!BY_SPECIES || a.z == z) && d2 <= best_d2 {
+                best = lo + k;
+                best_d2 = d2;
+            }
+        }
+    }
+    (best != usize::MAX).then_some((best, best_d2))
 }
 
 #[cfg(test)]

@@ -1190,3 +1190,39 @@ fn test_deviation_of_each_verified_operation_is_its_mapping_distance() {
         }
     }
 }
+
+#[test]
+fn test_merged_inversion_lookup_gives_the_lookups_own_answers() {
+    // Oh and Ih clusters above the size from which the inversion and an odd-order rotation
+    // among the generators share one lookup: in both verification modes, every verified
+    // permutation and deviation is the one a lookup per atom gives, bit for bit.
+    let mut rng = Rng(31);
+    for (mut gens, name, n_seeds) in [(rot_group_o(), "Oh", 40), (rot_group_i(), "Ih", 20)] {
+        gens.push(PointOp::inversion());
+        let seeds: Vec<([f64; 3], i64)> = (0..n_seeds)
+            .map(|k| {
+                let r = 3.0 + 0.21 * k as f64;
+                let d = crate::ops::normalize(&[rng.sym(1.0), rng.sym(1.0), rng.sym(1.0)]).unwrap();
+                ([d[0] * r, d[1] * r, d[2] * r], 6 + (k % 3) as i64)
+            })
+            .collect();
+        let (p, z) = perturb(&orbit(&gens, &seeds), &mut rng);
+        assert!(p.len() >= 1024, "{name}: {} atoms", p.len());
+        for limit in [DetectOptions::default().verify_all_limit, 0] {
+            let opts = DetectOptions {
+                verify_all_limit: limit,
+                ..DetectOptions::default()
+            };
+            let s = find_point_group(&p, &z, &opts).unwrap();
+            assert_eq!(s.point_group, name);
+            check_consistency(&p, &z, &s, opts.tol);
+            let mats: Vec<Mat3> = s.verified.iter().map(|&k| s.ops[k].matrix).collect();
+            let (perms, devs) = map_operations(&p, &z, None, s.center, &mats, opts.tol).unwrap();
+            assert_eq!(s.permutations, perms, "{name}, limit {limit}");
+            // (E: 0 by definition, where its matrix in the frame maps within rounding)
+            for (a, b) in s.deviations.iter().zip(&devs).skip(1) {
+                assert_eq!(a.to_bits(), b.to_bits(), "{name}, limit {limit}");
+            }
+        }
+    }
+}

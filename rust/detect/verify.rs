@@ -18,7 +18,7 @@ use super::canonical::GroupData;
 use super::Ctx;
 use crate::error::Result;
 use crate::lookup::{map_atoms, PARALLEL_MIN_ATOMS};
-use crate::ops::{mat_vec, Mat3, PointOp, Vec3};
+use crate::ops::{mat_mul, mat_vec, Mat3, PointOp, Vec3};
 use crate::parallel;
 
 /// Atom × operation checks above which verification spreads over the pool's threads.
@@ -111,16 +111,44 @@ fn composed(
     gens.sort_unstable();
     gens.dedup();
     gens.retain(|&g| g != 0);
-    let threshold = if n >= PARALLEL_WORK / 16 && gens.len() > 1 {
+    // With the inversion and a rotation of odd order among them, one lookup (of their
+    // product) serves both.
+    let merged = if (MERGE_MIN_ATOMS..=MERGE_MAX_ATOMS).contains(&n) {
+        merge_inversion(data, &gens)
+    } else {
+        None
+    };
+    let lookups: Vec<usize> = match &merged {
+        Some(m) => gens
+            .iter()
+            .copied()
+            .filter(|&g| g != m.inversion && g != m.odd)
+            .chain(std::iter::once(m.powers[0]))
+            .collect(),
+        None => gens.clone(),
+    };
+    let threshold = if n >= PARALLEL_WORK / 16 && lookups.len() > 1 {
         1
     } else {
         usize::MAX
     };
-    let mapped = parallel::map_items(&gens, threshold, |_, &g| map_nearest(ctx, &ops[g].matrix));
-    for (&g, m) in gens.iter().zip(mapped) {
+    let mapped = parallel::map_items(&lookups, threshold, |_, &g| {
+        map_nearest(ctx, &ops[g].matrix)
+    });
+    for (&g, m) in lookups.iter().zip(mapped) {
         let (perm, d) = m?;
         perms[g] = perm;
         dev[g] = d;
+    }
+    if let Some(m) = &merged {
+        // s^k = s·s^(k-1), composed and checked: up to s^m = i and s^(m+1) = the rotation.
+        let s = m.powers[0];
+        for w in m.powers.windows(2) {
+            let (prev, k) = (w[0], w[1]);
+            let (perm, d) = check_composed(ctx, &ops[k].matrix, &perms[s], &perms[prev])?;
+            dev[k] = d;
+            perms[k] = perm;
+        }
     }
     if all {
         if let Some(devs) = compose_all(ctx, ops, data, &mut perms) {
@@ -147,6 +175,70 @@ fn composed(
         }
     }
     Some((perms, dev))
+}
+
+/// From this many atoms the lookup saved by [`merge_inversion`] is worth its composed checks
+/// (small structures map by brute force without a grid, which an atom beyond tol/2 of its
+/// composed image would then build) ...
+const MERGE_MIN_ATOMS: usize = 256;
+/// ... and up to this many: beyond, the checks' gathers (two random reads per atom) leave
+/// the cache, and three of them cost more than the lookup they save (Oh, 10⁶ atoms).
+const MERGE_MAX_ATOMS: usize = 1 << 17;
+
+/// The inversion and a rotation among the generators that one element generates.
+struct Merged {
+    /// Index of the inversion i.
+    inversion: usize,
+    /// Index of the rotation g, of odd order m.
+    odd: usize,
+    /// Indices of s = i·g, s², …, s^(m+1): s^m = i and s^(m+1) = g (i commutes with g,
+    /// i^m = i and g^(m+1) = g).
+    powers: Vec<usize>,
+}
+
+/// When the generators hold the inversion i and a rotation g of odd order m, the element
+/// s = i·g generates both: one lookup (of s) and m composed checks (streaming passes, each
+/// giving the lookup's own answers, see the module notes) instead of two lookups. `None`
+/// when there is no such pair (or an index is not found, which would be a bug of the
+/// group tables: the plain path then runs).
+fn merge_inversion(data: &GroupData, gens: &[usize]) -> Option<Merged> {
+    let same =
+        |a: &Mat3, b: &Mat3| (0..3).all(|r| (0..3).all(|c| (a[r][c] - b[r][c]).abs() < 1e-6));
+    let find = |m: &Mat3| data.ops.iter().position(|o| same(o, m));
+    let e = [[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]];
+    let minus_e = [[-1.0, 0.0, 0.0], [0.0, -1.0, 0.0], [0.0, 0.0, -1.0]];
+    let inversion = gens
+        .iter()
+        .copied()
+        .find(|&g| same(&data.ops[g], &minus_e))?;
+    let order = |g: usize| {
+        let mut p = data.ops[g];
+        for k in 1..=data.ops.len() {
+            if same(&p, &e) {
+                return k;
+            }
+            p = mat_mul(&data.ops[g], &p);
+        }
+        0
+    };
+    let (odd, m) = gens
+        .iter()
+        .copied()
+        .filter(|&g| g != inversion)
+        .map(|g| (g, order(g)))
+        .find(|&(_, m)| m > 1 && m % 2 == 1)?;
+    let s_matrix = mat_mul(&data.ops[inversion], &data.ops[odd]);
+    let mut powers = vec![find(&s_matrix)?];
+    let mut p = s_matrix;
+    for _ in 1..=m {
+        p = mat_mul(&s_matrix, &p);
+        powers.push(find(&p)?);
+    }
+    (powers[m - 1] == inversion && powers[m] == odd).then_some(Merged {
+        inversion,
+        odd,
+        powers,
+    })
 }
 
 /// Every operation that is not E or a generator composed along its word (π_k = π_g ∘ π_j)
@@ -218,8 +310,9 @@ fn compose_all(
                 let img = pg[via as usize];
                 *out = img;
                 let d2 = dist2(m, p, &x[img as usize]);
-                far |= d2.is_nan() || d2 > half2;
-                worst = worst.max(d2);
+                // (a NaN sets `far`: the plain comparison for the largest is then exact)
+                far |= d2.is_nan() | (d2 > half2);
+                worst = if d2 > worst { d2 } else { worst };
             }
             mine[t] = dst;
             if far {
@@ -261,8 +354,8 @@ fn check_composed(ctx: &Ctx, m: &Mat3, pg: &[u32], pj: &[u32]) -> Option<(Vec<u3
             let j = pg[pj[i] as usize];
             *slot = j;
             let d2 = dist2(m, &x[i], &x[j as usize]);
-            far |= d2.is_nan() || d2 > half2;
-            worst = worst.max(d2);
+            far |= d2.is_nan() | (d2 > half2);
+            worst = if d2 > worst { d2 } else { worst };
         }
         (worst, far)
     });
