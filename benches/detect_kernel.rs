@@ -5,7 +5,8 @@
 //!
 //! Run: `cargo bench --bench detect_kernel` (release profile; a filter may follow `--`).
 //! Workloads: benzene, C60, a 2057-atom Mackay icosahedron, 100 C1 conformers of a 30-atom
-//! molecule (one call each, timed together), and the Mackay icosahedra and fcc spheres of
+//! molecule (one call each, timed together; again at 10 × the tolerance, as
+//! `improper_within` detects chiral structures), and the Mackay icosahedra and fcc spheres of
 //! about 10³ and 10⁴ atoms; `DETECT_KERNEL_BIG=1` adds those of 10⁵ and 10⁶ atoms. Ids are
 //! `detect/{workload}/{detection|counting}`. Each answer is checked once, outside the
 //! timed calls. Threads: the default pool (all cores), as in an analysis.
@@ -27,6 +28,7 @@ struct Workload {
     name: String,
     group: &'static str,
     structures: Vec<(Vec<Vec3>, Vec<i64>)>,
+    tol: f64,
 }
 
 fn one(name: &str, group: &'static str, pos: Vec<Vec3>, numbers: Vec<i64>) -> Workload {
@@ -34,6 +36,7 @@ fn one(name: &str, group: &'static str, pos: Vec<Vec3>, numbers: Vec<i64>) -> Wo
         name: name.to_string(),
         group,
         structures: vec![(pos, numbers)],
+        tol: TOL,
     }
 }
 
@@ -55,6 +58,14 @@ fn workloads() -> Vec<Workload> {
         name: "C1-30-atoms-x100".into(),
         group: "C1",
         structures: c1_conformers(100, 20_260_707),
+        tol: TOL,
+    });
+    // The same at 10 × the tolerance: near-symmetries pass the screen there and fail at tol.
+    out.push(Workload {
+        name: "C1-30-atoms-x100-at-10-tol".into(),
+        group: "C1",
+        structures: c1_conformers(100, 20_260_707),
+        tol: 10.0 * TOL,
     });
     let big = std::env::var("DETECT_KERNEL_BIG").is_ok_and(|v| v == "1");
     let sizes: &[(usize, f64)] = if big {
@@ -72,13 +83,16 @@ fn workloads() -> Vec<Workload> {
 }
 
 fn detect_kernel(c: &mut Criterion) {
-    let opts = DetectOptions::default();
     let mut group = c.benchmark_group("detect");
     group
         .sample_size(10)
         .warm_up_time(Duration::from_millis(500))
         .measurement_time(Duration::from_secs(2));
     for w in workloads() {
+        let opts = DetectOptions {
+            tol: w.tol,
+            ..DetectOptions::default()
+        };
         // Checked once, outside the timed calls: the group, and the counts of E.
         let found: Vec<_> = w
             .structures
@@ -95,7 +109,10 @@ fn detect_kernel(c: &mut Criterion) {
                 };
                 assert_eq!(sym.verified.len(), verified, "{}", w.name);
                 let ops: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
-                assert_eq!(count_unshifted(p, sym.center, &ops, TOL)[0], p.len() as u64);
+                assert_eq!(
+                    count_unshifted(p, sym.center, &ops, w.tol)[0],
+                    p.len() as u64
+                );
                 (sym.center, ops)
             })
             .collect();
@@ -109,7 +126,7 @@ fn detect_kernel(c: &mut Criterion) {
         group.bench_function(format!("{}/counting", w.name), |b| {
             b.iter(|| {
                 for ((p, _), (center, ops)) in w.structures.iter().zip(&found) {
-                    black_box(count_unshifted(black_box(p), *center, ops, TOL));
+                    black_box(count_unshifted(black_box(p), *center, ops, w.tol));
                 }
             })
         });

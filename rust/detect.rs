@@ -20,8 +20,9 @@
 //!    Nothing limits n. This plain search runs only when the pruned search (search.rs)
 //!    gives up: the same reference-atom idea with a second atom whose distance to a is rare
 //!    in its window (|W(a)| · k · 2 candidates), screened on a short probe and accepted
-//!    only when the verified group is exactly the screened set; it starts with an early
-//!    exit for small structures without symmetry.
+//!    only when the verified group is exactly the screened set (false candidates that keep
+//!    failing verification are dropped by the plain search's own test of each candidate);
+//!    it starts with an early exit for small structures without symmetry.
 //! 4. The operations found must close under multiplication (checked exactly through the
 //!    images of a and b); the group is named from its content (orders of the rotations, number
 //!    of axes of order ≥ 3, σh, mirrors, inversion) by `naming::name_group`, the namer that
@@ -161,6 +162,11 @@ impl Symmetry {
 /// The centred structure and what every stage needs.
 struct Ctx<'a> {
     x: Vec<Vec3>,
+    /// Distance of each atom from the centre.
+    r: Vec<f64>,
+    /// Small structures (up to `BRUTE_FORCE_MAX` atoms): atom indices in the order of
+    /// (radius, index); empty otherwise.
+    by_radius: Vec<u32>,
     /// Species code of each atom (`structure::Species`): what the matching compares.
     species: &'a [i64],
     /// The cell grid, built on first use (small structures may never need it).
@@ -329,12 +335,14 @@ pub fn find_point_group_searching(
         inertia,
         far,
     } = centred(positions, &species.masses);
-    let (grid, overlap) = if x.len() <= BRUTE_FORCE_MAX {
-        (OnceLock::new(), brute_overlap(&x, tol))
+    let r: Vec<f64> = x.iter().map(norm).collect();
+    let (grid, overlap, by_radius) = if x.len() <= BRUTE_FORCE_MAX {
+        let (overlap, by_radius) = brute_overlap(&x, &r, tol);
+        (OnceLock::new(), overlap, by_radius)
     } else {
         let g = Grid::build(&x, &species.codes, tol)?;
         let overlap = find_overlap(&g);
-        (OnceLock::from(g), overlap)
+        (OnceLock::from(g), overlap, Vec::new())
     };
     if let Some((first, second, distance)) = overlap {
         return Err(Error::OverlappingAtoms {
@@ -349,6 +357,8 @@ pub fn find_point_group_searching(
     }
     let ctx = Ctx {
         x,
+        r,
+        by_radius,
         species: &species.codes,
         grid,
         tol,
@@ -633,7 +643,17 @@ fn finish(
         permutations,
         deviations,
         max_deviation,
-    } = verify::verify(ctx, &ops, &data, all)?;
+    } = if ops.len() == 1 {
+        // C1: E maps every atom onto itself at distance 0.
+        verify::Verified {
+            verified: vec![0],
+            permutations: vec![(0..n as u32).collect()],
+            deviations: vec![0.0],
+            max_deviation: 0.0,
+        }
+    } else {
+        verify::verify(ctx, &ops, &data, all)?
+    };
     Ok(Symmetry {
         point_group: fam.name(),
         center,
@@ -740,19 +760,21 @@ fn pair_frame(p: &Vec3, q: &Vec3) -> Option<Mat3> {
     Some([e1, e2, crate::ops::cross(&e1, &e2)])
 }
 
-/// All operations of the structure found through the reference atoms (see the module doc),
-/// with the indices of a and b.
-fn enumerate(
-    ctx: &Ctx,
-    tol_raw: f64,
-    extra: &[usize],
-    sampled: bool,
-) -> Result<(Vec<RawOp>, usize, usize)> {
+/// The plain search's reference atoms a and b (module doc, step 3), the windows they were
+/// chosen by, and its probe: a, b, `extra`, then atoms spread over both windows and over
+/// all atoms.
+struct PlainRef {
+    win: Windows,
+    a: usize,
+    b: usize,
+    probe: Vec<usize>,
+}
+
+fn plain_reference(ctx: &Ctx, extra: &[usize]) -> Result<PlainRef> {
     let n = ctx.x.len();
-    let tol = ctx.tol;
-    let r: Vec<f64> = ctx.x.iter().map(norm).collect();
+    let r = &ctx.r;
     let r_max = r.iter().copied().fold(0.0, f64::max);
-    let win = windows(ctx, &r, 2.0 * tol);
+    let win = windows(ctx, r, 2.0 * ctx.tol);
     let size = |i: usize| win.range[i].1 - win.range[i].0;
     let pick = |score: &dyn Fn(usize) -> f64, min_score: f64| -> Option<usize> {
         (0..n)
@@ -772,11 +794,6 @@ fn enumerate(
     let b = pick(&|i| perp[i], 0.5 * d_max).ok_or_else(no_ops)?;
     let wa = &win.order[win.range[a].0 as usize..win.range[a].1 as usize];
     let wb = &win.order[win.range[b].0 as usize..win.range[b].1 as usize];
-    let grid = ctx.grid()?;
-    let ref_frame = pair_frame(&ctx.x[a], &ctx.x[b]).ok_or_else(no_ops)?;
-    let d_ab = norm(&sub(&ctx.x[a], &ctx.x[b]));
-
-    // Probe (loose screen) and acceptance set (strict test).
     let mut probe: Vec<usize> = vec![a, b];
     probe.extend(extra.iter().copied().filter(|&i| i < n));
     probe.extend(spread(wa, 16));
@@ -784,6 +801,29 @@ fn enumerate(
     let all: Vec<u32> = (0..n as u32).collect();
     probe.extend(spread(&all, 32));
     dedup_keep_order(&mut probe);
+    Ok(PlainRef { win, a, b, probe })
+}
+
+/// All operations of the structure found through the reference atoms (see the module doc),
+/// with the indices of a and b.
+fn enumerate(
+    ctx: &Ctx,
+    tol_raw: f64,
+    extra: &[usize],
+    sampled: bool,
+) -> Result<(Vec<RawOp>, usize, usize)> {
+    let n = ctx.x.len();
+    let tol = ctx.tol;
+    let PlainRef { win, a, b, probe } = plain_reference(ctx, extra)?;
+    let wa = &win.order[win.range[a].0 as usize..win.range[a].1 as usize];
+    let wb = &win.order[win.range[b].0 as usize..win.range[b].1 as usize];
+    let grid = ctx.grid()?;
+    let no_ops = || Error::GroupClosure {
+        reason: "the structure has no atom off the centre".into(),
+    };
+    let ref_frame = pair_frame(&ctx.x[a], &ctx.x[b]).ok_or_else(no_ops)?;
+    let d_ab = norm(&sub(&ctx.x[a], &ctx.x[b]));
+    let all: Vec<u32> = (0..n as u32).collect();
     let accept: Vec<usize> = if !sampled {
         let mut v = vec![a, b];
         v.extend(extra.iter().copied().filter(|&i| i < n));
@@ -859,15 +899,15 @@ fn enumerate(
 
 /// The first pair (i < j, in (i, j) order) of atoms within `tol` of each other, without a
 /// grid: the answer of `find_overlap` for small structures. Two such atoms lie within `tol`
-/// of each other's distance from the centre, so only neighbours in the order of that
-/// distance are compared.
-fn brute_overlap(x: &[Vec3], tol: f64) -> Option<(usize, usize, f64)> {
+/// of each other's distance from the centre (`r`), so only neighbours in the order of that
+/// distance are compared. Also returns that order (radius, then index).
+fn brute_overlap(x: &[Vec3], r: &[f64], tol: f64) -> (Option<(usize, usize, f64)>, Vec<u32>) {
     let t2 = tol * tol;
     // Distances from the centre are ≥ 0: their bits sort as the numbers do.
-    let mut keys: Vec<u128> = x
+    let mut keys: Vec<u128> = r
         .iter()
         .enumerate()
-        .map(|(i, p)| (u128::from(norm(p).to_bits()) << 64) | i as u128)
+        .map(|(i, ri)| (u128::from(ri.to_bits()) << 64) | i as u128)
         .collect();
     keys.sort_unstable();
     let radius = |k: u128| f64::from_bits((k >> 64) as u64);
@@ -890,7 +930,7 @@ fn brute_overlap(x: &[Vec3], tol: f64) -> Option<(usize, usize, f64)> {
             }
         }
     }
-    first
+    (first, keys.iter().map(|&k| k as u32).collect())
 }
 
 fn sub(p: &Vec3, q: &Vec3) -> Vec3 {

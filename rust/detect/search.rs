@@ -19,8 +19,13 @@
 //!   the plain search's), so that set holds all of them; a verified group equal to it is the
 //!   structure's whole group. Anything else (a false candidate that passed the probe, a name
 //!   or frame that cannot be built, an operation that fails) repeats the search with the
-//!   atom that failed screened first, then with the full probe, and finally leaves the
-//!   structure to the plain search.
+//!   atom that failed screened first (unless it was screened already), then with the full
+//!   probe. Then, or when an atom screened already fails (false candidates that pass the
+//!   3·tol screen and fail at tol: near-symmetries at a loose tolerance), the search is
+//!   repeated once with the plain search's reference atoms, probe and test of every
+//!   candidate ([`strict_test`]): the candidates that fail it are dropped, as the plain
+//!   search drops them, and the rest are closed, named and verified as before. Only if
+//!   that fails too is the structure left to the plain search.
 //! - Small structures without symmetry exit before all this: see
 //!   [`lone_pair_without_mirror`] and [`without_symmetry`].
 
@@ -44,35 +49,123 @@ const B_CHOICES: usize = 64;
 
 /// The structure's group by the pruned search, or `None` to leave it to the plain search.
 pub(super) fn pruned(ctx: &Ctx, center: Vec3, opts: &DetectOptions) -> Option<Symmetry> {
-    let r: Vec<f64> = ctx.x.iter().map(norm).collect();
-    let c1 = r.len() <= 32 && {
-        let order = species_radius_order(ctx, &r);
-        match lone_pair_without_mirror(ctx, &r, &order) {
-            Some(c1) => c1,
-            None => without_symmetry(ctx, &r, &order),
+    let r = &ctx.r;
+    let exit = if r.len() <= SMALL {
+        let order = species_radius_order(ctx);
+        match lone_pair_without_mirror(ctx, r, &order) {
+            Some(true) => Exit::C1,
+            // The mirror passed the screen (or there are no lone reference atoms): the second
+            // exit tests it, and every other candidate, as the plain search does.
+            _ => without_symmetry(ctx, r, &order),
         }
+    } else {
+        Exit::Unknown
     };
-    if c1 {
+    if exit == Exit::C1 {
         let fr = frame::standard_frame(ctx, Family::C1, &[]).ok()?;
         return finish(ctx, Family::C1, fr, center, opts).ok();
     }
-    let sh = Shells::new(ctx.species, &r, 2.0 * ctx.tol);
+    let sh = Shells::new(ctx.species, r, 2.0 * ctx.tol);
     let (a, b) = choose_pair(ctx, &sh)?;
     let mut extra: Vec<usize> = Vec::new();
     let mut full = false;
-    for _ in 0..=MAX_RETRIES + 1 {
-        let probe = probe(ctx, &sh, a, b, &extra, full);
-        match attempt(ctx, &sh, a, b, &probe, center, opts) {
+    let mut strict = false;
+    for _ in 0..MAX_RETRIES + 3 {
+        let found = if strict {
+            // The plain search's own reference atoms, probe and test of every candidate.
+            let p = super::plain_reference(ctx, &[]).ok()?;
+            attempt(ctx, &sh, p.a, p.b, &p.probe, true, center, opts)
+        } else {
+            let probe = probe(ctx, &sh, a, b, &extra, full);
+            attempt(ctx, &sh, a, b, &probe, false, center, opts)
+        };
+        // An operation the plain search's test accepts (the second early exit found one)
+        // is missing from a group of one element: a screen that missed it.
+        let found = found.and_then(|sym| match exit {
+            Exit::Symmetric if sym.order() == 1 => Err(None),
+            _ => Ok(sym),
+        });
+        match found {
             Ok(sym) => return Some(sym),
-            // An atom screened already that fails again: the structure is at the edge of
-            // the tolerance, a case for the plain search.
-            Err(Some(atom)) if extra.contains(&atom) => return None,
+            // Strict candidates that still fail: the structure is at the edge of the
+            // tolerance, a case for the plain search.
+            Err(_) if strict => return None,
+            // An atom screened already: screening it again (first) passes the same false
+            // candidates; they are dropped by testing every candidate on all atoms.
+            Err(Some(atom))
+                if extra.contains(&atom) || screened(ctx, &sh, a, b, atom, &extra, full) =>
+            {
+                strict = true;
+            }
             Err(Some(atom)) if extra.len() < MAX_RETRIES => extra.push(atom),
             Err(_) if !full => full = true,
-            Err(_) => return None,
+            Err(_) => strict = true,
         }
     }
     None
+}
+
+/// Whether `atom` was screened by an attempt (its probe and both windows).
+fn screened(
+    ctx: &Ctx,
+    sh: &Shells,
+    a: usize,
+    b: usize,
+    atom: usize,
+    extra: &[usize],
+    full: bool,
+) -> bool {
+    probe(ctx, sh, a, b, extra, full).contains(&atom)
+        || [a, b]
+            .iter()
+            .any(|&c| sh.window(c).contains(&(atom as u32)))
+}
+
+/// What the early exits for small structures found.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Exit {
+    /// No candidate but E passes the plain search's test: C1.
+    C1,
+    /// Some candidate other than E passes it.
+    Symmetric,
+    /// Not tried (or no reference atoms).
+    Unknown,
+}
+
+/// The plain search's test of a candidate (`super::test_candidate` with every atom in the
+/// acceptance set): every atom of its probe has an image within 3·tol under `m0` (the
+/// candidate from the images of its reference atoms); the least-squares fit to those images
+/// maps every atom within `tol` of an image. Returns the fit to the latter images with the
+/// largest of their distances, and the images (atom i → `images[i]`), or `None`.
+///
+/// With the plain search's reference atoms and probe, a candidate that fails is one the
+/// plain search drops (up to 4096 atoms, where it tests every atom): dropping it loses no
+/// operation the plain search would find.
+fn strict_test(
+    ctx: &Ctx,
+    mut nearest: impl FnMut(usize, &Vec3, f64) -> Option<(usize, f64)>,
+    m0: &Mat3,
+    proper: bool,
+    probe: &[usize],
+    images: &mut Vec<u32>,
+) -> Option<(Mat3, f64)> {
+    let x = &ctx.x;
+    let mut h = [[0.0; 3]; 3];
+    for &i in probe {
+        let (j, _) = nearest(i, &mat_vec(m0, &x[i]), 3.0 * ctx.tol)?;
+        super::add_outer(&mut h, &x[i], &x[j]);
+    }
+    let r1 = fit_orthogonal(&h, proper);
+    let mut h = [[0.0; 3]; 3];
+    let mut worst = 0.0_f64;
+    images.clear();
+    for (i, p) in x.iter().enumerate() {
+        let (j, d2) = nearest(i, &mat_vec(&r1, p), ctx.tol)?;
+        super::add_outer(&mut h, p, &x[j]);
+        worst = worst.max(d2);
+        images.push(j as u32);
+    }
+    Some((fit_orthogonal(&h, proper), worst.sqrt()))
 }
 
 /// Atoms grouped by element and radius: bins of width at least the window width w, so that
@@ -195,12 +288,12 @@ impl<'a> Shells<'a> {
 /// atom (C1), `Some(false)` when it passes, `None` when there are no such a and b.
 fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64], order: &[usize]) -> Option<bool> {
     let (x, n, w) = (&ctx.x, r.len(), 2.0 * ctx.tol);
-    if n > 32 {
+    if n > SMALL {
         return None;
     }
     // Alone: no other atom of its element within w of its radius (neighbours in the order
     // of species and radius).
-    let mut alone = vec![true; n];
+    let mut alone = [true; SMALL];
     for pair in order.windows(2) {
         let (i, j) = (pair[0], pair[1]);
         if ctx.species[i] == ctx.species[j] && r[j] - r[i] <= w {
@@ -233,36 +326,106 @@ fn lone_pair_without_mirror(ctx: &Ctx, r: &[f64], order: &[usize]) -> Option<boo
     }))
 }
 
-/// Atom indices in the order of (species, radius, index) (radii are ≥ 0, so their bits
-/// sort as the numbers do; species codes are below 2^32): the order both early exits walk.
-fn species_radius_order(ctx: &Ctx, r: &[f64]) -> Vec<usize> {
-    let mut keys: Vec<u128> = (0..r.len())
-        .map(|i| {
-            (u128::from(ctx.species[i] as u32) << 96)
-                | (u128::from(r[i].to_bits()) << 32)
-                | i as u128
-        })
-        .collect();
-    keys.sort_unstable();
-    keys.iter().map(|&k| k as u32 as usize).collect()
+/// Atom indices of a small structure in the order of (species, radius, index): the order
+/// both early exits walk, from the order of (radius, index) taken for the overlap check,
+/// species by species (ascending codes).
+fn species_radius_order(ctx: &Ctx) -> Vec<usize> {
+    let mut codes: Vec<i64> = Vec::with_capacity(4);
+    for &z in ctx.species {
+        if !codes.contains(&z) {
+            codes.push(z);
+        }
+    }
+    codes.sort_unstable();
+    let mut out = Vec::with_capacity(ctx.by_radius.len());
+    for z in codes {
+        out.extend(
+            ctx.by_radius
+                .iter()
+                .map(|&i| i as usize)
+                .filter(|&i| ctx.species[i] == z),
+        );
+    }
+    out
 }
 
-/// The second early exit for small structures without symmetry (up to 32 atoms):
-/// reference atoms a and b chosen as below (smallest windows), and every candidate pair of
-/// images of them, each screened on all atoms; when no candidate but E passes, the group
-/// is C1.
-fn without_symmetry(ctx: &Ctx, r: &[f64], order: &[usize]) -> bool {
+/// Largest structure the early exits for structures without symmetry handle.
+const SMALL: usize = 32;
+
+/// For each atom of a small structure, the run of `order` (the order of species and
+/// radius) of the atoms of its species whose radius is within `band` of its own (itself
+/// included): one sweep of the order.
+fn runs(ctx: &Ctx, r: &[f64], order: &[usize], band: f64) -> [std::ops::Range<usize>; SMALL] {
+    let n = order.len();
+    let mut out = [const { 0..0 }; SMALL];
+    let (mut lo, mut hi) = (0usize, 0usize);
+    for (s, &i) in order.iter().enumerate() {
+        let same = |t: usize| {
+            let j = order[t];
+            ctx.species[j] == ctx.species[i] && (r[j] - r[i]).abs() <= band
+        };
+        while !same(lo) {
+            lo += 1;
+        }
+        hi = hi.max(s + 1);
+        while hi < n && same(hi) {
+            hi += 1;
+        }
+        out[i] = lo..hi;
+    }
+    out
+}
+
+/// The second early exit for small structures without symmetry (up to 32 atoms): the
+/// plain search's reference atoms a and b (smallest windows, chosen as it chooses them) and
+/// every candidate pair of images of them, each tested as the plain search tests it (its
+/// probe is every atom here). `C1` when no candidate but E passes (the plain search would
+/// find E alone), `Symmetric` when one does: a near-symmetry that passes the 3·tol screen
+/// but fails at tol (at a loose tolerance, most of them) does not stop the exit.
+fn without_symmetry(ctx: &Ctx, r: &[f64], order: &[usize]) -> Exit {
     let (x, n, w, tol) = (&ctx.x, r.len(), 2.0 * ctx.tol, ctx.tol);
-    if n > 32 {
-        return false;
+    if n > SMALL {
+        return Exit::Unknown;
     }
     // Atoms in the order of species and radius; each window is a run of that order.
-    let mut at = vec![0usize; n];
+    let win = runs(ctx, r, order, w);
+    let size = |i: usize| win[i].len();
+    let r_max = r.iter().copied().fold(0.0, f64::max);
+    let Some((_, _, a)) = (0..n)
+        .filter(|&i| r[i] >= 0.5 * r_max && r[i] > 0.0)
+        .map(|i| (size(i), u64::MAX - r[i].to_bits(), i))
+        .min()
+    else {
+        return Exit::Unknown;
+    };
+    let (perp, d_max) = line_distances(x, a, r[a]);
+    let Some((_, _, b)) = (0..n)
+        .filter(|&i| perp[i] >= 0.5 * d_max && perp[i] > 0.0)
+        .map(|i| (size(i), u64::MAX - perp[i].to_bits(), i))
+        .min()
+    else {
+        return Exit::Unknown;
+    };
+    let Some(ref_frame) = pair_frame(&x[a], &x[b]) else {
+        return Exit::Unknown;
+    };
+    let d_ab = norm(&sub(&x[a], &x[b]));
+    // The plain search's test of each candidate (see `strict_test`; for up to 32 atoms its
+    // probe is every atom): every atom has an image within 3·tol, and the least-squares fit
+    // to those images maps every atom within tol of an image. Images of atom i lie at its
+    // radius: they are looked for in the run of its species within 3·tol (tol) of it, the
+    // atoms of the run side by side in `xs`.
+    let mut xs = [[0.0; 3]; SMALL];
+    for (s, &j) in order.iter().enumerate() {
+        xs[s] = x[j];
+    }
+    // The runs within 3·tol and tol of each atom's radius, found when first needed (most
+    // candidates fail at their first atoms).
+    let mut at = [0usize; SMALL];
     for (s, &i) in order.iter().enumerate() {
         at[i] = s;
     }
-    // The run of atoms of i's element within `band` of its radius.
-    let run = |i: usize, band: f64| -> std::ops::Range<usize> {
+    let walk = |i: usize, band: f64| -> std::ops::Range<usize> {
         let near = |s: usize| {
             let j = order[s];
             ctx.species[j] == ctx.species[i] && (r[j] - r[i]).abs() <= band
@@ -276,55 +439,78 @@ fn without_symmetry(ctx: &Ctx, r: &[f64], order: &[usize]) -> bool {
         }
         lo..hi
     };
-    // Window sizes, by one sweep of the order.
-    let mut size = vec![0u32; n];
-    let (mut lo, mut hi) = (0usize, 0usize);
-    for (s, &i) in order.iter().enumerate() {
-        let same = |t: usize| {
-            let j = order[t];
-            ctx.species[j] == ctx.species[i] && (r[j] - r[i]).abs() <= w
+    const UNSET: std::ops::Range<usize> = usize::MAX..usize::MAX;
+    let (mut run3, mut run1) = ([UNSET; SMALL], [UNSET; SMALL]);
+    let (t3, t1) = (9.0 * tol * tol, tol * tol);
+    let within = |p: &Vec3, q: &Vec3, t2: f64| {
+        let d = sub(p, q);
+        dot(&d, &d) <= t2
+    };
+    // The atom that failed the last candidate is checked first (a rejection costs less).
+    let (mut culprit3, mut culprit1) = (a, a);
+    let mut holds = |m: &Mat3, proper: bool| -> bool {
+        let mut run3_of = |i: usize| {
+            if run3[i].start == usize::MAX {
+                run3[i] = walk(i, 3.0 * tol);
+            }
+            run3[i].clone()
         };
-        while !same(lo) {
-            lo += 1;
+        let q = mat_vec(m, &x[culprit3]);
+        if !xs[run3_of(culprit3)].iter().any(|p| within(p, &q, t3)) {
+            return false;
         }
-        hi = hi.max(s + 1);
-        while hi < n && same(hi) {
-            hi += 1;
-        }
-        size[i] = (hi - lo) as u32;
-    }
-    let r_max = r.iter().copied().fold(0.0, f64::max);
-    let Some((_, _, a)) = (0..n)
-        .filter(|&i| r[i] >= 0.5 * r_max && r[i] > 0.0)
-        .map(|i| (size[i], u64::MAX - r[i].to_bits(), i))
-        .min()
-    else {
-        return false;
-    };
-    let (perp, d_max) = line_distances(x, a, r[a]);
-    let Some((_, _, b)) = (0..n)
-        .filter(|&i| perp[i] >= 0.5 * d_max && perp[i] > 0.0)
-        .map(|i| (size[i], u64::MAX - perp[i].to_bits(), i))
-        .min()
-    else {
-        return false;
-    };
-    let Some(ref_frame) = pair_frame(&x[a], &x[b]) else {
-        return false;
-    };
-    let d_ab = norm(&sub(&x[a], &x[b]));
-    // Every atom has an image within 3·tol under m (images lie at the atom's radius).
-    let passes = |m: &Mat3| {
-        x.iter().enumerate().all(|(i, p)| {
+        let mut h = [[0.0; 3]; 3];
+        for (i, p) in x.iter().enumerate() {
             let q = mat_vec(m, p);
-            order[run(i, 3.0 * tol)].iter().any(|&j| {
-                let d = sub(&x[j], &q);
-                dot(&d, &d) <= 9.0 * tol * tol
-            })
-        })
+            let run = run3_of(i);
+            // Usually one atom is within 3·tol: counted without a chain of comparisons.
+            let (mut count, mut last) = (0u32, 0usize);
+            for (s, y) in xs[run.clone()].iter().enumerate() {
+                let near = within(y, &q, t3);
+                count += u32::from(near);
+                last = if near { s } else { last };
+            }
+            let j = match count {
+                0 => {
+                    culprit3 = i;
+                    return false;
+                }
+                1 => run.start + last,
+                _ => {
+                    let mut best = (usize::MAX, t3);
+                    for s in run {
+                        let d = sub(&xs[s], &q);
+                        let d2 = dot(&d, &d);
+                        if d2 <= best.1 {
+                            best = (s, d2);
+                        }
+                    }
+                    best.0
+                }
+            };
+            super::add_outer(&mut h, p, &xs[j]);
+        }
+        let r1 = fit_orthogonal(&h, proper);
+        let mut fails = |i: usize| {
+            if run1[i].start == usize::MAX {
+                run1[i] = walk(i, tol);
+            }
+            let q = mat_vec(&r1, &x[i]);
+            !xs[run1[i].clone()].iter().any(|p| within(p, &q, t1))
+        };
+        if fails(culprit1) {
+            return false;
+        }
+        match (0..n).find(|&i| fails(i)) {
+            Some(i) => {
+                culprit1 = i;
+                false
+            }
+            None => true,
+        }
     };
-    for &ap in &order[run(a, w)] {
-        for &bp in &order[run(b, w)] {
+    for &ap in &order[win[a].clone()] {
+        for &bp in &order[win[b].clone()] {
             if ap == bp || (norm(&sub(&x[ap], &x[bp])) - d_ab).abs() > 2.5 * tol {
                 continue;
             }
@@ -339,13 +525,13 @@ fn without_symmetry(ctx: &Ctx, r: &[f64], order: &[usize]) -> bool {
                 if !proper {
                     f[2] = [-f[2][0], -f[2][1], -f[2][2]];
                 }
-                if passes(&mat_mul(&transpose(&f), &ref_frame)) {
-                    return false;
+                if holds(&mat_mul(&transpose(&f), &ref_frame), proper) {
+                    return Exit::Symmetric;
                 }
             }
         }
     }
-    true
+    Exit::C1
 }
 
 /// The reference atoms: a as in the plain search (smallest window among the atoms at ≥ half
@@ -474,12 +660,14 @@ fn nearest_image(ctx: &Ctx, sh: &Shells, i: usize, q: &Vec3, radius: f64) -> Opt
 
 /// One pass of the pruned search: `Err(Some(atom))` when verification failed at an atom,
 /// `Err(None)` for any other reason.
+#[allow(clippy::too_many_arguments)]
 fn attempt(
     ctx: &Ctx,
     sh: &Shells,
     a: usize,
     b: usize,
     probe: &[usize],
+    strict: bool,
     center: Vec3,
     opts: &DetectOptions,
 ) -> Result<Symmetry, Option<usize>> {
@@ -536,6 +724,7 @@ fn attempt(
     let identity = slot(ka0 as u32, kb0 as u32, true).ok_or(None)?;
     index[identity] = 0;
     let mut gens: Vec<usize> = Vec::new();
+    let mut all_images: Vec<u32> = Vec::new();
     // Largest screening residual: whether the frame needs a fit to the atoms.
     let mut slack = 0.0_f64;
     // A candidate passes when every probe atom and every atom of both windows has an image
@@ -584,8 +773,31 @@ fn attempt(
                     f[2] = [-f[2][0], -f[2][1], -f[2][2]];
                 }
                 let mut m = mat_mul(&transpose(&f), &ref_frame);
-                let Some(img) = screen(&mut m, proper, &mut slack) else {
-                    continue;
+                let img = if strict {
+                    // Only candidates that pass the plain search's test; the windows' images
+                    // are then those within tol.
+                    let near =
+                        |i: usize, q: &Vec3, radius: f64| nearest_image(ctx, sh, i, q, radius);
+                    let Some((fit, worst)) =
+                        strict_test(ctx, near, &m, proper, probe, &mut all_images)
+                    else {
+                        continue;
+                    };
+                    m = fit;
+                    slack = slack.max(worst);
+                    let mut img = Vec::with_capacity(na + nb);
+                    for (w, pl) in [(&wa, &pla), (&wb, &plb)] {
+                        for &i in w.iter() {
+                            let j = all_images[i as usize] as usize;
+                            img.push(find(pl, j).map_or(OUT, |k| k as u32));
+                        }
+                    }
+                    img
+                } else {
+                    let Some(img) = screen(&mut m, proper, &mut slack) else {
+                        continue;
+                    };
+                    img
                 };
                 let (ka, kb) = (img[ka0], img[na + kb0]);
                 let Some(k) = slot(ka, kb, proper) else {

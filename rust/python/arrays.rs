@@ -3,7 +3,7 @@
 
 use numpy::ndarray::Array1;
 use numpy::{
-    IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2,
+    IntoPyArray, PyArray1, PyArray2, PyArray3, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray2,
     PyReadonlyArray3, PyUntypedArrayMethods,
 };
 use pyo3::exceptions::PyValueError;
@@ -56,6 +56,38 @@ pub(super) fn slice3<'a>(a: &'a PyReadonlyArray3<'_, f64>, name: &str) -> PyResu
 /// An `(n, 3)` float64 array as rows of 3 (borrowed, no copy).
 pub(super) fn coords<'a>(a: &'a PyReadonlyArray2<'_, f64>, name: &str) -> PyResult<&'a [[f64; 3]]> {
     rows3(slice2(a, name)?, name)
+}
+
+/// An `(n, 3)` float64 array as rows of 3, read in place without registering a borrow.
+///
+/// # Safety
+/// Nothing may write to the array while the slice lives: the caller holds the GIL
+/// throughout, runs no Python code, and no mutable borrow of the array is held.
+pub(super) unsafe fn coords_unchecked<'a>(
+    a: &'a Bound<'_, PyArray2<f64>>,
+    name: &str,
+) -> PyResult<&'a [[f64; 3]]> {
+    if a.shape()[1] != 3 {
+        return Err(PyValueError::new_err(format!(
+            "{name}: expected shape (n, 3), got {:?}",
+            a.shape()
+        )));
+    }
+    let data = unsafe { a.as_slice() }
+        .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))?;
+    rows3(data, name)
+}
+
+/// A 1-d array as a slice, read in place without registering a borrow.
+///
+/// # Safety
+/// As [`coords_unchecked`].
+pub(super) unsafe fn slice1_unchecked<'a, T: numpy::Element>(
+    a: &'a Bound<'_, PyArray1<T>>,
+    name: &str,
+) -> PyResult<&'a [T]> {
+    unsafe { a.as_slice() }
+        .map_err(|_| PyValueError::new_err(format!("{name}: array must be C-contiguous")))
 }
 
 /// A `(k, 3, 3)` float64 array as 3×3 matrices (borrowed, no copy).

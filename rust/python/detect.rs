@@ -1,39 +1,218 @@
 //! Detection and group arithmetic: `find_point_group`, `canonical_group`, `identify_group`,
 //! `locate_operations`, `map_operations`, and the `Detection` / `GroupData` records.
 
-use super::arrays::{coords, index_array, index_rows, matrices, ops_array, shaped, slice1};
+use super::arrays::{
+    coords, coords_unchecked, index_array, index_rows, matrices, ops_array, shaped, slice1,
+    slice1_unchecked,
+};
 use super::{guarded, CoreError};
 use crate::detect;
 use crate::detect::canonical;
 use crate::detect::naming;
 use numpy::ndarray::{Array1, Ix2};
 use numpy::{
-    IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2, PyReadonlyArray3,
+    IntoPyArray, PyArray1, PyArray2, PyArray3, PyArrayMethods, PyReadonlyArray1, PyReadonlyArray2,
+    PyReadonlyArray3, PyUntypedArrayMethods,
 };
 use pyo3::exceptions::PyValueError;
 use pyo3::prelude::*;
+use pyo3::sync::PyOnceLock;
 use std::sync::Arc;
 
-/// The point group of one structure as detection found it: a frozen record of numpy
-/// arrays moved out of the core (see _core.pyi for each field).
-#[pyclass(frozen, get_all, module = "gammatrace._core")]
+/// The point group of one structure as detection found it: a frozen record whose numpy
+/// arrays (see _core.pyi for each field) are made from the core's result when first read
+/// (small structures: a caller that reads the name alone pays for no array) or at once,
+/// the result then dropped (larger ones: no second copy of the permutations is kept).
+#[pyclass(frozen, module = "gammatrace._core")]
 pub(super) struct Detection {
+    #[pyo3(get)]
     point_group: String,
-    center: Py<PyArray1<f64>>,
-    frame: Py<PyArray2<f64>>,
-    operations: Py<PyArray3<f64>>,
-    proper: Py<PyArray1<bool>>,
-    angle: Py<PyArray1<f64>>,
-    axis: Py<PyArray2<f64>>,
-    canonical_index: Py<PyArray1<i64>>,
-    class_of: Py<PyArray1<i64>>,
-    generators: Py<PyArray1<i64>>,
-    verified: Py<PyArray1<i64>>,
-    permutations: Py<PyArray2<i64>>,
-    deviations: Py<PyArray1<f64>>,
+    #[pyo3(get)]
     max_deviation: f64,
+    #[pyo3(get)]
     best_verified_improper: Option<f64>,
-    generator_rows: Py<PyArray1<i64>>,
+    /// The core's result while some array has not been made from it.
+    sym: Option<detect::Symmetry>,
+    n_atoms: usize,
+    center: PyOnceLock<Py<PyArray1<f64>>>,
+    frame: PyOnceLock<Py<PyArray2<f64>>>,
+    operations: PyOnceLock<Py<PyArray3<f64>>>,
+    proper: PyOnceLock<Py<PyArray1<bool>>>,
+    angle: PyOnceLock<Py<PyArray1<f64>>>,
+    axis: PyOnceLock<Py<PyArray2<f64>>>,
+    canonical_index: PyOnceLock<Py<PyArray1<i64>>>,
+    class_of: PyOnceLock<Py<PyArray1<i64>>>,
+    generators: PyOnceLock<Py<PyArray1<i64>>>,
+    verified: PyOnceLock<Py<PyArray1<i64>>>,
+    permutations: PyOnceLock<Py<PyArray2<i64>>>,
+    deviations: PyOnceLock<Py<PyArray1<f64>>>,
+    generator_rows: PyOnceLock<Py<PyArray1<i64>>>,
+}
+
+/// The array in `cell`, made by `make` from the core's result on first use.
+fn lazy<'py, T>(
+    py: Python<'py>,
+    cell: &PyOnceLock<Py<T>>,
+    sym: &Option<detect::Symmetry>,
+    make: impl FnOnce(Python<'py>, &detect::Symmetry) -> PyResult<Py<T>>,
+) -> PyResult<Bound<'py, T>> {
+    if let Some(made) = cell.get(py) {
+        return Ok(made.bind(py).clone());
+    }
+    let sym = sym.as_ref().ok_or_else(|| {
+        pyo3::exceptions::PyRuntimeError::new_err("detection record without its result")
+    })?;
+    // Made with the GIL held and set without blocking (an initialisation that waited would
+    // first release the GIL): should a reentrant call have set the cell meanwhile, its array
+    // is kept and this one dropped.
+    let _ = cell.set(py, make(py, sym)?);
+    let made = cell
+        .get(py)
+        .ok_or_else(|| pyo3::exceptions::PyRuntimeError::new_err("detection array not kept"))?;
+    Ok(made.bind(py).clone())
+}
+
+fn center_array(py: Python<'_>, sym: &detect::Symmetry) -> PyResult<Py<PyArray1<f64>>> {
+    Ok(PyArray1::from_slice(py, &sym.center).unbind())
+}
+
+fn frame_array(py: Python<'_>, sym: &detect::Symmetry) -> PyResult<Py<PyArray2<f64>>> {
+    Ok(shaped(py, sym.frame.concat(), Ix2(3, 3))?.unbind())
+}
+
+fn operations_array(py: Python<'_>, sym: &detect::Symmetry) -> PyResult<Py<PyArray3<f64>>> {
+    let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
+    ops_array(py, &mats)
+}
+
+fn proper_array(py: Python<'_>, sym: &detect::Symmetry) -> PyResult<Py<PyArray1<bool>>> {
+    let proper: Vec<bool> = sym.ops.iter().map(|o| o.proper).collect();
+    Ok(PyArray1::from_slice(py, &proper).unbind())
+}
+
+fn angle_array(py: Python<'_>, sym: &detect::Symmetry) -> PyResult<Py<PyArray1<f64>>> {
+    let angle: Vec<f64> = sym.ops.iter().map(|o| o.angle).collect();
+    Ok(PyArray1::from_slice(py, &angle).unbind())
+}
+
+fn axis_array(py: Python<'_>, sym: &detect::Symmetry) -> PyResult<Py<PyArray2<f64>>> {
+    let axis: Vec<[f64; 3]> = sym.ops.iter().map(|o| o.axis).collect();
+    Ok(shaped(py, axis.concat(), Ix2(axis.len(), 3))?.unbind())
+}
+
+#[pymethods]
+impl Detection {
+    #[getter]
+    fn center<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        lazy(py, &self.center, &self.sym, center_array)
+    }
+    #[getter]
+    fn frame<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        lazy(py, &self.frame, &self.sym, frame_array)
+    }
+    #[getter]
+    fn operations<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray3<f64>>> {
+        lazy(py, &self.operations, &self.sym, operations_array)
+    }
+    #[getter]
+    fn proper<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<bool>>> {
+        lazy(py, &self.proper, &self.sym, proper_array)
+    }
+    #[getter]
+    fn angle<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        lazy(py, &self.angle, &self.sym, angle_array)
+    }
+    #[getter]
+    fn axis<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        lazy(py, &self.axis, &self.sym, axis_array)
+    }
+    #[getter]
+    fn canonical_index<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<i64>>> {
+        lazy(py, &self.canonical_index, &self.sym, |py, s| {
+            Ok(index_array(py, &s.canonical_index))
+        })
+    }
+    #[getter]
+    fn class_of<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<i64>>> {
+        lazy(py, &self.class_of, &self.sym, |py, s| {
+            Ok(index_array(py, &s.class_of))
+        })
+    }
+    #[getter]
+    fn generators<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<i64>>> {
+        lazy(py, &self.generators, &self.sym, |py, s| {
+            Ok(index_array(py, &s.generators))
+        })
+    }
+    #[getter]
+    fn verified<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<i64>>> {
+        lazy(py, &self.verified, &self.sym, |py, s| {
+            Ok(index_array(py, &s.verified))
+        })
+    }
+    #[getter]
+    fn permutations<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<i64>>> {
+        let n = self.n_atoms;
+        lazy(py, &self.permutations, &self.sym, |py, s| {
+            Ok(index_rows(py, &s.permutations, n)?.unbind())
+        })
+    }
+    #[getter]
+    fn deviations<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        lazy(py, &self.deviations, &self.sym, |py, s| {
+            Ok(PyArray1::from_slice(py, &s.deviations).unbind())
+        })
+    }
+    #[getter]
+    fn generator_rows<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray1<i64>>> {
+        lazy(py, &self.generator_rows, &self.sym, |py, s| {
+            Ok(index_array(py, &s.generator_rows()))
+        })
+    }
+}
+
+impl Detection {
+    /// The record of a detection: arrays made when first read, or (`eager`) now, the
+    /// core's result then dropped.
+    fn new(py: Python<'_>, sym: detect::Symmetry, n_atoms: usize, eager: bool) -> PyResult<Self> {
+        let d = Detection {
+            point_group: sym.point_group.clone(),
+            max_deviation: sym.max_deviation,
+            best_verified_improper: sym.best_verified_improper(),
+            sym: Some(sym),
+            n_atoms,
+            center: PyOnceLock::new(),
+            frame: PyOnceLock::new(),
+            operations: PyOnceLock::new(),
+            proper: PyOnceLock::new(),
+            angle: PyOnceLock::new(),
+            axis: PyOnceLock::new(),
+            canonical_index: PyOnceLock::new(),
+            class_of: PyOnceLock::new(),
+            generators: PyOnceLock::new(),
+            verified: PyOnceLock::new(),
+            permutations: PyOnceLock::new(),
+            deviations: PyOnceLock::new(),
+            generator_rows: PyOnceLock::new(),
+        };
+        if !eager {
+            return Ok(d);
+        }
+        d.center(py)?;
+        d.frame(py)?;
+        d.operations(py)?;
+        d.proper(py)?;
+        d.angle(py)?;
+        d.axis(py)?;
+        d.canonical_index(py)?;
+        d.class_of(py)?;
+        d.generators(py)?;
+        d.verified(py)?;
+        d.permutations(py)?;
+        d.deviations(py)?;
+        d.generator_rows(py)?;
+        Ok(Detection { sym: None, ..d })
+    }
 }
 
 /// The canonical operations of one group and their arithmetic (see _core.pyi).
@@ -87,14 +266,14 @@ const KEEP_GIL_MAX_ATOMS: usize = 64;
 #[pyfunction]
 #[pyo3(signature = (positions, numbers, tol, linear_n, verify_all_limit, masses=None, *, search="auto"))]
 #[allow(clippy::too_many_arguments)]
-pub(super) fn find_point_group(
-    py: Python<'_>,
-    positions: PyReadonlyArray2<'_, f64>,
-    numbers: PyReadonlyArray1<'_, i64>,
+pub(super) fn find_point_group<'py>(
+    py: Python<'py>,
+    positions: &Bound<'py, PyArray2<f64>>,
+    numbers: &Bound<'py, PyArray1<i64>>,
     tol: f64,
     linear_n: usize,
     verify_all_limit: usize,
-    masses: Option<PyReadonlyArray1<'_, f64>>,
+    masses: Option<&Bound<'py, PyArray1<f64>>>,
     search: &str,
 ) -> PyResult<Detection> {
     let search = match search {
@@ -107,47 +286,34 @@ pub(super) fn find_point_group(
             )))
         }
     };
-    let pos = coords(&positions, "positions")?;
-    let num = slice1(&numbers, "numbers")?;
-    let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
     let opts = detect::DetectOptions {
         tol,
         linear_n,
         verify_all_limit,
     };
-    let run = || guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search));
-    // Small structures take a few µs: releasing the GIL would cost a good part of that.
-    let sym = if pos.len() <= KEEP_GIL_MAX_ATOMS {
-        run()
-    } else {
-        py.detach(run)
+    if positions.shape()[0] <= KEEP_GIL_MAX_ATOMS {
+        // Small structures: the arrays are read in place with the GIL held throughout (the
+        // core runs without releasing it and calls no Python code, so nothing can write to
+        // them meanwhile), without registering a shared borrow.
+        let pos = unsafe { coords_unchecked(positions, "positions") }?;
+        let num = unsafe { slice1_unchecked(numbers, "numbers") }?;
+        let mass = masses
+            .map(|m| unsafe { slice1_unchecked(m, "masses") })
+            .transpose()?;
+        let sym = guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search))
+            .map_err(CoreError)?;
+        return Detection::new(py, sym, pos.len(), false);
     }
-    .map_err(CoreError)?;
-    let n = pos.len();
-    let best_verified_improper = sym.best_verified_improper();
-    let generator_rows = index_array(py, &sym.generator_rows());
-    let mats: Vec<[[f64; 3]; 3]> = sym.ops.iter().map(|o| o.matrix).collect();
-    let proper: Vec<bool> = sym.ops.iter().map(|o| o.proper).collect();
-    let angle: Vec<f64> = sym.ops.iter().map(|o| o.angle).collect();
-    let axis: Vec<[f64; 3]> = sym.ops.iter().map(|o| o.axis).collect();
-    Ok(Detection {
-        point_group: sym.point_group,
-        center: PyArray1::from_slice(py, &sym.center).unbind(),
-        frame: shaped(py, sym.frame.concat(), Ix2(3, 3))?.unbind(),
-        operations: ops_array(py, &mats)?,
-        proper: PyArray1::from_slice(py, &proper).unbind(),
-        angle: PyArray1::from_slice(py, &angle).unbind(),
-        axis: shaped(py, axis.concat(), Ix2(axis.len(), 3))?.unbind(),
-        canonical_index: index_array(py, &sym.canonical_index),
-        class_of: index_array(py, &sym.class_of),
-        generators: index_array(py, &sym.generators),
-        verified: index_array(py, &sym.verified),
-        permutations: index_rows(py, &sym.permutations, n)?.unbind(),
-        deviations: Array1::from(sym.deviations).into_pyarray(py).unbind(),
-        max_deviation: sym.max_deviation,
-        best_verified_improper,
-        generator_rows,
-    })
+    let positions = positions.try_readonly()?;
+    let numbers = numbers.try_readonly()?;
+    let masses = masses.map(|m| m.try_readonly()).transpose()?;
+    let pos = coords(&positions, "positions")?;
+    let num = slice1(&numbers, "numbers")?;
+    let mass = masses.as_ref().map(|m| slice1(m, "masses")).transpose()?;
+    let sym = py
+        .detach(|| guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search)))
+        .map_err(CoreError)?;
+    Detection::new(py, sym, pos.len(), true)
 }
 
 /// The canonical operations of a group named as `Family::name` spells it.

@@ -4,7 +4,9 @@
 //!
 //! Each glue function (1) borrows read-only views and checks shapes with the GIL held,
 //! (2) releases the GIL and calls exactly one core function, (3) moves the result into
-//! numpy and maps the error. Files by job: `arrays` (conversion helpers), `detect`
+//! numpy and maps the error. (`find_point_group` keeps the GIL for structures up to 64
+//! atoms, reads their arrays in place without registering a borrow, and makes the arrays
+//! of its record when they are first read.) Files by job: `arrays` (conversion helpers), `detect`
 //! (detection and group arithmetic), `count` (characters), `io` (readers and the element
 //! table), `species` (nuclide symbols and isotopes as species), `batch` (many structures at
 //! once).
