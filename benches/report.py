@@ -709,7 +709,8 @@ def write_page(stamp: str, bench: dict, rerun: dict | None, rust: dict | None) -
         "",
         (
             "*detection* is `_core.find_point_group` from the bare coordinates (every operation "
-            "verified against all atoms up to the verify-all limit, results as numpy arrays); "
+            "verified against all atoms up to the verify-all limit; the record's numpy arrays, "
+            "the permutations among them, are made when first read, and these rows read none); "
             "*counting* is `_core.count_unshifted` for the operations it found, in the same run. "
             "`cargo bench --bench detect_kernel` times the same pairs in the core alone."
         ),

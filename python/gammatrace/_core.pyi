@@ -19,8 +19,9 @@ MASS_TOLERANCE: float  # u: masses of one element closer than this are one speci
 _T = TypeVar("_T")
 
 class Detection:
-    """The point group of one structure as detection found it (frozen; for up to 64 atoms each
-    array is made when first read, the same array on every read; above, all at once)."""
+    """The point group of one structure as detection found it (frozen; each array is made
+    from the core's result when first read, the same array on every read: a caller that
+    counts characters never pays for ``permutations``)."""
 
     point_group: str  # Schoenflies name ("C2v", "D∞h", "K_h")
     center: F64  # (3,) centre of mass; operations act on positions - center

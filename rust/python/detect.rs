@@ -20,9 +20,10 @@ use pyo3::sync::PyOnceLock;
 use std::sync::Arc;
 
 /// The point group of one structure as detection found it: a frozen record whose numpy
-/// arrays (see _core.pyi for each field) are made from the core's result when first read
-/// (small structures: a caller that reads the name alone pays for no array) or at once,
-/// the result then dropped (larger ones: no second copy of the permutations is kept).
+/// arrays (see _core.pyi for each field) are made from the core's result when first read:
+/// a caller that reads the name alone pays for no array, and one that counts characters
+/// never pays for the permutations (n_atoms × |G| int64). The core's result is kept with
+/// the record (its permutations as u32: half the bytes of the array made from them).
 #[pyclass(frozen, module = "gammatrace._core")]
 pub(super) struct Detection {
     #[pyo3(get)]
@@ -31,8 +32,8 @@ pub(super) struct Detection {
     max_deviation: f64,
     #[pyo3(get)]
     best_verified_improper: Option<f64>,
-    /// The core's result while some array has not been made from it.
-    sym: Option<detect::Symmetry>,
+    /// The core's result, from which each array is made.
+    sym: detect::Symmetry,
     n_atoms: usize,
     center: PyOnceLock<Py<PyArray1<f64>>>,
     frame: PyOnceLock<Py<PyArray2<f64>>>,
@@ -53,15 +54,12 @@ pub(super) struct Detection {
 fn lazy<'py, T>(
     py: Python<'py>,
     cell: &PyOnceLock<Py<T>>,
-    sym: &Option<detect::Symmetry>,
+    sym: &detect::Symmetry,
     make: impl FnOnce(Python<'py>, &detect::Symmetry) -> PyResult<Py<T>>,
 ) -> PyResult<Bound<'py, T>> {
     if let Some(made) = cell.get(py) {
         return Ok(made.bind(py).clone());
     }
-    let sym = sym.as_ref().ok_or_else(|| {
-        pyo3::exceptions::PyRuntimeError::new_err("detection record without its result")
-    })?;
     // Made with the GIL held and set without blocking (an initialisation that waited would
     // first release the GIL): should a reentrant call have set the cell meanwhile, its array
     // is kept and this one dropped.
@@ -172,14 +170,13 @@ impl Detection {
 }
 
 impl Detection {
-    /// The record of a detection: arrays made when first read, or (`eager`) now, the
-    /// core's result then dropped.
-    fn new(py: Python<'_>, sym: detect::Symmetry, n_atoms: usize, eager: bool) -> PyResult<Self> {
-        let d = Detection {
+    /// The record of a detection: arrays made when first read.
+    fn new(sym: detect::Symmetry, n_atoms: usize) -> Self {
+        Detection {
             point_group: sym.point_group.clone(),
             max_deviation: sym.max_deviation,
             best_verified_improper: sym.best_verified_improper(),
-            sym: Some(sym),
+            sym,
             n_atoms,
             center: PyOnceLock::new(),
             frame: PyOnceLock::new(),
@@ -194,24 +191,7 @@ impl Detection {
             permutations: PyOnceLock::new(),
             deviations: PyOnceLock::new(),
             generator_rows: PyOnceLock::new(),
-        };
-        if !eager {
-            return Ok(d);
         }
-        d.center(py)?;
-        d.frame(py)?;
-        d.operations(py)?;
-        d.proper(py)?;
-        d.angle(py)?;
-        d.axis(py)?;
-        d.canonical_index(py)?;
-        d.class_of(py)?;
-        d.generators(py)?;
-        d.verified(py)?;
-        d.permutations(py)?;
-        d.deviations(py)?;
-        d.generator_rows(py)?;
-        Ok(Detection { sym: None, ..d })
     }
 }
 
@@ -302,7 +282,7 @@ pub(super) fn find_point_group<'py>(
             .transpose()?;
         let sym = guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search))
             .map_err(CoreError)?;
-        return Detection::new(py, sym, pos.len(), false);
+        return Ok(Detection::new(sym, pos.len()));
     }
     let positions = positions.try_readonly()?;
     let numbers = numbers.try_readonly()?;
@@ -313,7 +293,7 @@ pub(super) fn find_point_group<'py>(
     let sym = py
         .detach(|| guarded(|| detect::find_point_group_searching(pos, num, mass, &opts, search)))
         .map_err(CoreError)?;
-    Detection::new(py, sym, pos.len(), true)
+    Ok(Detection::new(sym, pos.len()))
 }
 
 /// The canonical operations of a group named as `Family::name` spells it.

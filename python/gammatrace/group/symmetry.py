@@ -191,6 +191,14 @@ class SymmetryData:
     def _set(self, **values: Any) -> None:
         self.__dict__.update(values)
 
+    def __getstate__(self) -> dict:
+        # The core's record does not pickle: the permutations it holds go in its place.
+        state = dict(self.__dict__)
+        raw = state.pop("_raw", None)
+        if raw is not None and "generator_permutations" not in state:
+            state["generator_permutations"] = raw.permutations
+        return state
+
     def __setattr__(self, name: str, value: Any) -> None:
         raise AttributeError(f"SymmetryData is immutable (cannot set {name!r})")
 
@@ -218,7 +226,7 @@ class SymmetryData:
             op_class=table.operation_class[raw.canonical_index],
             canonical_index=raw.canonical_index,
             verified_operations=raw.verified,
-            generator_permutations=raw.permutations,
+            _raw=raw,  # the core's record: generator_permutations made from it on first use
             deviations=raw.deviations,
             max_deviation=float(raw.max_deviation),
             best_verified_improper=raw.best_verified_improper,
@@ -297,6 +305,13 @@ class SymmetryData:
     def all_verified(self) -> bool:
         """True when every operation's permutation is known from detection."""
         return len(self.verified_operations) == len(self.operations)
+
+    @cached_property
+    def generator_permutations(self) -> np.ndarray:
+        """``int64 (k, N)``: the permutations detection verified, row j for operation
+        ``verified_operations[j]`` (made from the core's record on first use: analyses
+        that only count characters never make them)."""
+        return self._raw.permutations
 
     @cached_property
     def permutations(self) -> np.ndarray:
